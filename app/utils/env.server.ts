@@ -1,0 +1,53 @@
+import path from "node:path";
+import { z } from "zod";
+
+/**
+ * Every setting comes from the environment and is parsed once. `.env.example` lists them all
+ * with safe defaults for development; production must set SESSION_SECRET and a real mail key.
+ */
+const schema = z.object({
+  NODE_ENV: z.enum(["development", "production", "test"]).default("development"),
+  PORT: z.coerce.number().int().positive().default(3000),
+  DATABASE_URL: z.string().min(1).default("data/thawline.db"),
+  CURVES_DIR: z.string().min(1).default(path.resolve(process.cwd(), "../shared/curves")),
+  APP_URL: z.string().url().optional(),
+  SESSION_SECRET: z.string().min(16).default("dev-only-session-secret-change-me"),
+  TOTP_SECRET: z.string().min(32).default("dev-only-totp-secret-0123456789abcdef0123456789abcdef"),
+  MAIL_FROM: z.string().min(3).default("Thawline <no-reply@thawline.example.org>"),
+  RESEND_API_KEY: z.string().min(1).default("re_fake_local_key"),
+  /** Base URL the Resend SDK talks to; a local fake in development, demo and tests. */
+  RESEND_BASE_URL: z.string().url().optional(),
+  /** Folder the local mail fake keeps its outbox in. */
+  MAIL_OUTBOX_DIR: z.string().default("data/outbox"),
+  UPLOAD_MAX_BYTES: z.coerce.number().int().positive().default(10 * 1024 * 1024),
+  SECURE_COOKIES: z
+    .enum(["true", "false"])
+    .optional()
+    .transform((v) => (v === undefined ? undefined : v === "true")),
+});
+
+export type Env = z.infer<typeof schema>;
+
+let cached: Env | undefined;
+
+export function env(): Env {
+  if (!cached) {
+    const parsed = schema.safeParse(process.env);
+    if (!parsed.success) {
+      const problems = parsed.error.issues.map((i) => `  ${i.path.join(".")}: ${i.message}`).join("\n");
+      throw new Error(`Invalid environment:\n${problems}`);
+    }
+    if (parsed.data.NODE_ENV === "production" && parsed.data.SESSION_SECRET.startsWith("dev-only")) {
+      console.warn("SESSION_SECRET is the development default; set a secret of your own in production.");
+    }
+    cached = parsed.data;
+  }
+  return cached;
+}
+
+/** The mail fake is in use whenever no real mail service is configured. */
+export function usesMailFake(): boolean {
+  const e = env();
+  return e.RESEND_API_KEY.startsWith("re_fake") || (e.RESEND_BASE_URL ?? "").includes("127.0.0.1") ||
+    (e.RESEND_BASE_URL ?? "").includes("localhost");
+}

@@ -1,0 +1,21 @@
+import type { Role } from "#app/db/schema.ts";
+
+export type NavItem = { to: string; label: string; roles: Role[] | "public" | "signed-in" };
+
+/**
+ * Pages appear in the navigation once they work. Each names who may see it; the loaders
+ * enforce the same rule, this list only keeps people from seeing links they cannot follow.
+ */
+export const NAV_ITEMS: NavItem[] = [
+  { to: "/explore", label: "Explore", roles: "signed-in" },
+  { to: "/map", label: "Map", roles: "signed-in" },
+];
+
+export function navigationFor(roles: Role[] | null): NavItem[] {
+  return NAV_ITEMS.filter((item) => {
+    if (item.roles === "public") return true;
+    if (roles === null) return false;
+    if (item.roles === "signed-in") return true;
+    return item.roles.some((r) => roles.includes(r));
+  });
+}
