@@ -1,0 +1,58 @@
+// `npm run demo`: everything a newcomer needs for a first look — set up the database, load the
+// full demo scenario if it is empty, build, start the mail fake and the app, print where to go.
+import { spawn, spawnSync } from "node:child_process";
+import path from "node:path";
+import Database from "better-sqlite3";
+
+const port = process.env.PORT ?? "3000";
+const mailPort = process.env.MAIL_FAKE_PORT ?? "3025";
+const appUrl = process.env.APP_URL ?? `http://localhost:${port}`;
+const env = {
+  ...process.env,
+  PORT: port,
+  APP_URL: appUrl,
+  DATABASE_URL: process.env.DATABASE_URL ?? "data/thawline.db",
+  RESEND_API_KEY: process.env.RESEND_API_KEY ?? "re_fake_demo",
+  RESEND_BASE_URL: process.env.RESEND_BASE_URL ?? `http://127.0.0.1:${mailPort}`,
+  MAIL_FAKE_PORT: mailPort,
+  MAIL_OUTBOX_DIR: process.env.MAIL_OUTBOX_DIR ?? "data/outbox",
+  SECURE_COOKIES: process.env.SECURE_COOKIES ?? "false",
+};
+const tsx = path.resolve("node_modules/.bin/tsx");
+
+function run(label: string, cmd: string, args: string[]) {
+  console.log(`\n▸ ${label}`);
+  const r = spawnSync(cmd, args, { stdio: "inherit", env });
+  if (r.status !== 0) {
+    console.error(`${label} failed.`);
+    process.exit(r.status ?? 1);
+  }
+}
+
+run("Setting up the database and curves", tsx, ["scripts/setup.ts"]);
+const db = new Database(env.DATABASE_URL, { readonly: true });
+const { n } = db.prepare("select count(*) as n from determinations").get() as { n: number };
+db.close();
+if (n === 0) run("Loading the full demo scenario", tsx, ["seed/run.ts", "--size", "full"]);
+else console.log(`\n▸ The database already holds ${n} determinations; not seeding again.`);
+run("Building the app", path.resolve("node_modules/.bin/react-router"), ["build"]);
+
+const children = [
+  spawn(tsx, ["seed/mail-fake.ts"], { stdio: "inherit", env }),
+  spawn(process.execPath, ["server.js"], { stdio: "inherit", env: { ...env, NODE_ENV: "production" } }),
+];
+for (const signal of ["SIGINT", "SIGTERM"] as const) {
+  process.on(signal, () => {
+    for (const c of children) c.kill(signal);
+    process.exit(0);
+  });
+}
+
+console.log(`
+Thawline demo: ${appUrl}
+
+Sign in with any of these invented demo addresses; the code and link arrive in the
+local outbox at ${appUrl}/dev/outbox (no real mail is sent):
+  contributor@example.org   reviewer@example.org   modeller@example.org
+  editor@example.org        all-roles@example.org  (every role)
+`);
