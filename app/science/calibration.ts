@@ -2,7 +2,8 @@
 // a 1-year calendar grid; Bronk Ramsey 2009). The likelihood follows CHECK_VALUES A4.
 
 import { groupThousands } from "./calendar.ts";
-import type { PreparedCurve } from "./curve.ts";
+import { SUPER_BLOCK, type PreparedCurve } from "./curve.ts";
+import { expNonPositive } from "./fastexp.ts";
 import { finishDensity, summariseDensity, type CalendarDensity, type DensitySummary } from "./density.ts";
 
 export {
@@ -46,8 +47,11 @@ export class CalibrationError extends Error {
   }
 }
 
-/** Likelihood is negligible beyond this many combined standard deviations (e^−32 ≈ 1e−14). */
-const CUTOFF_SD = 8;
+/**
+ * Likelihood is treated as zero beyond this many combined standard deviations: e^−18 ≈ 1.5e−8,
+ * well below the 1e−6 trim applied to stored densities.
+ */
+const CUTOFF_SD = 6;
 const CUTOFF2 = CUTOFF_SD * CUTOFF_SD;
 
 let scratch = new Float64Array(4096);
@@ -87,16 +91,25 @@ export function calibrate(prepared: PreparedCurve, input: CalibrationInput): Cal
     );
   }
   const extraVar = error * error + deltaRError * deltaRError;
-  const { blockSize, blockMinC, blockMaxC, blockMaxS2, c, s2, length } = prepared;
+  const { blockSize, blockMinC, blockMaxC, blockMaxS2, superMinC, superMaxC, superMaxS2, c, s2, length } = prepared;
   const nBlocks = blockMinC.length;
+  const nSuper = superMinC.length;
 
+  // Squared distances avoid a square root per block.
+  const within = (lo: number, hi: number, maxS2: number) => {
+    const d = mu < lo ? lo - mu : mu > hi ? mu - hi : 0;
+    return d * d <= CUTOFF2 * (extraVar + maxS2);
+  };
   let bFirst = -1;
   let bLast = -1;
-  for (let b = 0; b < nBlocks; b++) {
-    const tol = CUTOFF_SD * Math.sqrt(extraVar + blockMaxS2[b]);
-    if (mu >= blockMinC[b] - tol && mu <= blockMaxC[b] + tol) {
-      if (bFirst < 0) bFirst = b;
-      bLast = b;
+  for (let k = 0; k < nSuper; k++) {
+    if (!within(superMinC[k], superMaxC[k], superMaxS2[k])) continue;
+    const bEnd = Math.min(nBlocks, (k + 1) * SUPER_BLOCK);
+    for (let b = k * SUPER_BLOCK; b < bEnd; b++) {
+      if (within(blockMinC[b], blockMaxC[b], blockMaxS2[b])) {
+        if (bFirst < 0) bFirst = b;
+        bLast = b;
+      }
     }
   }
   if (bFirst < 0) {
@@ -109,24 +122,26 @@ export function calibrate(prepared: PreparedCurve, input: CalibrationInput): Cal
   if (scratch.length < span) scratch = new Float64Array(Math.max(span, scratch.length * 2));
   const work = scratch;
 
+  let max = 0;
   for (let b = bFirst; b <= bLast; b++) {
     const a = b * blockSize - g0;
     const e = Math.min(length, (b + 1) * blockSize) - g0;
-    const tol = CUTOFF_SD * Math.sqrt(extraVar + blockMaxS2[b]);
-    if (mu < blockMinC[b] - tol || mu > blockMaxC[b] + tol) {
+    if (!within(blockMinC[b], blockMaxC[b], blockMaxS2[b])) {
       work.fill(0, a, e);
       continue;
     }
     for (let i = a; i < e; i++) {
       const g = g0 + i;
-      const v = extraVar + s2[g];
+      const iv = 1 / (extraVar + s2[g]);
       const d = mu - c[g];
-      const q = (d * d) / v;
-      work[i] = q > CUTOFF2 ? 0 : Math.exp(-0.5 * q) / Math.sqrt(v);
+      const q = d * d * iv;
+      const v = q > CUTOFF2 ? 0 : expNonPositive(-0.5 * q) * Math.sqrt(iv);
+      work[i] = v;
+      if (v > max) max = v;
     }
   }
 
-  const density = finishDensity(work, 0, span, prepared.startCalBp + g0);
+  const density = finishDensity(work, 0, span, prepared.startCalBp + g0, max);
   const summary = summariseDensity(density);
   const first = density.startCalBp;
   const last = first + density.values.length - 1;

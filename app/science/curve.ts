@@ -237,10 +237,17 @@ export interface PreparedCurve {
   blockMinC: Float64Array;
   blockMaxC: Float64Array;
   blockMaxS2: Float64Array;
+  /** The same over groups of SUPER_BLOCK blocks, so a date skips most blocks in one test. */
+  superMinC: Float64Array;
+  superMaxC: Float64Array;
+  superMaxS2: Float64Array;
   /** Range of the curve's 14C ages, for "beyond the curve" messages. */
   minC14: number;
   maxC14: number;
 }
+
+/** Blocks per super-block in the two-level index. */
+export const SUPER_BLOCK = 16;
 
 export interface PrepareOptions {
   blockSize?: number;
@@ -294,7 +301,32 @@ export function prepareCurve(curve: Curve, options: PrepareOptions = {}): Prepar
     if (lo < minC14) minC14 = lo;
     if (hi > maxC14) maxC14 = hi;
   }
-  return { name: curve.name, startCalBp: start, length, c, s2, blockSize, blockMinC, blockMaxC, blockMaxS2, minC14, maxC14 };
+  const nSuper = Math.ceil(nBlocks / SUPER_BLOCK);
+  const superMinC = new Float64Array(nSuper).fill(Infinity);
+  const superMaxC = new Float64Array(nSuper).fill(-Infinity);
+  const superMaxS2 = new Float64Array(nSuper);
+  for (let b = 0; b < nBlocks; b++) {
+    const k = Math.floor(b / SUPER_BLOCK);
+    superMinC[k] = Math.min(superMinC[k], blockMinC[b]);
+    superMaxC[k] = Math.max(superMaxC[k], blockMaxC[b]);
+    superMaxS2[k] = Math.max(superMaxS2[k], blockMaxS2[b]);
+  }
+  return {
+    name: curve.name,
+    startCalBp: start,
+    length,
+    c,
+    s2,
+    blockSize,
+    blockMinC,
+    blockMaxC,
+    blockMaxS2,
+    superMinC,
+    superMaxC,
+    superMaxS2,
+    minC14,
+    maxC14,
+  };
 }
 
 /**

@@ -29,67 +29,97 @@ export const HPD_95 = 0.954;
 /** Values below this fraction of the peak are dropped from the ends of a stored density. */
 export const DENSITY_TRIM = 1e-6;
 
-const N_BUCKETS = 2048;
+const N_BUCKETS = 512;
 const bucketSum = new Float64Array(N_BUCKETS);
 
 /**
- * Density level above which the grid points hold `level` of the total: the same result as
- * sorting all points from highest down and accumulating, but only the one value bucket where
- * the target is crossed gets sorted, which keeps a calibration well under 0.1 ms.
+ * Density levels above which the grid points hold each of `levels` (ascending) of the total:
+ * the same result as sorting all points from highest down and accumulating, but only the value
+ * bucket where a target is crossed gets sorted, which keeps a calibration well under 0.1 ms.
  */
-function hpdThreshold(values: ArrayLike<number>, max: number, total: number, level: number): number {
-  const target = level * total;
+function hpdThresholds(values: Float32Array, max: number, total: number, levels: readonly number[]): number[] {
   const n = values.length;
   const scale = N_BUCKETS / max;
+  const top = N_BUCKETS - 1;
   bucketSum.fill(0);
   for (let i = 0; i < n; i++) {
     const v = values[i];
     if (v <= 0) continue;
-    let k = Math.floor(v * scale);
-    if (k >= N_BUCKETS) k = N_BUCKETS - 1;
-    bucketSum[k] += v;
+    const k = (v * scale) | 0;
+    bucketSum[k > top ? top : k] += v;
   }
+  const buckets: number[] = [];
+  const before: number[] = [];
   let cum = 0;
-  let k = N_BUCKETS - 1;
-  for (; k > 0; k--) {
-    if (cum + bucketSum[k] >= target) break;
-    cum += bucketSum[k];
+  let k = top;
+  for (const level of levels) {
+    const target = level * total;
+    for (; k > 0; k--) {
+      if (cum + bucketSum[k] >= target) break;
+      cum += bucketSum[k];
+    }
+    buckets.push(k);
+    before.push(cum);
   }
-  const members: number[] = [];
+  const members = buckets.map(() => [] as number[]);
+  // Only values at or above the lowest boundary bucket can belong to one.
+  const lowest = Math.min(...buckets);
+  const minValue = lowest / scale;
   for (let i = 0; i < n; i++) {
     const v = values[i];
-    if (v <= 0) continue;
-    let kb = Math.floor(v * scale);
-    if (kb >= N_BUCKETS) kb = N_BUCKETS - 1;
-    if (kb === k) members.push(v);
+    if (v < minValue || v <= 0) continue;
+    let kb = (v * scale) | 0;
+    if (kb > top) kb = top;
+    for (let j = 0; j < buckets.length; j++) if (kb === buckets[j]) members[j].push(v);
   }
-  members.sort((a, b) => b - a);
-  for (const v of members) {
-    cum += v;
-    if (cum >= target) return v;
-  }
-  // Rounding can leave the target a hair out of reach; then every positive point is taken.
-  return members.length ? members[members.length - 1] : Number.MIN_VALUE;
+  return levels.map((level, j) => {
+    const target = level * total;
+    const m = members[j].sort((a, b) => b - a);
+    let c = before[j];
+    for (const v of m) {
+      c += v;
+      if (c >= target) return v;
+    }
+    // Rounding can leave the target a hair out of reach; then every positive point is taken.
+    return m.length ? m[m.length - 1] : Number.MIN_VALUE;
+  });
 }
 
-function rangesAbove(values: ArrayLike<number>, start: number, threshold: number): Range[] {
-  const ranges: Range[] = [];
+/** Runs of grid points at or above each threshold (t95 ≤ t68), both found in one pass. */
+function rangesAboveBoth(values: Float32Array, start: number, t68: number, t95: number): [Range[], Range[]] {
+  const r68: Range[] = [];
+  const r95: Range[] = [];
   const n = values.length;
-  let i = 0;
-  while (i < n) {
-    if (values[i] >= threshold && values[i] > 0) {
-      let p = 0;
-      const i0 = i;
-      while (i < n && values[i] >= threshold && values[i] > 0) {
-        p += values[i];
-        i++;
+  let open68 = -1;
+  let open95 = -1;
+  let p68 = 0;
+  let p95 = 0;
+  for (let i = 0; i <= n; i++) {
+    const v = i < n ? values[i] : 0;
+    const in95 = v >= t95 && v > 0;
+    const in68 = in95 && v >= t68;
+    if (in95) {
+      if (open95 < 0) {
+        open95 = i;
+        p95 = 0;
       }
-      ranges.push({ from: start + i - 1, to: start + i0, p });
-    } else {
-      i++;
+      p95 += v;
+    } else if (open95 >= 0) {
+      r95.push({ from: start + i - 1, to: start + open95, p: p95 });
+      open95 = -1;
+    }
+    if (in68) {
+      if (open68 < 0) {
+        open68 = i;
+        p68 = 0;
+      }
+      p68 += v;
+    } else if (open68 >= 0) {
+      r68.push({ from: start + i - 1, to: start + open68, p: p68 });
+      open68 = -1;
     }
   }
-  return ranges.reverse();
+  return [r68.reverse(), r95.reverse()];
 }
 
 /**
@@ -123,13 +153,13 @@ export function summariseDensity(density: CalendarDensity): DensitySummary {
     }
     cum += v;
   }
-  const t68 = hpdThreshold(values, max, total, HPD_68);
-  const t95 = hpdThreshold(values, max, total, HPD_95);
+  const [t68, t95] = hpdThresholds(values, max, total, [HPD_68, HPD_95]);
+  const [r68, r95] = rangesAboveBoth(values, start, t68, t95);
   return {
     medianCalBp: median,
     meanCalBp: start + moment / total,
-    hpd68: scaleP(rangesAbove(values, start, t68), total),
-    hpd95: scaleP(rangesAbove(values, start, t95), total),
+    hpd68: scaleP(r68, total),
+    hpd95: scaleP(r95, total),
   };
 }
 
@@ -142,9 +172,15 @@ function scaleP(ranges: Range[], total: number): Range[] {
  * Turns unnormalised grid values into a stored density: drops negligible tails at both ends
  * and normalises what is left to sum to 1. `work[i]` belongs to calendar age `start + i`.
  */
-export function finishDensity(work: ArrayLike<number>, from: number, to: number, start: number): CalendarDensity {
-  let max = 0;
-  for (let i = from; i < to; i++) if (work[i] > max) max = work[i];
+export function finishDensity(
+  work: ArrayLike<number>,
+  from: number,
+  to: number,
+  start: number,
+  knownMax?: number,
+): CalendarDensity {
+  let max = knownMax ?? 0;
+  if (knownMax === undefined) for (let i = from; i < to; i++) if (work[i] > max) max = work[i];
   if (!(max > 0)) throw new Error("The density is zero everywhere.");
   const floor = max * DENSITY_TRIM;
   let a = from;
@@ -154,7 +190,8 @@ export function finishDensity(work: ArrayLike<number>, from: number, to: number,
   let total = 0;
   for (let i = a; i <= b; i++) total += work[i];
   const values = new Float32Array(b - a + 1);
-  for (let i = a; i <= b; i++) values[i - a] = work[i] / total;
+  const inv = 1 / total;
+  for (let i = a; i <= b; i++) values[i - a] = work[i] * inv;
   return { startCalBp: start + a, values };
 }
 

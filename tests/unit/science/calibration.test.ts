@@ -214,6 +214,22 @@ describe("calibration on the published curves", () => {
     );
   });
 
+  it("the result does not depend on the index's block size", () => {
+    const curve = loadCurve("intcal20");
+    const fine = prepareCurve(curve, { blockSize: 8 });
+    const coarse = prepareCurve(curve, { blockSize: 512 });
+    for (const [age, error] of [
+      [1250, 20],
+      [10250, 45],
+      [30000, 300],
+    ]) {
+      const a = calibrate(fine, { age, error });
+      const b = calibrate(coarse, { age, error });
+      expect(a.medianCalBp).toBeCloseTo(b.medianCalBp, 6);
+      expect(a.hpd95.map((r) => [r.from, r.to])).toEqual(b.hpd95.map((r) => [r.from, r.to]));
+    }
+  });
+
   it("ΔR is the same as calibrating against a shifted curve with errors in quadrature (A5)", () => {
     // Heaton et al. 2020 / CHECK_VALUES A5 [common practice]: c + ΔR, √(s² + σ_ΔR²)
     const base = loadCurve("marine20");
