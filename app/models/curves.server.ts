@@ -184,3 +184,41 @@ export function preparedCurve(db: Db, curveId: number): PreparedCurve {
   }
   return prepared;
 }
+
+export type CurveWindowPoint = { calBp: number; c14: number; sigma: number };
+
+/** Most points a plot needs: more than one per pixel of a page-wide chart buys nothing. */
+export const CURVE_WINDOW_MAX_POINTS = 400;
+
+/**
+ * Curve rows covering a calendar window (ascending cal BP), including the nearest row beyond
+ * each end so a band drawn from them spans the whole window; thinned evenly to at most
+ * `maxPoints` rows (first and last kept).
+ */
+export function curveWindow(
+  db: Db,
+  curveId: number,
+  fromCalBp: number,
+  toCalBp: number,
+  maxPoints = CURVE_WINDOW_MAX_POINTS,
+): CurveWindowPoint[] {
+  const lo = Math.min(fromCalBp, toCalBp);
+  const hi = Math.max(fromCalBp, toCalBp);
+  const rows = db.$client
+    .prepare(
+      `select cal_bp, c14_age_yr, c14_sigma_yr from curve_points
+       where curve_id = @id
+         and cal_bp >= coalesce((select max(cal_bp) from curve_points where curve_id = @id and cal_bp <= @lo), @lo)
+         and cal_bp <= coalesce((select min(cal_bp) from curve_points where curve_id = @id and cal_bp >= @hi), @hi)
+       order by cal_bp`,
+    )
+    .raw()
+    .all({ id: curveId, lo, hi }) as [number, number, number][];
+  const n = rows.length;
+  const take = (r: [number, number, number]): CurveWindowPoint => ({ calBp: r[0], c14: r[1], sigma: r[2] });
+  if (n <= maxPoints) return rows.map(take);
+  const out: CurveWindowPoint[] = [];
+  const stride = (n - 1) / (maxPoints - 1);
+  for (let k = 0; k < maxPoints; k++) out.push(take(rows[Math.round(k * stride)]!));
+  return out;
+}

@@ -7,6 +7,8 @@ export type NavItem = { to: string; label: string; roles: Role[] | "public" | "s
  * enforce the same rule, this list only keeps people from seeing links they cannot follow.
  */
 export const NAV_ITEMS: NavItem[] = [
+  { to: "/calibrate", label: "Calibrate", roles: "public" },
+  { to: "/curves", label: "Curves", roles: ["editor"] },
   { to: "/explore", label: "Explore", roles: "signed-in" },
   { to: "/map", label: "Map", roles: "signed-in" },
 ];
