@@ -4,7 +4,7 @@
 import { groupThousands } from "./calendar.ts";
 import { SUPER_BLOCK, type PreparedCurve } from "./curve.ts";
 import { expNonPositive } from "./fastexp.ts";
-import { finishDensity, summariseDensity, type CalendarDensity, type DensitySummary } from "./density.ts";
+import { finishAndSummarise, type CalendarDensity, type DensitySummary } from "./density.ts";
 
 export {
   normalDensity,
@@ -141,8 +141,7 @@ export function calibrate(prepared: PreparedCurve, input: CalibrationInput): Cal
     }
   }
 
-  const density = finishDensity(work, 0, span, prepared.startCalBp + g0, max);
-  const summary = summariseDensity(density);
+  const { density, summary } = finishAndSummarise(work, 0, span, prepared.startCalBp + g0, max);
   const first = density.startCalBp;
   const last = first + density.values.length - 1;
   return {

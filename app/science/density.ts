@@ -62,9 +62,9 @@ function hpdThresholds(values: Float32Array, max: number, total: number, levels:
     before.push(cum);
   }
   const members = buckets.map(() => [] as number[]);
-  // Only values at or above the lowest boundary bucket can belong to one.
-  const lowest = Math.min(...buckets);
-  const minValue = lowest / scale;
+  // Only values near or above the lowest boundary bucket can belong to one; the half-bucket
+  // margin keeps rounding in v·scale from excluding a member.
+  const minValue = (Math.min(...buckets) - 0.5) / scale;
   for (let i = 0; i < n; i++) {
     const v = values[i];
     if (v < minValue || v <= 0) continue;
@@ -85,8 +85,19 @@ function hpdThresholds(values: Float32Array, max: number, total: number, levels:
   });
 }
 
-/** Runs of grid points at or above each threshold (t95 ≤ t68), both found in one pass. */
-function rangesAboveBoth(values: Float32Array, start: number, t68: number, t95: number): [Range[], Range[]] {
+/**
+ * Runs of grid points at or above each threshold (t95 ≤ t68), and the median, in one pass.
+ * The median treats each year's probability as spread evenly over that year.
+ */
+function rangesAndMedian(
+  values: Float32Array,
+  start: number,
+  t68: number,
+  t95: number,
+  half: number,
+): { r68: Range[]; r95: Range[]; median: number } {
+  let cum = 0;
+  let median = Number.NaN;
   const r68: Range[] = [];
   const r95: Range[] = [];
   const n = values.length;
@@ -96,6 +107,8 @@ function rangesAboveBoth(values: Float32Array, start: number, t68: number, t95: 
   let p95 = 0;
   for (let i = 0; i <= n; i++) {
     const v = i < n ? values[i] : 0;
+    if (median !== median && v > 0 && cum + v >= half) median = start + i - 0.5 + (half - cum) / v;
+    cum += v;
     const in95 = v >= t95 && v > 0;
     const in68 = in95 && v >= t68;
     if (in95) {
@@ -119,7 +132,8 @@ function rangesAboveBoth(values: Float32Array, start: number, t68: number, t95: 
       open68 = -1;
     }
   }
-  return [r68.reverse(), r95.reverse()];
+  if (median !== median) median = start + n - 1;
+  return { r68: r68.reverse(), r95: r95.reverse(), median };
 }
 
 /**
@@ -130,31 +144,35 @@ function rangesAboveBoth(values: Float32Array, start: number, t68: number, t95: 
  * a symmetric density centred on a grid year has that year as its median.
  */
 export function summariseDensity(density: CalendarDensity): DensitySummary {
-  const { values, startCalBp: start } = density;
-  const n = values.length;
+  return summariseWithStats(density, densityStats(density.values));
+}
+
+interface DensityStats {
+  total: number;
+  max: number;
+  /** Σ i·v_i, for the mean. */
+  moment: number;
+}
+
+function densityStats(values: Float32Array): DensityStats {
   let total = 0;
   let max = 0;
   let moment = 0;
-  for (let i = 0; i < n; i++) {
+  for (let i = 0; i < values.length; i++) {
     const v = values[i];
     total += v;
     moment += i * v;
     if (v > max) max = v;
   }
+  return { total, max, moment };
+}
+
+function summariseWithStats(density: CalendarDensity, stats: DensityStats): DensitySummary {
+  const { values, startCalBp: start } = density;
+  const { total, max, moment } = stats;
   if (!(total > 0)) throw new Error("The density is empty.");
-  const half = total / 2;
-  let cum = 0;
-  let median = start + n - 1;
-  for (let i = 0; i < n; i++) {
-    const v = values[i];
-    if (cum + v >= half && v > 0) {
-      median = start + i - 0.5 + (half - cum) / v;
-      break;
-    }
-    cum += v;
-  }
   const [t68, t95] = hpdThresholds(values, max, total, [HPD_68, HPD_95]);
-  const [r68, r95] = rangesAboveBoth(values, start, t68, t95);
+  const { r68, r95, median } = rangesAndMedian(values, start, t68, t95, total / 2);
   return {
     medianCalBp: median,
     meanCalBp: start + moment / total,
@@ -172,27 +190,47 @@ function scaleP(ranges: Range[], total: number): Range[] {
  * Turns unnormalised grid values into a stored density: drops negligible tails at both ends
  * and normalises what is left to sum to 1. `work[i]` belongs to calendar age `start + i`.
  */
-export function finishDensity(
+export function finishDensity(work: ArrayLike<number>, from: number, to: number, start: number): CalendarDensity {
+  let max = 0;
+  for (let i = from; i < to; i++) if (work[i] > max) max = work[i];
+  return finishAndSummarise(work, from, to, start, max).density;
+}
+
+/**
+ * finishDensity followed by summariseDensity, sharing the pass that writes the stored values:
+ * the summary is computed from the stored float32 values in the same order, so it is
+ * identical to summariseDensity(density).
+ */
+export function finishAndSummarise(
   work: ArrayLike<number>,
   from: number,
   to: number,
   start: number,
-  knownMax?: number,
-): CalendarDensity {
-  let max = knownMax ?? 0;
-  if (knownMax === undefined) for (let i = from; i < to; i++) if (work[i] > max) max = work[i];
+  max: number,
+): { density: CalendarDensity; summary: DensitySummary } {
   if (!(max > 0)) throw new Error("The density is zero everywhere.");
   const floor = max * DENSITY_TRIM;
   let a = from;
   while (work[a] < floor) a++;
   let b = to - 1;
   while (work[b] < floor) b--;
-  let total = 0;
-  for (let i = a; i <= b; i++) total += work[i];
+  let raw = 0;
+  for (let i = a; i <= b; i++) raw += work[i];
   const values = new Float32Array(b - a + 1);
-  const inv = 1 / total;
-  for (let i = a; i <= b; i++) values[i - a] = work[i] * inv;
-  return { startCalBp: start + a, values };
+  const inv = 1 / raw;
+  let total = 0;
+  let vmax = 0;
+  let moment = 0;
+  for (let i = a; i <= b; i++) {
+    const v = Math.fround(work[i] * inv);
+    const j = i - a;
+    values[j] = v;
+    total += v;
+    moment += j * v;
+    if (v > vmax) vmax = v;
+  }
+  const density = { startCalBp: start + a, values };
+  return { density, summary: summariseWithStats(density, { total, max: vmax, moment }) };
 }
 
 /**

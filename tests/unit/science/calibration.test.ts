@@ -173,6 +173,11 @@ describe("calibration on the published curves", () => {
             : calibrate(marine, { age: x.age, error: x.error, deltaR: x.deltaR, deltaRError: x.deltaRError });
         expect(sum(r.density.values)).toBeCloseTo(1, 5);
         expect(inside(r.hpd68, r.hpd95)).toBe(true);
+        // The stored density alone reproduces the reported summary exactly.
+        const again = summariseDensity(r.density);
+        expect(again.medianCalBp).toBe(r.medianCalBp);
+        expect(again.hpd68).toEqual(r.hpd68);
+        expect(again.hpd95).toEqual(r.hpd95);
         const p68 = sum(r.hpd68.map((q) => q.p));
         const p95 = sum(r.hpd95.map((q) => q.p));
         expect(p68).toBeGreaterThanOrEqual(0.683 - 1e-6);
