@@ -138,8 +138,10 @@ export function normaliseMeasurement(input: NormalisationInput): NormalisedMeasu
   let f: number;
   let sf: number;
   if (m.f14c !== undefined) {
-    if (!Number.isFinite(m.f14c) || m.f14c < 0) {
-      throw new RadiocarbonInputError("F14C must be a number of zero or more.", "f14c");
+    // A blank-corrected F14C can fall slightly below zero near background; that is still a
+    // measurement (it yields a limit), so only non-numbers are refused here.
+    if (!Number.isFinite(m.f14c)) {
+      throw new RadiocarbonInputError("F14C must be a number.", "f14c");
     }
     f = m.f14c;
     sf = m.error;
@@ -240,6 +242,13 @@ export function interpretRadiocarbon(input: RadiocarbonInput): RadiocarbonInterp
     };
   }
   if (isNearBackground(n.f14c, n.f14cError)) {
+    if (!(n.f14c + 2 * n.f14cError > 0)) {
+      return {
+        kind: "invalid",
+        field: "f14c",
+        message: "F14C is below zero by more than twice its error; check the value and its error.",
+      };
+    }
     const minAge = limitAgeFromF14c(n.f14c, n.f14cError);
     return {
       kind: "limit",
@@ -261,6 +270,9 @@ export function interpretRadiocarbon(input: RadiocarbonInput): RadiocarbonInterp
         `F14C ${n.f14c.toFixed(4)} is above 1 (age ${fmtYears(n.age)} BP): a post-bomb sample, ` +
         `which the bundled curves (ending at AD 1950) cannot calibrate.`,
     };
+  }
+  if (!Number.isFinite(n.age) || !Number.isFinite(n.ageError)) {
+    return { kind: "invalid", field: "f14c", message: "F14C must be greater than zero to give an age." };
   }
   if (!(n.ageError > 0)) {
     return { kind: "invalid", field: "error", message: "The error must be greater than zero to calibrate." };

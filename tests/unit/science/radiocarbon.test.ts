@@ -121,6 +121,19 @@ describe("interpretRadiocarbon", () => {
     expect(r.kind).toBe("age");
   });
 
+  it("treats a slightly negative blank-corrected F14C as a limit, and refuses impossible ones", () => {
+    const r = interpretRadiocarbon({ measurement: { f14c: -0.0002, error: 0.0008 }, alreadyNormalised: true });
+    expect(r).toMatchObject({ kind: "limit", minAge: expect.closeTo(f14cToAge(0.0014), 6) });
+    expect(interpretRadiocarbon({ measurement: { f14c: -0.01, error: 0.001 }, alreadyNormalised: true })).toMatchObject({
+      kind: "invalid",
+      field: "f14c",
+    });
+    expect(interpretRadiocarbon({ measurement: { f14c: 0, error: 0 }, alreadyNormalised: true })).toMatchObject({
+      kind: "invalid",
+      field: "f14c",
+    });
+  });
+
   it("stores a lab-reported greater-than age as a limit", () => {
     const r = interpretRadiocarbon({ measurement: { age: 45000, error: 0 }, alreadyNormalised: true, reportedAsLimit: true });
     expect(r).toMatchObject({ kind: "limit", minAge: 45000 });
