@@ -339,6 +339,9 @@ export const calibrations = sqliteTable(
   (t) => [
     index("cal_det_idx").on(t.determinationId),
     index("cal_current_median_idx").on(t.isCurrent, t.medianCalBp),
+    // Joining a determination to its current calibration: without both columns the planner may pick
+    // cal_current_median_idx and scan every current calibration per row.
+    index("cal_det_current_idx").on(t.determinationId, t.isCurrent),
   ],
 );
 

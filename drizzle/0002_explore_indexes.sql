@@ -1,0 +1,1 @@
+CREATE INDEX `cal_det_current_idx` ON `calibrations` (`determination_id`,`is_current`);
