@@ -44,7 +44,7 @@ export function insertSample(db: Db, values: NewSample): SampleRow {
 export function insertDetermination(db: Db, values: NewDetermination, actorId: number | null): DeterminationRow {
   return db.$client.transaction(() => {
     const row = insertRow(db, determinations, values);
-    insertRow(db, auditLog, {
+    insertRowOnly(db, auditLog, {
       at: row.createdAt,
       actorId,
       action: "determination.create",
@@ -62,19 +62,26 @@ export function insertDetermination(db: Db, values: NewDetermination, actorId: n
 // table and column set, and convert values with the schema's own column mappings.
 const statementCache = new WeakMap<Database.Database, Map<string, Database.Statement>>();
 
-function insertRow<T extends SQLiteTable>(db: Db, table: T, values: T["$inferInsert"]): T["$inferSelect"] {
-  const columns = getTableColumns(table) as Record<string, Column>;
-  const record = values as Record<string, unknown>;
-  const keys = Object.keys(record).filter((k) => record[k] !== undefined && k in columns);
-  const name = getTableName(table);
-  const text = `insert into "${name}" (${keys.map((k) => `"${columns[k].name}"`).join(", ")}) values (${keys
-    .map(() => "?")
-    .join(", ")}) returning *`;
+function prepared(db: Db, text: string): Database.Statement {
   let cache = statementCache.get(db.$client);
   if (!cache) statementCache.set(db.$client, (cache = new Map()));
   let stmt = cache.get(text);
   if (!stmt) cache.set(text, (stmt = db.$client.prepare(text)));
-  const params = keys.map((k) => (record[k] === null ? null : columns[k].mapToDriverValue(record[k])));
+  return stmt;
+}
+
+function insertStatement(db: Db, table: SQLiteTable, values: Record<string, unknown>, returning: boolean) {
+  const columns = getTableColumns(table) as Record<string, Column>;
+  const keys = Object.keys(values).filter((k) => values[k] !== undefined && k in columns);
+  const text = `insert into "${getTableName(table)}" (${keys.map((k) => `"${columns[k].name}"`).join(", ")}) values (${keys
+    .map(() => "?")
+    .join(", ")})${returning ? " returning *" : ""}`;
+  const params = keys.map((k) => (values[k] === null ? null : columns[k].mapToDriverValue(values[k])));
+  return { stmt: prepared(db, text), params, columns };
+}
+
+function insertRow<T extends SQLiteTable>(db: Db, table: T, values: T["$inferInsert"]): T["$inferSelect"] {
+  const { stmt, params, columns } = insertStatement(db, table, values as Record<string, unknown>, true);
   const raw = stmt.get(...params) as Record<string, unknown>;
   const row: Record<string, unknown> = {};
   for (const [key, col] of Object.entries(columns)) {
@@ -82,6 +89,12 @@ function insertRow<T extends SQLiteTable>(db: Db, table: T, values: T["$inferIns
     row[key] = v === null || v === undefined ? null : col.mapFromDriverValue(v);
   }
   return row as T["$inferSelect"];
+}
+
+/** Insert without reading the row back (cheaper; for rows nobody needs returned, such as audit entries). */
+function insertRowOnly<T extends SQLiteTable>(db: Db, table: T, values: T["$inferInsert"]): void {
+  const { stmt, params } = insertStatement(db, table, values as Record<string, unknown>, false);
+  stmt.run(...params);
 }
 
 /** The row as the audit log keeps it: plain JSON, timestamps as ISO strings. */
