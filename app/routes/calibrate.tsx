@@ -326,7 +326,7 @@ export default function CalibratePage({ loaderData, actionData }: Route.Componen
       {plot ? (
         <section aria-labelledby="plot-heading" className="space-y-3">
           <h2 id="plot-heading">Plot{target && plottable.length > 1 ? `: ${target.id}` : ""}</h2>
-          <CalibrationPlot {...plot} scale={scale} heading={target?.id} />
+          <CalibrationPlot {...plot} scale={scale} heading={plottable.length > 1 ? target?.id : undefined} />
         </section>
       ) : plotPending ? (
         <p className="text-muted">Drawing the plot…</p>

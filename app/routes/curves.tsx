@@ -123,8 +123,10 @@ export async function action({ request }: Route.ActionArgs) {
         );
       } catch (error) {
         if (!(error instanceof CurveImportError)) throw error;
+        // The headline ("… is not a valid curve", "… does not match its published values"), then each problem.
+        const headline = error.message.split(": ")[0]!;
         const lines = error.issues.length
-          ? error.issues.slice(0, 8).map((i) => (i.line ? `Line ${i.line}: ${i.message}` : i.message))
+          ? [`${headline}:`, ...error.issues.slice(0, 8).map((i) => (i.line ? `Line ${i.line}: ${i.message}` : i.message))]
           : [error.message];
         if (error.issues.length > 8) lines.push(`… and ${error.issues.length - 8} more problems.`);
         return data({ result: submission.reply({ fieldErrors: { file: lines } }) }, { status: 400 });
