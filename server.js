@@ -5,6 +5,7 @@ import path from "node:path";
 import compression from "compression";
 import express from "express";
 import { createRequestHandler } from "@react-router/express";
+import { originGuard } from "./app/utils/origin-guard.js";
 
 const port = Number(process.env.PORT ?? 3000);
 const host = process.env.HOST ?? "127.0.0.1";
@@ -22,6 +23,8 @@ app.use((req, _res, next) => {
   delete req.headers["x-forwarded-for"];
   next();
 });
+// Cross-origin writes are refused before React Router sees them (pages and resource routes alike).
+app.use(originGuard({ appUrl: process.env.APP_URL, trustProxy: process.env.TRUST_PROXY === "true" }));
 app.all("/{*splat}", createRequestHandler({ build, mode: process.env.NODE_ENV }));
 
 app.listen(port, host, () => {

@@ -24,7 +24,8 @@ export async function waitForMessage(email: string, after: number): Promise<Outb
 }
 
 export function codeFrom(message: OutboxMessage): string {
-  const match = /\b(\d{6})\b/.exec(message.text ?? message.html ?? "");
+  // The sign-in message puts the code on its own line (see app/mail/templates.server.ts).
+  const match = /sign-in code:\s*([A-Z0-9]{6})\b/.exec(message.text ?? "");
   if (!match) throw new Error(`No code in message "${message.subject}"`);
   return match[1]!;
 }
