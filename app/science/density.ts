@@ -30,59 +30,66 @@ export const HPD_95 = 0.954;
 export const DENSITY_TRIM = 1e-6;
 
 const N_BUCKETS = 512;
+const TOP = N_BUCKETS - 1;
+/** Sum of the values falling in each of N_BUCKETS equal slices of [0, max]. */
 const bucketSum = new Float64Array(N_BUCKETS);
 
-/**
- * Density levels above which the grid points hold each of `levels` (ascending) of the total:
- * the same result as sorting all points from highest down and accumulating, but only the value
- * bucket where a target is crossed gets sorted, which keeps a calibration well under 0.1 ms.
- */
-function hpdThresholds(values: Float32Array, max: number, total: number, levels: readonly number[]): number[] {
-  const n = values.length;
-  const scale = N_BUCKETS / max;
-  const top = N_BUCKETS - 1;
+function fillBuckets(values: Float32Array, scale: number): void {
   bucketSum.fill(0);
-  for (let i = 0; i < n; i++) {
-    const v = values[i];
-    if (v <= 0) continue;
-    const k = (v * scale) | 0;
-    bucketSum[k > top ? top : k] += v;
+  for (let i = 0; i < values.length; i++) {
+    const k = (values[i] * scale) | 0;
+    bucketSum[k > TOP ? TOP : k] += values[i];
   }
-  const buckets: number[] = [];
-  const before: number[] = [];
+}
+
+/**
+ * Density levels above which the grid points hold 68.3 % and 95.4 % of the total: the same
+ * result as sorting all points from highest down and accumulating, but only the value bucket
+ * where a target is crossed gets sorted. Expects bucketSum filled with the same `scale`; the
+ * result does not depend on the scale, only the work does.
+ */
+function hpdThresholds(values: Float32Array, scale: number, total: number): [number, number] {
+  const target68 = HPD_68 * total;
+  const target95 = HPD_95 * total;
   let cum = 0;
-  let k = top;
-  for (const level of levels) {
-    const target = level * total;
-    for (; k > 0; k--) {
-      if (cum + bucketSum[k] >= target) break;
-      cum += bucketSum[k];
-    }
-    buckets.push(k);
-    before.push(cum);
+  let k = TOP;
+  for (; k > 0; k--) {
+    if (cum + bucketSum[k] >= target68) break;
+    cum += bucketSum[k];
   }
-  const members = buckets.map(() => [] as number[]);
-  // Only values near or above the lowest boundary bucket can belong to one; the half-bucket
+  const k68 = k;
+  const before68 = cum;
+  for (; k > 0; k--) {
+    if (cum + bucketSum[k] >= target95) break;
+    cum += bucketSum[k];
+  }
+  const k95 = k;
+  const before95 = cum;
+  const m68: number[] = [];
+  const m95: number[] = [];
+  // Only values near or above the lower boundary bucket can belong to one; the half-bucket
   // margin keeps rounding in v·scale from excluding a member.
-  const minValue = (Math.min(...buckets) - 0.5) / scale;
-  for (let i = 0; i < n; i++) {
+  const minValue = (k95 - 0.5) / scale;
+  for (let i = 0; i < values.length; i++) {
     const v = values[i];
-    if (v < minValue || v <= 0) continue;
+    if (v < minValue) continue;
     let kb = (v * scale) | 0;
-    if (kb > top) kb = top;
-    for (let j = 0; j < buckets.length; j++) if (kb === buckets[j]) members[j].push(v);
+    if (kb > TOP) kb = TOP;
+    if (kb === k68) m68.push(v);
+    if (kb === k95) m95.push(v);
   }
-  return levels.map((level, j) => {
-    const target = level * total;
-    const m = members[j].sort((a, b) => b - a);
-    let c = before[j];
-    for (const v of m) {
-      c += v;
-      if (c >= target) return v;
-    }
-    // Rounding can leave the target a hair out of reach; then every positive point is taken.
-    return m.length ? m[m.length - 1] : Number.MIN_VALUE;
-  });
+  return [crossing(m68, before68, target68), crossing(m95, before95, target95)];
+}
+
+function crossing(members: number[], before: number, target: number): number {
+  members.sort((a, b) => b - a);
+  let c = before;
+  for (const v of members) {
+    c += v;
+    if (c >= target) return v;
+  }
+  // Rounding can leave the target a hair out of reach; then every positive point is taken.
+  return members.length ? members[members.length - 1] : Number.MIN_VALUE;
 }
 
 /**
@@ -152,6 +159,8 @@ interface DensityStats {
   max: number;
   /** Σ i·v_i, for the mean. */
   moment: number;
+  /** Set when bucketSum was already filled with this scale. */
+  scale?: number;
 }
 
 function densityStats(values: Float32Array): DensityStats {
@@ -171,7 +180,9 @@ function summariseWithStats(density: CalendarDensity, stats: DensityStats): Dens
   const { values, startCalBp: start } = density;
   const { total, max, moment } = stats;
   if (!(total > 0)) throw new Error("The density is empty.");
-  const [t68, t95] = hpdThresholds(values, max, total, [HPD_68, HPD_95]);
+  const scale = stats.scale ?? N_BUCKETS / max;
+  if (stats.scale === undefined) fillBuckets(values, scale);
+  const [t68, t95] = hpdThresholds(values, scale, total);
   const { r68, r95, median } = rangesAndMedian(values, start, t68, t95, total / 2);
   return {
     medianCalBp: median,
@@ -198,8 +209,8 @@ export function finishDensity(work: ArrayLike<number>, from: number, to: number,
 
 /**
  * finishDensity followed by summariseDensity, sharing the pass that writes the stored values:
- * the summary is computed from the stored float32 values in the same order, so it is
- * identical to summariseDensity(density).
+ * the summary is computed from the stored float32 values, so summariseDensity(density) gives
+ * the same result (up to summation rounding at an exact tie with a target).
  */
 export function finishAndSummarise(
   work: ArrayLike<number>,
@@ -221,6 +232,10 @@ export function finishAndSummarise(
   let total = 0;
   let vmax = 0;
   let moment = 0;
+  // Buckets are filled here too, saving a pass; max·inv is the stored peak up to rounding,
+  // which the top bucket's clamp absorbs.
+  const scale = N_BUCKETS / (max * inv);
+  bucketSum.fill(0);
   for (let i = a; i <= b; i++) {
     const v = Math.fround(work[i] * inv);
     const j = i - a;
@@ -228,9 +243,11 @@ export function finishAndSummarise(
     total += v;
     moment += j * v;
     if (v > vmax) vmax = v;
+    const k = (v * scale) | 0;
+    bucketSum[k > TOP ? TOP : k] += v;
   }
   const density = { startCalBp: start + a, values };
-  return { density, summary: summariseWithStats(density, { total, max: vmax, moment }) };
+  return { density, summary: summariseWithStats(density, { total, max: vmax, moment, scale }) };
 }
 
 /**
