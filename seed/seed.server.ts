@@ -78,16 +78,16 @@ export async function seedDemo(db: Db, options: SeedOptions): Promise<SeedResult
     if (!activeCurve(db, "intcal20") || !activeCurve(db, "marine20")) await importBundledCurves(db);
   });
 
-  await stage("check existing data", () => {
+  const mustReset = await stage("check existing data", () => {
     const count = db.$client.prepare("select count(*) as n from determinations").get() as { n: number };
-    if (count.n > 0) {
-      if (!options.reset) {
-        throw new SeedRefusedError(
-          `The database already holds ${count.n} determinations; seeding would mix the demo with them. Run with --reset to replace the demo data.`,
-        );
-      }
-      resetDemoData(db);
+    if (count.n === 0) return false;
+    if (!options.reset) {
+      throw new SeedRefusedError(
+        `The database already holds ${count.n} determinations; seeding would mix the demo with them. Run with --reset to replace the demo data.`,
+      );
     }
+    assertOnlyDemoData(db);
+    return true;
   });
 
   const scenario = await stage("generate scenario", () => {
@@ -96,7 +96,13 @@ export async function seedDemo(db: Db, options: SeedOptions): Promise<SeedResult
     return generateScenario({ land: loadLand("50m"), intcal, marine }, { size: options.size, seed: options.seed });
   });
 
-  const written = await stage("write registry", () => writeScenario(db, scenario));
+  // The reset and the new data share one transaction: a failure leaves the old demo in place.
+  const written = await stage(mustReset ? "reset and write registry" : "write registry", () =>
+    db.$client.transaction(() => {
+      if (mustReset) resetDemoData(db);
+      return writeScenario(db, scenario);
+    })(),
+  );
 
   let calibrated = 0;
   let calibrationFailures = 0;
@@ -117,7 +123,7 @@ export async function seedDemo(db: Db, options: SeedOptions): Promise<SeedResult
   };
 }
 
-/** Everything in one transaction: a failure leaves the database as it was. */
+/** Runs inside one transaction (its own, or the caller's): a failure leaves the database as it was. */
 function writeScenario(db: Db, scenario: Scenario) {
   const now = Date.now();
   const at = (daysAgo: number, salt: number) => new Date(now - daysAgo * DAY_MS - (salt % 43_200) * 1000);
@@ -225,13 +231,9 @@ function writeScenario(db: Db, scenario: Scenario) {
   })();
 }
 
-/**
- * Removes the demo data, children before parents. Refuses when the registry holds
- * determinations that are not demo data (no scenario truth), so real work is never deleted.
- */
-export function resetDemoData(db: Db) {
-  const sqlite = db.$client;
-  const foreign = sqlite
+/** Demo determinations are exactly those with a scenario truth row; anything else is real work. */
+function assertOnlyDemoData(db: Db) {
+  const foreign = db.$client
     .prepare("select count(*) as n from determinations where id not in (select determination_id from scenario_truth)")
     .get() as { n: number };
   if (foreign.n > 0) {
@@ -239,6 +241,15 @@ export function resetDemoData(db: Db) {
       `The database holds ${foreign.n} determinations that are not demo data; --reset only replaces demo data. Use a fresh database.`,
     );
   }
+}
+
+/**
+ * Removes the demo data, children before parents. Refuses when the registry holds
+ * determinations that are not demo data, so real work is never deleted.
+ */
+export function resetDemoData(db: Db) {
+  const sqlite = db.$client;
+  assertOnlyDemoData(db);
   const demo = "(select determination_id from scenario_truth)";
   db.transaction(() => {
     const siteIds = sqlite
