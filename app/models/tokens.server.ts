@@ -4,6 +4,7 @@ import type { Db } from "#app/db/client.server.ts";
 import { apiTokens, users } from "#app/db/schema.ts";
 import { audit, type DbOrTx } from "#app/models/audit.server.ts";
 import { rolesOf, type SessionUser } from "#app/auth/session.server.ts";
+import { sortRoles } from "#app/models/users.server.ts";
 
 /** Tokens look like `thw_<43 url-safe characters>`; only their SHA-256 is stored. */
 const TOKEN_PREFIX = "thw_";
@@ -104,5 +105,5 @@ export function userForToken(db: Db, token: string): (SessionUser & { tokenId: n
     .get();
   if (!row) return null;
   db.update(apiTokens).set({ lastUsedAt: new Date() }).where(eq(apiTokens.id, row.tokenId)).run();
-  return { id: row.id, email: row.email, name: row.name, roles: rolesOf(row.id), tokenId: row.tokenId };
+  return { id: row.id, email: row.email, name: row.name, roles: sortRoles(rolesOf(row.id)), tokenId: row.tokenId };
 }
