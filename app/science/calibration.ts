@@ -38,12 +38,11 @@ export interface CalibrationResult extends DensitySummary {
 export type CalibrationErrorCode = "invalid-input" | "beyond-curve";
 
 export class CalibrationError extends Error {
-  constructor(
-    message: string,
-    readonly code: CalibrationErrorCode,
-  ) {
+  readonly code: CalibrationErrorCode;
+  constructor(message: string, code: CalibrationErrorCode) {
     super(message);
     this.name = "CalibrationError";
+    this.code = code;
   }
 }
 

@@ -114,13 +114,14 @@ export interface NormalisedMeasurement {
   correctionYears: number;
 }
 
+export type RadiocarbonField = "f14c" | "age" | "error" | "d13c";
+
 export class RadiocarbonInputError extends Error {
-  constructor(
-    message: string,
-    readonly field: "f14c" | "age" | "error" | "d13c",
-  ) {
+  readonly field: RadiocarbonField;
+  constructor(message: string, field: RadiocarbonField) {
     super(message);
     this.name = "RadiocarbonInputError";
+    this.field = field;
   }
 }
 
@@ -212,7 +213,7 @@ export type RadiocarbonInterpretation =
     }
   | { kind: "limit"; minAge: number; f14c: number; f14cError: number; message: string }
   | { kind: "postbomb"; f14c: number; f14cError: number; age: number; message: string }
-  | { kind: "invalid"; field: RadiocarbonInputError["field"]; message: string };
+  | { kind: "invalid"; field: RadiocarbonField; message: string };
 
 function fmtYears(x: number): string {
   return groupThousands(Math.round(x));
