@@ -134,7 +134,8 @@ export function calibrateDeterminations(db: Db, ids: number[]): { calibrated: nu
     return curveCache.get(name);
   };
   const sqlite = db.$client;
-  const demote = sqlite.prepare("update calibrations set is_current = 0 where determination_id = ? and is_current = 1");
+  // "+is_current" keeps SQLite on the determination index; the is_current index would scan every current row.
+  const demote = sqlite.prepare("update calibrations set is_current = 0 where determination_id = ? and +is_current = 1");
   const dropSame = sqlite.prepare(
     "delete from calibrations where determination_id = ? and coalesce(curve_id, -1) = coalesce(?, -1)",
   );
