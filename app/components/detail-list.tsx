@@ -1,0 +1,28 @@
+/** A two-column definition list for a record's fields; missing values read as an em dash. */
+export function DetailList({ items }: { items: [label: React.ReactNode, value: React.ReactNode][] }) {
+  return (
+    <dl className="grid grid-cols-[minmax(9rem,auto)_1fr] gap-x-6 gap-y-1.5">
+      {items.map(([label, value], i) => (
+        <div key={i} className="contents">
+          <dt className="text-muted">{label}</dt>
+          <dd>{value === null || value === undefined || value === "" ? <span className="text-muted">—</span> : value}</dd>
+        </div>
+      ))}
+    </dl>
+  );
+}
+
+/** A stored number as entered (up to six decimals), grouped for reading; nothing for null. */
+export function showNumber(x: number | null | undefined, unit?: string): string | null {
+  if (x === null || x === undefined) return null;
+  const s = x.toLocaleString("en", { maximumFractionDigits: 6 });
+  return unit ? `${s} ${unit}` : s;
+}
+
+/** "value ± error unit", or the value alone when there is no error. */
+export function showWithError(x: number | null | undefined, err: number | null | undefined, unit?: string): string | null {
+  if (x === null || x === undefined) return null;
+  const v = x.toLocaleString("en", { maximumFractionDigits: 6 });
+  const e = err === null || err === undefined ? "" : ` ± ${err.toLocaleString("en", { maximumFractionDigits: 6 })}`;
+  return `${v}${e}${unit ? ` ${unit}` : ""}`;
+}

@@ -1,0 +1,207 @@
+// Browser-only: Leaflet touches `window` when it loads. The `.client` suffix keeps this module
+// (and Leaflet with it) out of the server build; the map route loads it with React.lazy after hydration.
+import "leaflet/dist/leaflet.css";
+import { useEffect, useMemo, useRef } from "react";
+import L from "leaflet";
+import { MapContainer, useMap } from "react-leaflet";
+import { feature } from "topojson-client";
+import type { Feature, FeatureCollection } from "geojson";
+import type { GeometryCollection, Topology } from "topojson-specification";
+import landTopology from "world-atlas/land-50m.json";
+import { ageColourScale, gradeColour } from "#app/utils/map-colours.ts";
+import { gradeWord } from "#app/utils/labels.ts";
+import { formatYears } from "#app/utils/age-format.ts";
+
+export type ClientMapSite = {
+  id: number;
+  name: string;
+  lat: number;
+  lon: number;
+  n: number;
+  min: number | null;
+  med: number | null;
+  grade: number | null;
+};
+
+export type SiteMapProps = {
+  sites: ClientMapSite[];
+  isochrones: Feature[] | null;
+  showIsochrones: boolean;
+  colourBy: "age" | "grade";
+  /** Slider time in cal BP: sites dated older are ice-free (filled), younger still under ice (hollow). */
+  time: number | null;
+  /** The isochrone age nearest the slider, highlighted. */
+  highlightAge: number | null;
+  ageDomain: [number, number];
+  onReady: (markerCount: number) => void;
+};
+
+const LAND: FeatureCollection = (() => {
+  const topo = landTopology as unknown as Topology<{ land: GeometryCollection }>;
+  const land = feature(topo, topo.objects.land);
+  return (land.type === "FeatureCollection" ? land : { type: "FeatureCollection", features: [land] }) as FeatureCollection;
+})();
+
+function escapeHtml(s: string): string {
+  return s.replace(/[&<>"']/g, (c) => ({ "&": "&amp;", "<": "&lt;", ">": "&gt;", '"': "&quot;", "'": "&#39;" })[c]!);
+}
+
+function popupHtml(s: ClientMapSite): string {
+  const age = s.med != null ? `${formatYears(s.med)} BP (median of dates)` : "no age yet";
+  const grade = s.grade != null ? `best grade ${s.grade} ${gradeWord(s.grade)}` : "ungraded";
+  return `<div class="font-serif">
+    <p style="margin:0;font-weight:600;font-size:15px">${escapeHtml(s.name)}</p>
+    <p style="margin:2px 0 0">${s.n} determination${s.n === 1 ? "" : "s"} · ${age}</p>
+    <p style="margin:2px 0 6px">${grade}</p>
+    <a href="/sites/${s.id}">Open the site page</a>
+  </div>`;
+}
+
+function Basemap() {
+  const map = useMap();
+  useEffect(() => {
+    const layer = L.geoJSON(LAND, {
+      interactive: false,
+      style: { fillColor: "#f4f1ea", fillOpacity: 1, color: "#9aa8b3", weight: 0.7 },
+    }).addTo(map);
+    return () => {
+      layer.remove();
+    };
+  }, [map]);
+  return null;
+}
+
+function Isochrones({
+  features,
+  visible,
+  highlightAge,
+  colour,
+}: {
+  features: Feature[];
+  visible: boolean;
+  highlightAge: number | null;
+  colour: (age: number) => string;
+}) {
+  const map = useMap();
+  const layerRef = useRef<L.GeoJSON | null>(null);
+
+  useEffect(() => {
+    const layer = L.geoJSON({ type: "FeatureCollection", features } as FeatureCollection, { interactive: false });
+    layerRef.current = layer;
+    return () => {
+      layer.remove();
+      layerRef.current = null;
+    };
+  }, [features]);
+
+  useEffect(() => {
+    const layer = layerRef.current;
+    if (!layer) return;
+    if (!visible) {
+      layer.remove();
+      return;
+    }
+    if (!map.hasLayer(layer)) layer.addTo(map);
+    layer.setStyle((f) => {
+      const age = Number(f?.properties?.age_cal_bp);
+      const isHighlight = highlightAge != null && age === highlightAge;
+      const polygonal = f?.geometry.type === "Polygon" || f?.geometry.type === "MultiPolygon";
+      return isHighlight
+        ? { color: "#0f6f78", weight: 3.5, opacity: 1, fill: polygonal, fillColor: "#dcebf4", fillOpacity: 0.45 }
+        : { color: colour(age), weight: 1.2, opacity: 0.8, fill: false };
+    });
+    layer.eachLayer((l) => {
+      const f = (l as L.Path & { feature?: Feature }).feature;
+      if (highlightAge != null && Number(f?.properties?.age_cal_bp) === highlightAge) (l as L.Path).bringToFront();
+    });
+  }, [map, visible, highlightAge, colour, features]);
+  return null;
+}
+
+function SiteMarkers({
+  sites,
+  styleFor,
+  onReady,
+}: {
+  sites: ClientMapSite[];
+  styleFor: (s: ClientMapSite) => L.CircleMarkerOptions;
+  onReady: (n: number) => void;
+}) {
+  const map = useMap();
+  const markersRef = useRef<{ site: ClientMapSite; marker: L.CircleMarker }[]>([]);
+  const styleRef = useRef(styleFor);
+  styleRef.current = styleFor;
+
+  useEffect(() => {
+    const renderer = L.canvas({ padding: 0.5 });
+    const group = L.layerGroup();
+    markersRef.current = sites.map((site) => {
+      const marker = L.circleMarker([site.lat, site.lon], { renderer, ...styleRef.current(site) });
+      marker.bindPopup(() => popupHtml(site));
+      marker.bindTooltip(site.name, { direction: "top", offset: [0, -4] });
+      group.addLayer(marker);
+      return { site, marker };
+    });
+    group.addTo(map);
+    if (sites.length > 0) {
+      const bounds = L.latLngBounds(sites.map((s) => [s.lat, s.lon] as [number, number]));
+      map.fitBounds(bounds.pad(0.08), { animate: false, maxZoom: 10 });
+    }
+    onReady(sites.length);
+    return () => {
+      group.remove();
+      markersRef.current = [];
+    };
+    // onReady is a notification; a new callback identity must not rebuild thousands of markers.
+    // eslint-disable-next-line react-hooks/exhaustive-deps
+  }, [map, sites]);
+
+  useEffect(() => {
+    for (const { site, marker } of markersRef.current) marker.setStyle(styleFor(site));
+  }, [styleFor]);
+  return null;
+}
+
+export default function SiteMap(props: SiteMapProps) {
+  const { sites, isochrones, showIsochrones, colourBy, time, highlightAge, ageDomain, onReady } = props;
+  const ageScale = useMemo(() => ageColourScale(ageDomain[0], ageDomain[1]), [ageDomain]);
+  const colour = useMemo(() => (age: number) => ageScale(age), [ageScale]);
+
+  const styleFor = useMemo(
+    () =>
+      (s: ClientMapSite): L.CircleMarkerOptions => {
+        const fillColor = colourBy === "grade" ? gradeColour(s.grade) : s.med != null ? ageScale(s.med) : "#ffffff";
+        const iceFree = time == null || (s.med != null && s.med >= time);
+        if (s.med == null && colourBy === "age") {
+          return { radius: 4, color: "#5b6975", weight: 1, dashArray: "2 2", fillColor: "#ffffff", fillOpacity: 0.6 };
+        }
+        return iceFree
+          ? { radius: 5.5, color: "#0f273b", weight: 0.9, fillColor, fillOpacity: 0.95, dashArray: undefined }
+          : { radius: 4.5, color: "#1f4e72", weight: 1.6, fillColor: "#ffffff", fillOpacity: 0.15, dashArray: undefined };
+      },
+    [colourBy, time, ageScale],
+  );
+
+  const initialBounds = useMemo<L.LatLngBoundsExpression>(() => {
+    if (sites.length === 0) return [[50, -80], [62, -55]];
+    return L.latLngBounds(sites.map((s) => [s.lat, s.lon] as [number, number])).pad(0.08);
+  }, [sites]);
+
+  return (
+    <MapContainer
+      bounds={initialBounds}
+      preferCanvas
+      attributionControl={false}
+      className="h-[68vh] min-h-[420px] w-full rounded-md border border-rule"
+      style={{ background: "#e6eef3" }}
+      worldCopyJump={false}
+      keyboard
+    >
+      <Basemap />
+      {isochrones ? (
+        <Isochrones features={isochrones} visible={showIsochrones} highlightAge={highlightAge} colour={colour} />
+      ) : null}
+      <SiteMarkers sites={sites} styleFor={styleFor} onReady={onReady} />
+    </MapContainer>
+  );
+}

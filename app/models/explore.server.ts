@@ -1,0 +1,258 @@
+import { z } from "zod";
+import type { Db } from "#app/db/client.server.ts";
+import { CONSTRAINT_KINDS, METHODS, STATUSES } from "#app/db/schema.ts";
+import {
+  defaultDirection,
+  EXPLORE_PAGE_SIZE,
+  EXPLORE_SORTS,
+  GRADE_FILTERS,
+  STATUS_FILTERS,
+  type ExploreSort,
+} from "#app/utils/explore-filters.ts";
+
+export { EXPLORE_PAGE_SIZE };
+
+/*
+ * The Explore query: one filtered, sorted page of determinations plus its total count.
+ * The same filters serve the Explore page and the JSON API, so they are parsed from URL
+ * search parameters here. Everything is two SQL statements (page rows, count); no per-row queries.
+ */
+
+const blankToUndefined = (v: unknown) => (typeof v === "string" && v.trim() === "" ? undefined : v);
+const text = (max: number) =>
+  z.preprocess(blankToUndefined, z.string().trim().max(max).optional());
+const years = z.preprocess(blankToUndefined, z.coerce.number().min(-100).max(10_000_000).optional());
+
+export const exploreFiltersSchema = z.object({
+  method: z.preprocess(blankToUndefined, z.enum(METHODS).optional()),
+  material: text(100),
+  lab: z.preprocess(blankToUndefined, z.coerce.number().int().positive().optional()),
+  site: text(200),
+  kind: z.preprocess(blankToUndefined, z.enum(CONSTRAINT_KINDS).optional()),
+  status: z.preprocess(blankToUndefined, z.enum(STATUS_FILTERS).optional()),
+  grade: z.preprocess(blankToUndefined, z.enum(GRADE_FILTERS).optional()),
+  /** Measured age window in years: ¹⁴C years BP, or luminescence years (De / dose rate). */
+  ageFrom: years,
+  ageTo: years,
+  /** Window on the current calibration's median, cal BP. */
+  calFrom: years,
+  calTo: years,
+  /** Free text: lab code or site name contains. */
+  q: text(200),
+  sort: z.preprocess(blankToUndefined, z.enum(EXPLORE_SORTS).default("created")),
+  dir: z.preprocess(blankToUndefined, z.enum(["asc", "desc"]).optional()),
+  page: z.preprocess(blankToUndefined, z.coerce.number().int().min(1).max(100_000).default(1)),
+});
+
+export type ExploreFilters = z.infer<typeof exploreFiltersSchema>;
+
+/** Params as a plain object: the first value of each name. */
+function paramsObject(params: URLSearchParams): Record<string, string> {
+  const out: Record<string, string> = {};
+  for (const [k, v] of params) if (!(k in out)) out[k] = v;
+  return out;
+}
+
+/** Strict parse, for the API: a bad value is an error the caller can report with a 400. */
+export function safeParseExploreFilters(params: URLSearchParams) {
+  return exploreFiltersSchema.safeParse(paramsObject(params));
+}
+
+/**
+ * Lenient parse, for the page: a malformed value (a hand-edited URL) is dropped rather than
+ * failing the page, so the rest of a shared view still applies.
+ */
+export function parseExploreFilters(params: URLSearchParams): ExploreFilters {
+  const raw = paramsObject(params);
+  const strict = exploreFiltersSchema.safeParse(raw);
+  if (strict.success) return strict.data;
+  const bad = new Set(strict.error.issues.map((i) => String(i.path[0])));
+  for (const key of bad) delete raw[key];
+  return exploreFiltersSchema.parse(raw);
+}
+
+export type ExploreRow = {
+  id: number;
+  labCode: string;
+  siteId: number;
+  siteName: string;
+  sampleId: number;
+  fieldCode: string;
+  material: string;
+  method: (typeof METHODS)[number];
+  signal: string | null;
+  c14AgeYr: number | null;
+  c14ErrorYr: number | null;
+  f14c: number | null;
+  f14cError: number | null;
+  isLimit: boolean;
+  deGy: number | null;
+  deErrorGy: number | null;
+  doseRateGyPerKa: number | null;
+  doseRateErrorGyPerKa: number | null;
+  /** ¹⁴C years BP, or luminescence years before measurement; null when not measured. */
+  measuredAgeYr: number | null;
+  medianCalBp: number | null;
+  hpd95FromBp: number | null;
+  hpd95ToBp: number | null;
+  curveLabel: string | null;
+  constraintKind: (typeof CONSTRAINT_KINDS)[number];
+  grade: number | null;
+  status: (typeof STATUSES)[number];
+  labName: string;
+  createdAt: number;
+};
+
+export type ExploreResult = {
+  rows: ExploreRow[];
+  total: number;
+  page: number;
+  pageCount: number;
+  pageSize: number;
+};
+
+/** ¹⁴C age (from F14C when only that was given) or luminescence age in years, in SQL. */
+export const MEASURED_AGE_SQL = `(case d.method
+  when 'radiocarbon' then coalesce(d.c14_age_yr, case when d.f14c > 0 then -8033.0 * ln(d.f14c) end)
+  when 'luminescence' then d.de_gy / nullif(d.dose_rate_gy_per_ka, 0) * 1000.0
+end)`;
+
+const SORT_SQL: Record<ExploreSort, string> = {
+  labCode: "d.lab_code",
+  site: "t.name",
+  age: MEASURED_AGE_SQL,
+  cal: "c.median_cal_bp",
+  grade: "d.grade",
+  created: "d.created_at",
+};
+
+const FROM_SQL = `from determinations d
+  join samples s on s.id = d.sample_id
+  join sites t on t.id = s.site_id
+  join labs l on l.id = d.lab_id
+  left join calibrations c on c.determination_id = d.id and c.is_current = 1`;
+
+function escapeLike(s: string): string {
+  return s.replace(/[\\%_]/g, (m) => `\\${m}`);
+}
+
+function whereClause(f: ExploreFilters): { sql: string; params: unknown[] } {
+  const parts: string[] = [];
+  const params: unknown[] = [];
+  if (f.method) {
+    parts.push("d.method = ?");
+    params.push(f.method);
+  }
+  if (f.material) {
+    parts.push("s.material = ?");
+    params.push(f.material);
+  }
+  if (f.lab) {
+    parts.push("d.lab_id = ?");
+    params.push(f.lab);
+  }
+  if (f.site) {
+    parts.push("t.name like ? escape '\\'");
+    params.push(`%${escapeLike(f.site)}%`);
+  }
+  if (f.kind) {
+    parts.push("d.constraint_kind = ?");
+    params.push(f.kind);
+  }
+  if (!f.status) parts.push("d.status != 'withdrawn'");
+  else if (f.status !== "all") {
+    parts.push("d.status = ?");
+    params.push(f.status);
+  }
+  if (f.grade === "ungraded") parts.push("d.grade is null");
+  else if (f.grade) {
+    parts.push("d.grade >= ?");
+    params.push(Number(f.grade));
+  }
+  if (f.ageFrom != null || f.ageTo != null) {
+    const [lo, hi] = ordered(f.ageFrom, f.ageTo);
+    if (lo != null) {
+      parts.push(`${MEASURED_AGE_SQL} >= ?`);
+      params.push(lo);
+    }
+    if (hi != null) {
+      parts.push(`${MEASURED_AGE_SQL} <= ?`);
+      params.push(hi);
+    }
+  }
+  if (f.calFrom != null || f.calTo != null) {
+    const [lo, hi] = ordered(f.calFrom, f.calTo);
+    if (lo != null) {
+      parts.push("c.median_cal_bp >= ?");
+      params.push(lo);
+    }
+    if (hi != null) {
+      parts.push("c.median_cal_bp <= ?");
+      params.push(hi);
+    }
+  }
+  if (f.q) {
+    const like = `%${escapeLike(f.q)}%`;
+    parts.push("(d.lab_code like ? escape '\\' or t.name like ? escape '\\')");
+    params.push(like, like);
+  }
+  return { sql: parts.length ? `where ${parts.join(" and ")}` : "", params };
+}
+
+/** A window may be typed either way round (older first or younger first). */
+function ordered(a: number | undefined, b: number | undefined): [number | undefined, number | undefined] {
+  if (a != null && b != null && a > b) return [b, a];
+  return [a, b];
+}
+
+export function exploreDeterminations(db: Db, filters: ExploreFilters): ExploreResult {
+  const where = whereClause(filters);
+  const dir = (filters.dir ?? defaultDirection(filters.sort)) === "asc" ? "asc" : "desc";
+  const sortExpr = SORT_SQL[filters.sort];
+  // Missing values (uncalibrated, ungraded) always go last, whichever the direction.
+  const orderBy = `order by (${sortExpr}) is null, ${sortExpr} ${dir}, d.id ${dir}`;
+
+  const total = (
+    db.$client.prepare(`select count(*) as n ${FROM_SQL} ${where.sql}`).get(...where.params) as { n: number }
+  ).n;
+  const pageCount = Math.max(1, Math.ceil(total / EXPLORE_PAGE_SIZE));
+  const page = Math.min(filters.page, pageCount);
+
+  const raw = db.$client
+    .prepare(
+      `select d.id, d.lab_code as labCode, t.id as siteId, t.name as siteName, s.id as sampleId,
+         s.field_code as fieldCode, s.material, d.method, d.signal,
+         d.c14_age_yr as c14AgeYr, d.c14_error_yr as c14ErrorYr, d.f14c, d.f14c_error as f14cError,
+         d.is_limit as isLimit, d.de_gy as deGy, d.de_error_gy as deErrorGy,
+         d.dose_rate_gy_per_ka as doseRateGyPerKa, d.dose_rate_error_gy_per_ka as doseRateErrorGyPerKa,
+         ${MEASURED_AGE_SQL} as measuredAgeYr,
+         c.median_cal_bp as medianCalBp, c.hpd95_from_bp as hpd95FromBp, c.hpd95_to_bp as hpd95ToBp,
+         c.curve_label as curveLabel,
+         d.constraint_kind as constraintKind, d.grade, d.status, l.name as labName, d.created_at as createdAt
+       ${FROM_SQL} ${where.sql} ${orderBy} limit ? offset ?`,
+    )
+    .all(...where.params, EXPLORE_PAGE_SIZE, (page - 1) * EXPLORE_PAGE_SIZE) as (Omit<ExploreRow, "isLimit"> & {
+    isLimit: number;
+  })[];
+
+  return {
+    rows: raw.map((r) => ({ ...r, isLimit: r.isLimit === 1 })),
+    total,
+    page,
+    pageCount,
+    pageSize: EXPLORE_PAGE_SIZE,
+  };
+}
+
+/** Choices for the filter form: labs and the materials in use. */
+export function exploreFilterOptions(db: Db) {
+  const labs = db.$client.prepare("select id, name, code_prefix as codePrefix from labs order by name").all() as {
+    id: number;
+    name: string;
+    codePrefix: string;
+  }[];
+  const materials = (db.$client.prepare("select name from materials order by name").all() as { name: string }[]).map(
+    (m) => m.name,
+  );
+  return { labs, materials };
+}

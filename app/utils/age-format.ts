@@ -1,0 +1,73 @@
+// Display-only formatting of measured and calibrated ages. Values stay unrounded in the database;
+// everything here rounds for reading. Client-safe (no server imports).
+
+import { groupThousands } from "#app/science/calendar.ts";
+
+export type MeasuredAgeFields = {
+  method: string;
+  c14AgeYr: number | null;
+  c14ErrorYr: number | null;
+  f14c?: number | null;
+  f14cError?: number | null;
+  isLimit: boolean;
+  deGy: number | null;
+  deErrorGy: number | null;
+  doseRateGyPerKa: number | null;
+  doseRateErrorGyPerKa: number | null;
+};
+
+const LIBBY_MEAN_LIFE = 8033;
+
+/** Radiocarbon ages are conventionally rounded to 5 or 10 years; show the nearest whole year, grouped. */
+export function formatYears(n: number): string {
+  return groupThousands(Math.round(n));
+}
+
+/** Luminescence age and 1σ in ka (De / dose rate; relative errors in quadrature). */
+export function luminescenceKa(d: MeasuredAgeFields): { ageKa: number; errorKa: number | null } | null {
+  if (d.deGy == null || d.doseRateGyPerKa == null || !(d.doseRateGyPerKa > 0)) return null;
+  const ageKa = d.deGy / d.doseRateGyPerKa;
+  if (d.deErrorGy == null || d.doseRateErrorGyPerKa == null || !(d.deGy > 0)) return { ageKa, errorKa: null };
+  const rel = Math.hypot(d.deErrorGy / d.deGy, d.doseRateErrorGyPerKa / d.doseRateGyPerKa);
+  return { ageKa, errorKa: ageKa * rel };
+}
+
+/** "10,250 ± 45 ¹⁴C BP", "> 45,000 ¹⁴C BP", "12.3 ± 0.8 ka"; an em dash when nothing is measured. */
+export function formatMeasuredAge(d: MeasuredAgeFields): string {
+  if (d.method === "radiocarbon") {
+    let age = d.c14AgeYr;
+    let error = d.c14ErrorYr;
+    if (age == null && d.f14c != null && d.f14c > 0) {
+      age = -LIBBY_MEAN_LIFE * Math.log(d.f14c);
+      error = d.f14cError != null ? (LIBBY_MEAN_LIFE * d.f14cError) / d.f14c : null;
+    }
+    if (age == null) return "—";
+    if (d.isLimit) return `> ${formatYears(age)} ¹⁴C BP`;
+    return error != null ? `${formatYears(age)} ± ${formatYears(error)} ¹⁴C BP` : `${formatYears(age)} ¹⁴C BP`;
+  }
+  if (d.method === "luminescence") {
+    const lum = luminescenceKa(d);
+    if (!lum) return "—";
+    const digits = lum.ageKa < 10 ? 2 : 1;
+    const age = lum.ageKa.toFixed(digits);
+    return lum.errorKa != null ? `${age} ± ${lum.errorKa.toFixed(digits)} ka` : `${age} ka`;
+  }
+  return "—";
+}
+
+/** "12,345" (cal BP is said in the column heading). */
+export function formatCal(n: number | null | undefined): string {
+  return n == null ? "" : formatYears(n);
+}
+
+/** "12,900–12,400" — oldest first, as ranges in cal BP are read. */
+export function formatCalRange(from: number | null | undefined, to: number | null | undefined): string {
+  if (from == null || to == null) return "";
+  const older = Math.max(from, to);
+  const younger = Math.min(from, to);
+  return `${formatYears(older)}–${formatYears(younger)}`;
+}
+
+export function formatProbability(p: number): string {
+  return `${(p * 100).toFixed(1)} %`;
+}
