@@ -1,0 +1,221 @@
+/*
+ * Who may open what. Every route in app/routes.ts must have a row here saying what each audience
+ * gets from its loader (GET) and its action (POST); a route added without a row fails this test,
+ * and so does a row whose route is gone or whose loader/action exists on one side only.
+ *
+ * Audiences: signed-out visitors, and one person per role holding only that role. Page routes are
+ * called with the person's session cookie; routes marked `auth: "token"` with their API token.
+ */
+import path from "node:path";
+import { beforeAll, describe, expect, it } from "vitest";
+import type { RouteConfigEntry } from "@react-router/dev/routes";
+import routes from "#app/routes.ts";
+import { getDb } from "#app/db/client.server.ts";
+import { determinations, jobs, labs, samples, sites, type Role } from "#app/db/schema.ts";
+import { createSession } from "#app/auth/session.server.ts";
+import { createToken } from "#app/models/tokens.server.ts";
+import { args, get, personWithSession, post, run, type Outcome } from "#tests/support/auth.ts";
+
+const AUDIENCES = ["signed-out", "contributor", "reviewer", "modeller", "editor"] as const;
+type Audience = (typeof AUDIENCES)[number];
+
+/**
+ * ok: 200 · sign-in: redirect to /sign-in?redirectTo=… · forbidden: 403 · unauthorized: 401 ·
+ * allowed: past the access check (anything but sign-in, 401 or 403; for empty POSTs, which a
+ * correct action answers with 400) · redirect:/x: redirect elsewhere · status:N: exactly N ·
+ * none: the module has no loader/action.
+ */
+type Answer = "ok" | "sign-in" | "forbidden" | "unauthorized" | "allowed" | "none" | `redirect:${string}` | `status:${number}`;
+type PerAudience = Answer | Record<Audience, Answer>;
+
+type Row = {
+  /** The URL to request; `:name` segments are filled from the fixtures below. */
+  url: string;
+  get: PerAudience;
+  post: PerAudience;
+  auth?: "cookie" | "token";
+};
+
+const signedIn = (answer: Answer): Record<Audience, Answer> => ({
+  "signed-out": "sign-in",
+  contributor: answer,
+  reviewer: answer,
+  modeller: answer,
+  editor: answer,
+});
+
+const only = (roles: Role[], answer: Answer, signedOut: Answer = "sign-in", others: Answer = "forbidden") =>
+  Object.fromEntries(AUDIENCES.map((a) => [a, a === "signed-out" ? signedOut : roles.includes(a as Role) ? answer : others])) as Record<
+    Audience,
+    Answer
+  >;
+
+const publicButSignedInGoesOn = (to: string): Record<Audience, Answer> => ({
+  "signed-out": "ok",
+  contributor: `redirect:${to}`,
+  reviewer: `redirect:${to}`,
+  modeller: `redirect:${to}`,
+  editor: `redirect:${to}`,
+});
+
+export const ACCESS: Record<string, Row> = {
+  root: { url: "/", get: "ok", post: "none" },
+  "routes/home": { url: "/", get: "ok", post: "none" },
+  // Sign-in, sign-out, account, people, outbox, token API (issue 4)
+  "routes/sign-in": { url: "/sign-in", get: publicButSignedInGoesOn("/"), post: "allowed" },
+  "routes/sign-in.link": { url: "/sign-in/link?t=x", get: publicButSignedInGoesOn("/"), post: "allowed" },
+  "routes/sign-out": { url: "/sign-out", get: "redirect:/", post: "redirect:/" },
+  "routes/account": { url: "/account", get: signedIn("ok"), post: signedIn("allowed") },
+  "routes/people": { url: "/people", get: only(["editor"], "ok"), post: only(["editor"], "allowed") },
+  "routes/dev.outbox": { url: "/dev/outbox", get: "ok", post: "none" },
+  "routes/api/v1.me": { url: "/api/v1/me", auth: "token", get: { ...signedIn("ok"), "signed-out": "unauthorized" }, post: "none" },
+  // Reading the registry: any signed-in person
+  "routes/explore": { url: "/explore", get: signedIn("ok"), post: "none" },
+  "routes/determination": { url: "/determinations/:determinationId", get: signedIn("ok"), post: "none" },
+  "routes/site": { url: "/sites/:siteId", get: signedIn("ok"), post: "none" },
+  "routes/map": { url: "/map", get: signedIn("ok"), post: "none" },
+  "routes/api/map-sites": { url: "/api/map-sites", get: { ...signedIn("ok"), "signed-out": "unauthorized" }, post: "none" },
+  // Calibration: public (rate-limited per address)
+  "routes/calibrate": { url: "/calibrate", get: "ok", post: "allowed" },
+  "routes/api/calibrate-csv": { url: "/calibrate/results.csv", get: "status:405", post: "allowed" },
+  "routes/api/v1.calibrate": { url: "/api/v1/calibrate", get: "status:405", post: "allowed" },
+  "routes/api/curve-window": { url: "/api/curve-window?curve=intcal20&from=12500&to=11500", get: "ok", post: "none" },
+  // Curves and background jobs: editors
+  "routes/curves": { url: "/curves", get: only(["editor"], "ok"), post: only(["editor"], "allowed") },
+  "routes/api/jobs": { url: "/api/jobs/:jobId", get: only(["editor"], "ok", "unauthorized"), post: "none" },
+};
+
+type Entry = { id: string; file: string; path: string };
+
+function flatten(entries: RouteConfigEntry[], parentPath = ""): Entry[] {
+  return entries.flatMap((e) => {
+    const full = [parentPath, e.path ?? ""].filter(Boolean).join("/");
+    const id = e.id ?? e.file.replace(/\.[jt]sx?$/, "");
+    return [{ id, file: e.file, path: `/${full}` }, ...flatten(e.children ?? [], full)];
+  });
+}
+
+const ENTRIES: Entry[] = [{ id: "root", file: "root.tsx", path: "/" }, ...flatten(routes)];
+
+const fixtures: Record<string, string> = {};
+const people = {} as Record<Exclude<Audience, "signed-out">, { id: number; token: string }>;
+let cookies = {} as Record<Exclude<Audience, "signed-out">, string>;
+
+/** Fresh sessions for every route: the sign-out row ends the ones it is handed. */
+async function freshSessions() {
+  const next = {} as typeof cookies;
+  for (const [role, p] of Object.entries(people) as [Exclude<Audience, "signed-out">, { id: number }][]) {
+    next[role] = (await createSession(p.id, new Request("http://localhost/"))).cookie.split(";")[0]!;
+  }
+  cookies = next;
+}
+
+beforeAll(async () => {
+  const db = getDb();
+  for (const role of AUDIENCES.filter((a): a is Role => a !== "signed-out")) {
+    const p = await personWithSession([role], { email: `matrix-${role}@example.org` });
+    people[role] = { id: p.id, token: createToken(db, p.id, "matrix", { actorId: p.id }).token };
+  }
+  const lab = db.insert(labs).values({ name: "Matrix Test Laboratory", codePrefix: "ZZM", city: "Nowhere" }).returning().get();
+  const site = db.insert(sites).values({ name: "Matrix Test Site", latitude: 58.5, longitude: -65.5 }).returning().get();
+  const sample = db.insert(samples).values({ siteId: site.id, fieldCode: "ZZM-F1", material: "marine shell" }).returning().get();
+  const det = db
+    .insert(determinations)
+    .values({ sampleId: sample.id, labId: lab.id, labCode: "ZZM-0001", method: "radiocarbon", constraintKind: "minimum", c14AgeYr: 9500, c14ErrorYr: 45 })
+    .returning()
+    .get();
+  const job = db.insert(jobs).values({ kind: "recalibrate" }).returning().get();
+  Object.assign(fixtures, { siteId: String(site.id), determinationId: String(det.id), jobId: String(job.id) });
+});
+
+function fill(url: string): { url: string; params: Record<string, string> } {
+  const params: Record<string, string> = {};
+  const filled = url.replace(/:(\w+)/g, (_, name: string) => {
+    const value = fixtures[name];
+    if (!value) throw new Error(`No fixture for :${name}`);
+    params[name.replace(/(determination|site|job)Id$/, "id")] = value;
+    return value;
+  });
+  return { url: filled, params };
+}
+
+function requestFor(row: Row, audience: Audience, method: "GET" | "POST"): Request {
+  const { url } = fill(row.url);
+  const headers: Record<string, string> = {};
+  let cookie: string | undefined;
+  if (audience !== "signed-out") {
+    if (row.auth === "token") headers.Authorization = `Bearer ${people[audience].token}`;
+    else cookie = cookies[audience];
+  }
+  return method === "GET" ? get(url, { cookie, headers }) : post(url, {}, { cookie, headers });
+}
+
+function describeOutcome(o: Outcome): string {
+  if (o.location) return `${o.status} → ${o.location}`;
+  return String(o.status);
+}
+
+function matches(answer: Answer, o: Outcome): boolean {
+  const toSignIn = o.status >= 300 && o.status < 400 && (o.location ?? "").startsWith("/sign-in?redirectTo=");
+  switch (answer) {
+    case "ok":
+      return o.status === 200;
+    case "sign-in":
+      return toSignIn;
+    case "forbidden":
+      return o.status === 403;
+    case "unauthorized":
+      return o.status === 401;
+    case "allowed":
+      return !toSignIn && o.status !== 401 && o.status !== 403 && o.status < 500;
+    case "none":
+      return false;
+    default:
+      if (answer.startsWith("redirect:")) return o.status >= 300 && o.status < 400 && o.location === answer.slice("redirect:".length);
+      return o.status === Number(answer.slice("status:".length));
+  }
+}
+
+const answerFor = (cell: PerAudience, audience: Audience): Answer => (typeof cell === "string" ? cell : cell[audience]);
+
+describe("access matrix", () => {
+  it("has a row for every route that exists, and no row for a route that does not", () => {
+    const ids = ENTRIES.map((e) => e.id);
+    expect(ids.filter((id) => !(id in ACCESS)), "routes without an access decision").toEqual([]);
+    expect(Object.keys(ACCESS).filter((id) => !ids.includes(id)), "rows for routes that no longer exist").toEqual([]);
+  });
+
+  for (const entry of ENTRIES) {
+    const row = ACCESS[entry.id];
+    if (!row) continue;
+    it(`${entry.id} (${entry.path}) answers each audience as its row says`, async () => {
+      const mod = (await import(/* @vite-ignore */ path.resolve("app", entry.file))) as {
+        loader?: (a: unknown) => unknown;
+        action?: (a: unknown) => unknown;
+      };
+      const { params } = fill(row.url);
+      await freshSessions();
+      const problems: string[] = [];
+      for (const [method, cell, fn] of [
+        ["GET", row.get, mod.loader],
+        ["POST", row.post, mod.action],
+      ] as const) {
+        const declaredNone = AUDIENCES.every((a) => answerFor(cell, a) === "none");
+        if (!fn) {
+          if (!declaredNone) problems.push(`${method}: the row expects answers but the module has no ${method === "GET" ? "loader" : "action"}`);
+          continue;
+        }
+        if (declaredNone) {
+          problems.push(`${method}: the module has a ${method === "GET" ? "loader" : "action"} but the row says none`);
+          continue;
+        }
+        for (const audience of AUDIENCES) {
+          const expected = answerFor(cell, audience);
+          const outcome = await run(() => fn(args(requestFor(row, audience, method), params)));
+          if (!matches(expected, outcome)) problems.push(`${method} as ${audience}: expected ${expected}, got ${describeOutcome(outcome)}`);
+        }
+      }
+      expect(problems).toEqual([]);
+    });
+  }
+});
