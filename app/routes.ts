@@ -20,4 +20,13 @@ export default [
   route("api/curve-window", "routes/api/curve-window.ts"),
   route("curves", "routes/curves.tsx"),
   route("api/jobs/:id", "routes/api/jobs.ts"),
+  route("uploads", "routes/uploads.tsx"),
+  route("uploads/file", "routes/api/upload-file.ts"),
+  route("uploads/template.xlsx", "routes/api/upload-template-xlsx.ts"),
+  route("uploads/template.csv", "routes/api/upload-template-csv.ts"),
+  route("uploads/:publicId", "routes/upload.tsx"),
+  route("uploads/:publicId/errors.csv", "routes/api/upload-errors-csv.ts"),
+  route("api/v1/uploads", "routes/api/v1.uploads.ts"),
+  route("api/v1/uploads/:uploadId/commit", "routes/api/v1.uploads.commit.ts"),
+  route("api/v1/determinations", "routes/api/v1.determinations.ts"),
 ] satisfies RouteConfig;

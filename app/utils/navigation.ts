@@ -11,6 +11,7 @@ export const NAV_ITEMS: NavItem[] = [
   { to: "/curves", label: "Curves", roles: ["editor"] },
   { to: "/explore", label: "Explore", roles: "signed-in" },
   { to: "/map", label: "Map", roles: "signed-in" },
+  { to: "/uploads", label: "Upload", roles: ["contributor"] },
   { to: "/people", label: "People", roles: ["editor"] },
 ];
 
