@@ -11,11 +11,6 @@ export const CAMBRIDGE_MEAN_LIFE = 8267;
 
 export type NormalisationForm = "exact" | "linear";
 
-export interface ValueWithError {
-  value: number;
-  error: number;
-}
-
 export function f14cToAge(f14c: number): number {
   return -LIBBY_MEAN_LIFE * Math.log(f14c);
 }
