@@ -243,8 +243,9 @@ export async function requestCode(
 ): Promise<Response | SignInRefusal> {
   const email = normalizeEmail(input.email);
   const ip = clientAddress(request);
-  const perClient = hit(`sign-in:client:${ip}`, CODE_REQUESTS_PER_CLIENT.limit, CODE_REQUESTS_PER_CLIENT.windowMs);
-  const perAddress = hit(`sign-in:address:${email}`, CODE_REQUESTS_PER_ADDRESS.limit, CODE_REQUESTS_PER_ADDRESS.windowMs);
+  const factor = env().SIGN_IN_RATE_LIMIT_FACTOR;
+  const perClient = hit(`sign-in:client:${ip}`, Math.round(CODE_REQUESTS_PER_CLIENT.limit * factor), CODE_REQUESTS_PER_CLIENT.windowMs);
+  const perAddress = hit(`sign-in:address:${email}`, Math.round(CODE_REQUESTS_PER_ADDRESS.limit * factor), CODE_REQUESTS_PER_ADDRESS.windowMs);
   if (!perClient.allowed || !perAddress.allowed) {
     const wait = Math.max(perClient.retryAfterS, perAddress.retryAfterS);
     return { error: `Too many sign-in codes have been asked for. Try again ${retryWords(wait)}.`, status: 429 };

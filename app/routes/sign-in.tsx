@@ -41,6 +41,7 @@ export async function loader({ request }: Route.LoaderArgs) {
     redirectTo,
     suggestedEmail: (url.searchParams.get("email") ?? "").slice(0, 254),
     showOutbox: usesMailFake(),
+    codeMinutes: CODE_MINUTES,
   };
 }
 
@@ -78,12 +79,12 @@ export async function action({ request }: Route.ActionArgs) {
 }
 
 export default function SignIn({ loaderData, actionData }: Route.ComponentProps) {
-  const { pendingEmail, redirectTo, suggestedEmail, showOutbox } = loaderData;
+  const { pendingEmail, redirectTo, suggestedEmail, showOutbox, codeMinutes } = loaderData;
   const error = actionData?.error ?? loaderData.error;
   return (
     <div className="mx-auto max-w-md">
       {pendingEmail ? (
-        <CodeStep email={pendingEmail} error={error} lastResult={actionData?.intent === "verify" ? actionData.result : undefined} />
+        <CodeStep email={pendingEmail} minutes={codeMinutes} error={error} lastResult={actionData?.intent === "verify" ? actionData.result : undefined} />
       ) : (
         <EmailStep
           redirectTo={redirectTo}
@@ -164,7 +165,7 @@ function EmailStep(props: { redirectTo: string; suggestedEmail: string; error: s
   );
 }
 
-function CodeStep(props: { email: string; error: string | null; lastResult: LastResult }) {
+function CodeStep(props: { email: string; minutes: number; error: string | null; lastResult: LastResult }) {
   const navigation = useNavigation();
   const [form, fields] = useForm<z.input<typeof CodeSchema>, z.output<typeof CodeSchema>, string[]>({
     id: "enter-code",
@@ -178,7 +179,7 @@ function CodeStep(props: { email: string; error: string | null; lastResult: Last
       <h1>Check your mail</h1>
       <p className="mt-3">
         If <strong>{props.email}</strong> belongs to someone invited to Thawline, a message with a sign-in code
-        and a link is on its way. Both work for {CODE_MINUTES} minutes, in this browser.
+        and a link is on its way. Both work for {props.minutes} minutes, in this browser.
       </p>
       <ErrorNote message={props.error} />
       <Form method="post" {...getFormProps(form)} className="mt-6 grid gap-4">

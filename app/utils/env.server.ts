@@ -19,6 +19,8 @@ const schema = z.object({
   RESEND_BASE_URL: z.string().url().optional(),
   /** Folder the local mail fake keeps its outbox in. */
   MAIL_OUTBOX_DIR: z.string().default("data/outbox"),
+  /** Multiplies the sign-in code request limits; browser tests that sign in often raise it. */
+  SIGN_IN_RATE_LIMIT_FACTOR: z.coerce.number().positive().default(1),
   UPLOAD_MAX_BYTES: z.coerce.number().int().positive().default(10 * 1024 * 1024),
   SECURE_COOKIES: z
     .enum(["true", "false"])
