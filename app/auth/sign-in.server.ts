@@ -8,7 +8,7 @@ import { audit } from "#app/models/audit.server.ts";
 import { findActiveUserByEmail, findUserByEmail, normalizeEmail, recordSignIn } from "#app/models/users.server.ts";
 import { sendEmail } from "#app/mail/send.server.ts";
 import { signInMessage } from "#app/mail/templates.server.ts";
-import { hit } from "#app/utils/rate-limit.server.ts";
+import { exhaust, hit } from "#app/utils/rate-limit.server.ts";
 import { env } from "#app/utils/env.server.ts";
 
 /*
@@ -293,7 +293,8 @@ export async function completeSignIn(
     return restartSignIn();
   }
 
-  const tries = hit(`sign-in:code:${pending.secretHash}`, MAX_TRIES_PER_CODE, CODE_MINUTES * 60 * 1000);
+  const triesKey = `sign-in:code:${pending.secretHash}`;
+  const tries = hit(triesKey, MAX_TRIES_PER_CODE, CODE_MINUTES * 60 * 1000);
   if (!tries.allowed) {
     await failedAttempt(request, totp.email, "too many tries");
     // The code is spent: drop it from this browser and say why.
@@ -323,6 +324,9 @@ export async function completeSignIn(
     return response;
   }
 
+  // The code is stateless in the library (its secret travels in the cookie); spend it here so a
+  // copied cookie and code cannot sign in a second time.
+  exhaust(triesKey);
   const headers = new Headers();
   for (const c of response.headers.getSetCookie()) headers.append("Set-Cookie", c);
   headers.append("Set-Cookie", await pendingCookie.serialize("", { maxAge: 0 }));

@@ -255,7 +255,7 @@ function CreateTokenForm({ lastResult }: { lastResult: LastResult }) {
       <input type="hidden" name="intent" value="create-token" />
       <div className="field min-w-72">
         <label htmlFor={fields.label.id}>Name of a new token</label>
-        <input {...getInputProps(fields.label, { type: "text" })} className="input" placeholder="e.g. ensemble scoring on the cluster" />
+        <input {...getInputProps(fields.label, { type: "text" })} className="input" placeholder="e.g. cluster scripts" />
         {fields.label.errors ? (
           <p id={fields.label.errorId} className="field-error">
             {fields.label.errors[0]}

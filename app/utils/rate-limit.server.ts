@@ -29,6 +29,18 @@ export function hit(
   return { allowed: false, retryAfterS: Math.max(1, Math.ceil((row.windowStart + windowMs - now) / 1000)) };
 }
 
+/** Uses up a key's window at once (e.g. a one-time code that has been used). */
+export function exhaust(key: string, options: { db?: Db; now?: number } = {}) {
+  const db = options.db ?? getDb();
+  const now = options.now ?? Date.now();
+  db.$client
+    .prepare(
+      `insert into rate_limits (key, window_start, count) values (@key, @now, @max)
+       on conflict(key) do update set window_start = @now, count = @max`,
+    )
+    .run({ key, now, max: Number.MAX_SAFE_INTEGER });
+}
+
 /** Removes counters whose window ended long ago (housekeeping; safe to call any time). */
 export function pruneRateLimits(olderThanMs = 24 * 60 * 60 * 1000, db: Db = getDb(), now = Date.now()) {
   db.$client.prepare("delete from rate_limits where window_start < ?").run(now - olderThanMs);

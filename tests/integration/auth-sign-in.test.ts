@@ -110,6 +110,18 @@ describe("sign-in with an e-mailed code", () => {
     expect(audits[0]!.after).toEqual({ method: "code" });
   });
 
+  it("accepts a code only once, even with a copy of the cookies", async () => {
+    const p = person();
+    const { jar } = await requestCode(p.email);
+    const { code } = latestCode(p.email);
+    const copy = new CookieJar().set("_totp", jar.get("_totp")!).set("thawline_sign_in", jar.get("thawline_sign_in")!);
+    expect((await enterCode(jar, code!)).location).toBe("/");
+    const replay = await enterCode(copy, code!);
+    expect(replay.location).toBe("/sign-in");
+    expect(copy.get("thawline_session")).toBeUndefined();
+    expect(getDb().select().from(sessions).where(eq(sessions.userId, p.id)).all()).toHaveLength(1);
+  });
+
   it("refuses a wrong code, records the failed attempt, and still accepts the right one", async () => {
     const p = person();
     const { jar } = await requestCode(p.email);
