@@ -126,11 +126,23 @@ const SORT_SQL: Record<ExploreSort, string> = {
   created: "d.created_at",
 };
 
-const FROM_SQL = `from determinations d
-  join samples s on s.id = d.sample_id
-  join sites t on t.id = s.site_id
-  join labs l on l.id = d.lab_id
-  left join calibrations c on c.determination_id = d.id and c.is_current = 1`;
+/**
+ * The narrowest FROM clause a filter and sort need: SQLite does not drop unused joins, and the
+ * count and the sort over every matching row are where the time goes.
+ */
+function narrowFrom(f: ExploreFilters, forSort: boolean): string {
+  const needSite = !!(f.site || f.q) || (forSort && f.sort === "site");
+  const needSample = needSite || !!f.material;
+  const needCal = f.calFrom != null || f.calTo != null || (forSort && f.sort === "cal");
+  return [
+    "from determinations d",
+    needSample ? "join samples s on s.id = d.sample_id" : "",
+    needSite ? "join sites t on t.id = s.site_id" : "",
+    needCal ? "left join calibrations c on c.determination_id = d.id and c.is_current = 1" : "",
+  ]
+    .filter(Boolean)
+    .join("\n  ");
+}
 
 function escapeLike(s: string): string {
   return s.replace(/[\\%_]/g, (m) => `\\${m}`);
@@ -209,15 +221,20 @@ export function exploreDeterminations(db: Db, filters: ExploreFilters): ExploreR
   const where = whereClause(filters);
   const dir = (filters.dir ?? defaultDirection(filters.sort)) === "asc" ? "asc" : "desc";
   const sortExpr = SORT_SQL[filters.sort];
-  // Missing values (uncalibrated, ungraded) always go last, whichever the direction.
-  const orderBy = `order by (${sortExpr}) is null, ${sortExpr} ${dir}, d.id ${dir}`;
+  // Missing values (uncalibrated, ungraded) always go last, whichever the direction; lab codes and
+  // creation times are never missing, and leaving the test out lets an index serve the order.
+  const nullsLast = filters.sort === "labCode" || filters.sort === "created" ? "" : `(${sortExpr}) is null, `;
+  const orderBy = `order by ${nullsLast}${sortExpr} ${dir}, d.id ${dir}`;
 
   const total = (
-    db.$client.prepare(`select count(*) as n ${FROM_SQL} ${where.sql}`).get(...where.params) as { n: number }
+    db.$client.prepare(`select count(*) as n ${narrowFrom(filters, false)} ${where.sql}`).get(...where.params) as {
+      n: number;
+    }
   ).n;
   const pageCount = Math.max(1, Math.ceil(total / EXPLORE_PAGE_SIZE));
   const page = Math.min(filters.page, pageCount);
 
+  // Sort and cut the page on ids alone, then fetch the full rows for those 50.
   const raw = db.$client
     .prepare(
       `select d.id, d.lab_code as labCode, t.id as siteId, t.name as siteName, s.id as sampleId,
@@ -229,7 +246,13 @@ export function exploreDeterminations(db: Db, filters: ExploreFilters): ExploreR
          c.median_cal_bp as medianCalBp, c.hpd95_from_bp as hpd95FromBp, c.hpd95_to_bp as hpd95ToBp,
          c.curve_label as curveLabel,
          d.constraint_kind as constraintKind, d.grade, d.status, l.name as labName, d.created_at as createdAt
-       ${FROM_SQL} ${where.sql} ${orderBy} limit ? offset ?`,
+       from (select d.id as pageId ${narrowFrom(filters, true)} ${where.sql} ${orderBy} limit ? offset ?) p
+       join determinations d on d.id = p.pageId
+       join samples s on s.id = d.sample_id
+       join sites t on t.id = s.site_id
+       join labs l on l.id = d.lab_id
+       left join calibrations c on c.determination_id = d.id and c.is_current = 1
+       ${orderBy}`,
     )
     .all(...where.params, EXPLORE_PAGE_SIZE, (page - 1) * EXPLORE_PAGE_SIZE) as (Omit<ExploreRow, "isLimit"> & {
     isLimit: number;

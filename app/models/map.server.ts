@@ -4,8 +4,10 @@ import { MEASURED_AGE_SQL } from "#app/models/explore.server.ts";
 
 /*
  * Data for the map: one compact row per site, and the demo margin reconstruction's isochrones.
- * A site's age is the median of its dates' ages (calibrated median, else measured age), leaving
- * out rejected dates and greater-than limits when anything else is left; withdrawn never count.
+ * A site's age is its deglaciation age: the median of its minimum-limiting and direct dates'
+ * ages (calibrated median, else measured age), leaving out rejected dates and greater-than limits
+ * when anything else is left. Maximum-limiting dates (ice advanced after them) and withdrawn ones
+ * never count towards it; a site dated only by those has no age on the map.
  */
 
 export type MapSite = {
@@ -15,7 +17,7 @@ export type MapSite = {
   lon: number;
   /** Determinations at the site (not withdrawn). */
   n: number;
-  /** Youngest and median age in years BP (cal BP where calibrated); null when nothing is dated. */
+  /** Youngest and median deglaciation age in years BP (cal BP where calibrated); null when none. */
   min: number | null;
   med: number | null;
   /** Best reliability grade at the site; null when none is graded. */
@@ -29,58 +31,50 @@ function median(sorted: number[]): number | null {
 }
 
 export function mapSites(db: Db): MapSite[] {
-  const sites = db.$client
+  // One pass over the determinations; the per-site summary is cheaper in JS than in SQL.
+  const rows = db.$client
     .prepare(
-      `select t.id, t.name, t.latitude as lat, t.longitude as lon,
-         count(d.id) as n, max(d.grade) as grade
-       from sites t
-       join samples s on s.site_id = t.id
-       join determinations d on d.sample_id = s.id and d.status != 'withdrawn'
-       group by t.id
-       order by t.id`,
-    )
-    .all() as { id: number; name: string; lat: number; lon: number; n: number; grade: number | null }[];
-
-  const ages = db.$client
-    .prepare(
-      `select s.site_id as siteId, coalesce(c.median_cal_bp, ${MEASURED_AGE_SQL}) as age,
-         (d.grade = 0 or d.is_limit = 1) as weak
+      `select t.id as siteId, t.name, t.latitude as lat, t.longitude as lon, d.grade,
+         coalesce(c.median_cal_bp, ${MEASURED_AGE_SQL}) as age,
+         case when d.constraint_kind = 'maximum' then 2 when d.grade = 0 or d.is_limit = 1 then 1 else 0 end as weak
        from determinations d
        join samples s on s.id = d.sample_id
+       join sites t on t.id = s.site_id
        left join calibrations c on c.determination_id = d.id and c.is_current = 1
        where d.status != 'withdrawn'`,
     )
-    .all() as { siteId: number; age: number | null; weak: number }[];
+    .all() as { siteId: number; name: string; lat: number; lon: number; grade: number | null; age: number | null; weak: number }[];
 
-  const bySite = new Map<number, { good: number[]; weak: number[] }>();
-  for (const a of ages) {
-    if (a.age == null) continue;
-    let entry = bySite.get(a.siteId);
-    if (!entry) bySite.set(a.siteId, (entry = { good: [], weak: [] }));
-    (a.weak ? entry.weak : entry.good).push(a.age);
+  type Acc = { id: number; name: string; lat: number; lon: number; n: number; grade: number | null; good: number[]; weak: number[] };
+  const bySite = new Map<number, Acc>();
+  for (const r of rows) {
+    let acc = bySite.get(r.siteId);
+    if (!acc) {
+      acc = { id: r.siteId, name: r.name, lat: r.lat, lon: r.lon, n: 0, grade: null, good: [], weak: [] };
+      bySite.set(r.siteId, acc);
+    }
+    acc.n += 1;
+    if (r.grade != null && (acc.grade == null || r.grade > acc.grade)) acc.grade = r.grade;
+    // Maximum-limiting dates say when ice advanced over the site, not when it left: no deglaciation age.
+    if (r.age != null && r.weak !== 2) (r.weak ? acc.weak : acc.good).push(r.age);
   }
 
-  // Sorting per site in JS is cheaper than ordering the joined rows in SQL.
-  for (const entry of bySite.values()) {
-    entry.good.sort((a, b) => a - b);
-    entry.weak.sort((a, b) => a - b);
-  }
-
-  return sites.map((s) => {
-    const entry = bySite.get(s.id);
-    const list = entry ? (entry.good.length ? entry.good : entry.weak) : [];
-    const med = median(list);
-    return {
-      id: s.id,
-      name: s.name,
-      lat: Math.round(s.lat * 1e5) / 1e5,
-      lon: Math.round(s.lon * 1e5) / 1e5,
-      n: s.n,
-      min: list.length ? Math.round(list[0]!) : null,
-      med: med == null ? null : Math.round(med),
-      grade: s.grade,
-    };
-  });
+  return [...bySite.values()]
+    .sort((a, b) => a.id - b.id)
+    .map((acc) => {
+      const list = (acc.good.length ? acc.good : acc.weak).sort((a, b) => a - b);
+      const med = median(list);
+      return {
+        id: acc.id,
+        name: acc.name,
+        lat: Math.round(acc.lat * 1e5) / 1e5,
+        lon: Math.round(acc.lon * 1e5) / 1e5,
+        n: acc.n,
+        min: list.length ? Math.round(list[0]!) : null,
+        med: med == null ? null : Math.round(med),
+        grade: acc.grade,
+      };
+    });
 }
 
 export type Isochrones = { id: number; name: string; features: Feature[]; ages: number[] };

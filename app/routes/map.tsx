@@ -37,12 +37,15 @@ export default function MapPage({ loaderData }: Route.ComponentProps) {
   const sites = useMemo(() => (fetcher.data && "sites" in fetcher.data ? fetcher.data.sites : null), [fetcher.data]);
   const failed = fetcher.data && "error" in fetcher.data ? fetcher.data.error : null;
 
-  // One time axis for sites and isochrones, so the slider and the colours agree.
+  // One time axis for sites and isochrones, so the slider and the colours agree. Site ages are
+  // trimmed to their 2nd–98th percentiles so a few outliers (reworked shells, say) cannot wash
+  // out the scale; older sites take the deepest colour and count as ice-free throughout.
   const ageDomain = useMemo<[number, number]>(() => {
-    const ages = [
-      ...(sites ?? []).flatMap((s) => (s.med != null ? [s.med] : [])),
-      ...(reconstruction?.ages ?? []),
-    ];
+    const siteAges = (sites ?? []).flatMap((s) => (s.med != null ? [s.med] : [])).sort((a, b) => a - b);
+    const trimmed = siteAges.length
+      ? [siteAges[Math.floor(siteAges.length * 0.02)]!, siteAges[Math.min(siteAges.length - 1, Math.floor(siteAges.length * 0.98))]!]
+      : [];
+    const ages = [...trimmed, ...(reconstruction?.ages ?? [])];
     if (ages.length === 0) return [0, 15000];
     return [Math.floor(Math.min(...ages) / TIME_STEP) * TIME_STEP, Math.ceil(Math.max(...ages) / TIME_STEP) * TIME_STEP];
   }, [sites, reconstruction]);
@@ -111,7 +114,7 @@ export default function MapPage({ loaderData }: Route.ComponentProps) {
             <div className="mt-1 space-y-1">
               <label className="flex items-center gap-2">
                 <input type="radio" name="colourBy" value="age" checked={colourBy === "age"} onChange={() => setColourBy("age")} />
-                Age (calibrated median; measured age if not calibrated)
+                Deglaciation age (median of minimum-limiting and direct dates)
               </label>
               <label className="flex items-center gap-2">
                 <input type="radio" name="colourBy" value="grade" checked={colourBy === "grade"} onChange={() => setColourBy("grade")} />
@@ -164,7 +167,7 @@ export default function MapPage({ loaderData }: Route.ComponentProps) {
                   Ice-margin isochrones
                 </label>
                 <p className="mt-1 text-sm text-muted">
-                  {reconstruction.name} (synthetic demo reconstruction), {reconstruction.ages.length} margins from{" "}
+                  Demo reconstruction “{reconstruction.name}”: {reconstruction.ages.length} margins from{" "}
                   {formatYears(reconstruction.ages[reconstruction.ages.length - 1] ?? 0)} to {formatYears(reconstruction.ages[0] ?? 0)} cal BP.
                   {highlightAge != null ? ` Highlighted: the margin at ${formatYears(highlightAge)} cal BP.` : " Move the time slider to highlight a margin."}
                 </p>
@@ -198,13 +201,13 @@ function AgeLegend({ domain }: { domain: [number, number] }) {
       />
       <div className="mt-1 flex justify-between text-xs">
         <span>{formatYears(domain[0])} BP (young)</span>
-        <span>{formatYears(domain[1])} (old)</span>
+        <span>{formatYears(domain[1])}+ (old)</span>
       </div>
       <p className="mt-2 flex items-center gap-2 text-xs text-muted">
         <svg width="12" height="12" aria-hidden="true">
           <circle cx="6" cy="6" r="4.5" fill="#fff" stroke="#5b6975" strokeDasharray="2 2" />
         </svg>
-        no age yet
+        no deglaciation age (no minimum-limiting or direct date)
       </p>
     </div>
   );

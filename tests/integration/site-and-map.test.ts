@@ -39,6 +39,7 @@ beforeAll(async () => {
   add("TLX-mid-a2", middleA.id, null);
   add("TLX-gone", top.id, 1000, { status: "withdrawn", grade: 3 });
   add("TLX-rejected", top.id, 20000, { grade: 0, status: "graded" });
+  add("TLX-advance", deep.id, 30000, { constraintKind: "maximum", grade: 3, status: "graded" });
   insertReconstruction(db, [8000, 9000, 10000]);
 });
 
@@ -66,13 +67,14 @@ describe("site page loader", () => {
       "TL-mid-a:TLX-mid-a",
       "TL-mid-a:TLX-mid-a2",
       "TL-mid-b:TLX-mid-b",
+      "TL-deep:TLX-advance",
       "TL-deep:TLX-deep",
       "TL-unplaced:-",
     ]);
     expect(detail.rows.find((r) => r.labCode === "TLX-mid-a")?.medianCalBp).toBe(9100);
     expect(detail.rows.find((r) => r.labCode === "TLX-mid-a2")?.medianCalBp).toBeNull();
     expect(detail.sampleCount).toBe(5);
-    expect(detail.determinationCount).toBe(7);
+    expect(detail.determinationCount).toBe(8);
   });
 
   it("shows a site with no samples", async () => {
@@ -94,9 +96,10 @@ describe("map data", () => {
     expect(out.status).toBe(200);
     const { sites } = out.data as { sites: MapSite[] };
     const tarnwick = sites.find((s) => s.id === siteId)!;
-    // Withdrawn left out (6 of 7); the rejected 20,000 and the uncalibrated ¹⁴C age (9,000 ¹⁴C BP by
-    // the factory default) still count as determinations, but the rejected one not towards the age.
-    expect(tarnwick).toMatchObject({ name: "Tarnwick Lake Basin", lat: 58.25, lon: -66.5, n: 6, grade: 3 });
+    // Withdrawn left out (7 of 8). The rejected 20,000 and the maximum-limiting 30,000 count as
+    // determinations but not towards the deglaciation age; the uncalibrated ¹⁴C age (9,000 ¹⁴C BP,
+    // the factory default) does.
+    expect(tarnwick).toMatchObject({ name: "Tarnwick Lake Basin", lat: 58.25, lon: -66.5, n: 7, grade: 3 });
     // Ages: 7,600, 9,000 (measured), 9,100, 9,900, 11,800 → youngest 7,600, median 9,100.
     expect(tarnwick.min).toBe(7600);
     expect(tarnwick.med).toBe(9100);

@@ -176,8 +176,8 @@ export default function SiteMap(props: SiteMapProps) {
           return { radius: 4, color: "#5b6975", weight: 1, dashArray: "2 2", fillColor: "#ffffff", fillOpacity: 0.6 };
         }
         return iceFree
-          ? { radius: 5.5, color: "#0f273b", weight: 0.9, fillColor, fillOpacity: 0.95, dashArray: undefined }
-          : { radius: 4.5, color: "#1f4e72", weight: 1.6, fillColor: "#ffffff", fillOpacity: 0.15, dashArray: undefined };
+          ? { radius: 4.5, color: "#0f273b", weight: 0.7, fillColor, fillOpacity: 0.95, dashArray: undefined }
+          : { radius: 3.5, color: "#1f4e72", weight: 1.3, fillColor: "#ffffff", fillOpacity: 0.15, dashArray: undefined };
       },
     [colourBy, time, ageScale],
   );
