@@ -1,4 +1,4 @@
-import { and, eq } from "drizzle-orm";
+import { and, eq, lt } from "drizzle-orm";
 import type { Db } from "#app/db/client.server.ts";
 import { ROLES, sessions, userRoles, users, type Role } from "#app/db/schema.ts";
 import { audit, type DbOrTx } from "#app/models/audit.server.ts";
@@ -193,6 +193,8 @@ export function setActive(db: DbOrTx, userId: number, active: boolean, actor: Ac
 export function recordSignIn(db: DbOrTx, userId: number, details: { method: "code" | "link"; ip: string }) {
   db.transaction((tx) => {
     tx.update(users).set({ lastSignInAt: new Date() }).where(eq(users.id, userId)).run();
+    // Housekeeping: the person's expired sessions go when they next sign in.
+    tx.delete(sessions).where(and(eq(sessions.userId, userId), lt(sessions.expiresAt, new Date()))).run();
     audit(tx, {
       actorId: userId,
       action: "auth.sign_in",
