@@ -29,4 +29,9 @@ export default [
   route("api/v1/uploads", "routes/api/v1.uploads.ts"),
   route("api/v1/uploads/:uploadId/commit", "routes/api/v1.uploads.commit.ts"),
   route("api/v1/determinations", "routes/api/v1.determinations.ts"),
+  route("submit", "routes/submit.tsx"),
+  route("submissions", "routes/submissions.tsx"),
+  route("submissions/:id/edit", "routes/submission-edit.tsx"),
+  route("api/determination-preview", "routes/api/determination-preview.ts"),
+  route("api-docs", "routes/api-docs.tsx"),
 ] satisfies RouteConfig;

@@ -11,8 +11,11 @@ export const NAV_ITEMS: NavItem[] = [
   { to: "/curves", label: "Curves", roles: ["editor"] },
   { to: "/explore", label: "Explore", roles: "signed-in" },
   { to: "/map", label: "Map", roles: "signed-in" },
+  { to: "/submit", label: "Submit", roles: ["contributor"] },
   { to: "/uploads", label: "Upload", roles: ["contributor"] },
+  { to: "/submissions", label: "My submissions", roles: ["contributor"] },
   { to: "/people", label: "People", roles: ["editor"] },
+  { to: "/api-docs", label: "API", roles: "public" },
 ];
 
 export function navigationFor(roles: Role[] | null): NavItem[] {

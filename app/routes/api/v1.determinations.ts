@@ -1,8 +1,9 @@
 import type { Route } from "./+types/v1.determinations";
-import { requireApiRole } from "#app/auth/api.server.ts";
+import { requireApiRole, requireApiUser } from "#app/auth/api.server.ts";
 import { clientAddress } from "#app/auth/session.server.ts";
 import { getDb } from "#app/db/client.server.ts";
 import { CommitRefused, submitJsonRows } from "#app/models/uploads.server.ts";
+import { apiDeterminations, parseApiQuery } from "#app/models/determinations-api.server.ts";
 import { json } from "#app/utils/http.server.ts";
 
 /*
@@ -12,6 +13,19 @@ import { json } from "#app/utils/http.server.ts";
  * "message"}]} with index 0-based and row = index + 1, and nothing written.
  * (GET on this path — the Explore API — belongs in this module's loader.)
  */
+
+/**
+ * GET /api/v1/determinations — the Explore query as JSON, for any valid personal token. Query:
+ * Explore's filters (method, material, lab, site, kind, status, grade, ageFrom, ageTo, calFrom,
+ * calTo, q, sort, dir), page and per_page (≤ 500). 200 {"page","per_page","total",
+ * "determinations":[…]}; a malformed parameter → 400 {"errors":[…]}; no token → 401.
+ */
+export async function loader({ request }: Route.LoaderArgs) {
+  await requireApiUser(request);
+  const parsed = parseApiQuery(new URL(request.url).searchParams);
+  if (!parsed.ok) return json({ errors: parsed.errors }, { status: 400 });
+  return json(apiDeterminations(getDb(), parsed.query), { headers: { "Cache-Control": "no-store" } });
+}
 
 export const MAX_API_ROWS = 10_000;
 const MAX_BODY_BYTES = 16 * 1024 * 1024;

@@ -1,0 +1,299 @@
+import { Link } from "react-router";
+import type { Route } from "./+types/api-docs";
+import { ErrorView } from "#app/components/error-view.tsx";
+import { getDb } from "#app/db/client.server.ts";
+import { calibrateItems } from "#app/models/calibrate-items.server.ts";
+import { API_DEFAULT_PER_PAGE, API_MAX_PER_PAGE } from "#app/models/determinations-api.server.ts";
+import { EXPLORE_PAGE_SIZE } from "#app/utils/explore-filters.ts";
+import { COLUMNS } from "#app/utils/determination-input.ts";
+import { MAX_CALIBRATION_ITEMS } from "#app/utils/calibrate-input.ts";
+import { env } from "#app/utils/env.server.ts";
+
+export const meta: Route.MetaFunction = () => [{ title: "API · Thawline" }];
+
+export async function loader({ request }: Route.LoaderArgs) {
+  // Public page: documentation only. The calibration example is computed, so its numbers are real.
+  let calibrated: unknown = null;
+  try {
+    calibrated = calibrateItems(getDb(), [{ id: "a1", c14_age: 10250, c14_error: 45, curve: "intcal20" }]);
+  } catch {
+    calibrated = null;
+  }
+  return {
+    base: env().APP_URL ?? new URL(request.url).origin,
+    uploadMaxMb: Math.round(env().UPLOAD_MAX_BYTES / 1024 / 1024),
+    calibrated,
+  };
+}
+
+const ENDPOINTS = [
+  ["POST", "/api/v1/calibrate", "calibrate", "anyone"],
+  ["GET", "/api/v1/me", "me", "any token"],
+  ["GET", "/api/v1/determinations", "determinations-get", "any token"],
+  ["POST", "/api/v1/determinations", "determinations-post", "contributor token"],
+  ["POST", "/api/v1/uploads", "uploads", "contributor token"],
+  ["POST", "/api/v1/uploads/{upload_id}/commit", "uploads-commit", "contributor token"],
+] as const;
+
+const FILTERS: [string, string][] = [
+  ["method", "radiocarbon, luminescence or exposure"],
+  ["material", "a material from the registry's list, e.g. marine shell"],
+  ["lab", "a laboratory's id"],
+  ["site", "part of a site name"],
+  ["kind", "constraint kind: minimum, maximum or direct"],
+  ["status", "submitted, in_review, graded, withdrawn or all (left out: everything but withdrawn)"],
+  ["grade", "minimum grade 3, 2, 1 or 0, or ungraded"],
+  ["ageFrom, ageTo", "window on the measured age in years (¹⁴C yr BP, or luminescence years before measurement)"],
+  ["calFrom, calTo", "window on the calibrated median, cal BP"],
+  ["q", "part of a lab code or site name"],
+  ["sort", "labCode, site, age, cal, grade or created (default: created)"],
+  ["dir", "asc or desc"],
+  ["page", "page number from 1"],
+  ["per_page", `rows per page, 1 to ${API_MAX_PER_PAGE} (default ${API_DEFAULT_PER_PAGE})`],
+];
+
+export default function ApiDocs({ loaderData }: Route.ComponentProps) {
+  const { base, uploadMaxMb, calibrated } = loaderData;
+  const calibrateExample = calibrated
+    ? JSON.stringify(calibrated, null, 2)
+    : `{"curves": {"intcal20": {"version": "…", "citation": "…"}},
+ "results": [{"id": "a1", "median_cal_bp": …, "hpd68": [{"from": …, "to": …, "p": …}], "hpd95": […]}]}`;
+  return (
+    <div className="grid max-w-5xl gap-8">
+      <header>
+        <p className="text-sm tracking-widest text-muted uppercase">For scripts</p>
+        <h1 className="mt-1">The Thawline API</h1>
+        <p className="mt-2 text-muted">
+          JSON over HTTPS at <code>{base}/api/v1/…</code>. Field names are the upload template's column names throughout;
+          measurements come back unrounded. Results are for research use; calibrated ages depend on the curve and its
+          version, marine ages on ΔR, and grades are expert judgements, not measurements.
+        </p>
+      </header>
+
+      <section className="card grid gap-3" aria-labelledby="auth-heading">
+        <h2 id="auth-heading">Tokens</h2>
+        <p>
+          Every endpoint except calibration needs a personal API token, made on <Link to="/account">your account page</Link>{" "}
+          and sent as a header. A token acts with your roles; revoke it there when you no longer need it.
+        </p>
+        <Code>{`curl -H "Authorization: Bearer <token>" ${base}/api/v1/me`}</Code>
+        <p>
+          Without a valid token the answer is <code>401</code> <code>{`{"error": "…"}`}</code>; with a token whose owner
+          lacks the role, <code>403</code>. A wrong method is <code>405</code> with an <code>Allow</code> header.
+        </p>
+        <table className="data-table">
+          <thead>
+            <tr>
+              <th scope="col">Endpoint</th>
+              <th scope="col">Who</th>
+            </tr>
+          </thead>
+          <tbody>
+            {ENDPOINTS.map(([method, path, anchor, who]) => (
+              <tr key={anchor}>
+                <td>
+                  <a href={`#${anchor}`}>
+                    <code>
+                      {method} {path}
+                    </code>
+                  </a>
+                </td>
+                <td>{who}</td>
+              </tr>
+            ))}
+          </tbody>
+        </table>
+      </section>
+
+      <Endpoint id="calibrate" method="POST" path="/api/v1/calibrate" who="Anyone; no token. Rate-limited per address (429 with Retry-After).">
+        <p>
+          Calibrates ¹⁴C ages that need not be in the registry. Each item has an <code>id</code>, <code>c14_age</code> and{" "}
+          <code>c14_error</code> (¹⁴C yr BP, 1σ), a <code>curve</code> (<code>intcal20</code> when left out) and, for a
+          marine curve, <code>delta_r</code> and <code>delta_r_error</code>. <code>"density": true</code> adds each calendar
+          density (<code>start_cal_bp</code> is its youngest year, one value per year). At most{" "}
+          {MAX_CALIBRATION_ITEMS.toLocaleString("en")} items per request.
+        </p>
+        <Code>{`curl -s -X POST ${base}/api/v1/calibrate -H 'Content-Type: application/json' \\
+  -d '{"determinations":[{"id":"a1","c14_age":10250,"c14_error":45,"curve":"intcal20"}]}'`}</Code>
+        <Code label="200">{calibrateExample}</Code>
+        <p>
+          Ranges run from the oldest: <code>from</code> is the older bound, <code>to</code> the younger, in cal BP, with
+          their probability <code>p</code>. An item that cannot be calibrated comes back as <code>{`{"id": …, "error": "…"}`}</code>{" "}
+          in its place; a malformed request is <code>400</code> <code>{`{"error": "…"}`}</code>.
+        </p>
+      </Endpoint>
+
+      <Endpoint id="me" method="GET" path="/api/v1/me" who="Any valid token.">
+        <p>Who the token belongs to: a quick check that a script is set up.</p>
+        <Code label="200">{`{"email": "someone@example.org", "roles": ["contributor", "modeller"]}`}</Code>
+      </Endpoint>
+
+      <Endpoint id="determinations-get" method="GET" path="/api/v1/determinations" who="Any valid token.">
+        <p>
+          The registry's determinations with their current calibration, filtered exactly as on{" "}
+          <Link to="/explore">Explore</Link>, in the same order. All parameters are optional:
+        </p>
+        <table className="data-table">
+          <thead>
+            <tr>
+              <th scope="col">Parameter</th>
+              <th scope="col">Meaning</th>
+            </tr>
+          </thead>
+          <tbody>
+            {FILTERS.map(([name, meaning]) => (
+              <tr key={name}>
+                <td>
+                  <code>{name}</code>
+                </td>
+                <td>{meaning}</td>
+              </tr>
+            ))}
+          </tbody>
+        </table>
+        <Code>{`curl -H "Authorization: Bearer <token>" \\
+  "${base}/api/v1/determinations?method=radiocarbon&kind=minimum&grade=2&calFrom=8000&calTo=12000&per_page=200&page=1"`}</Code>
+        <Code label="200">{`{
+  "page": 1,
+  "per_page": 200,
+  "total": 1342,
+  "determinations": [
+    {
+      "id": 812,
+      "lab_code": "XMPL-0001",
+      "lab": {"id": 3, "name": "…"},
+      "site": {"id": 57, "name": "Example Cove", "latitude": 58.7123, "longitude": -64.3511, "elevation_m": 42},
+      "sample_code": "EXC-01", "material": "marine shell", "depth_cm": 120, "strat_unit": "glaciomarine silt",
+      "method": "radiocarbon", "constraint_kind": "minimum", "status": "graded", "grade": 3, "version": 2,
+      "c14_age": 9850, "c14_error": 40, "f14c": null, "f14c_error": null, "d13c": 1.2,
+      "age_normalised": true, "greater_than": false, "pretreatment": "acid etch",
+      "curve": "marine20", "delta_r": 150, "delta_r_error": 60, "delta_r_curve": "marine20",
+      "signal": null, "mineral": null, "de_gy": null, "de_error_gy": null,
+      "dose_rate_gy_per_ka": null, "dose_rate_error_gy_per_ka": null,
+      "measurement_year": null, "aliquots": null, "age_model": null,
+      "doi": "10.99999/example.1",
+      "created_at": "2026-03-02T10:15:00.000Z", "updated_at": "2026-03-09T16:40:00.000Z",
+      "calibration": {
+        "curve": "Marine20 (2020), ΔR 150 ± 60",
+        "median_cal_bp": 10437.2,
+        "hpd68": [{"from": 10556, "to": 10305, "p": 0.684}],
+        "hpd95": [{"from": 10678, "to": 10212, "p": 0.954}],
+        "error": null
+      }
+    }
+  ]
+}`}</Code>
+        <p>
+          <code>calibration</code> is <code>null</code> before a determination is calibrated; a “greater than” age or a
+          post-bomb sample has a calibration with <code>median_cal_bp</code> <code>null</code> and the reason in{" "}
+          <code>error</code>. Luminescence ages have <code>"curve": "luminescence (normal)"</code>. A page past the end has
+          an empty list. A malformed parameter is <code>400</code> <code>{`{"errors": ["per_page: …"]}`}</code>. Pages are
+          read from Explore's pages of {EXPLORE_PAGE_SIZE}, so a large <code>per_page</code> costs a little more.
+        </p>
+      </Endpoint>
+
+      <Endpoint id="determinations-post" method="POST" path="/api/v1/determinations" who="A contributor's token.">
+        <p>
+          Submits determinations as a JSON array of rows whose keys are the template's column names (below), with the
+          same checks as an upload. Either every row is valid and all are stored as one batch, or nothing is written. At
+          most 10,000 rows and 16 MB per request.
+        </p>
+        <Code>{`curl -s -X POST ${base}/api/v1/determinations -H "Authorization: Bearer <token>" \\
+  -H 'Content-Type: application/json' -d '[{
+    "site_name": "Example Cove", "latitude": 58.7123, "longitude": -64.3511,
+    "sample_code": "EXC-01", "material": "marine shell", "method": "radiocarbon",
+    "lab_code": "XMPL-0001", "constraint_kind": "minimum",
+    "c14_age": 9850, "c14_error": 40, "curve": "marine20", "delta_r": 150, "delta_r_error": 60
+  }]'`}</Code>
+        <Code label="201">{`{"determination_ids": [812]}`}</Code>
+        <Code label="400">{`{"errors": [{"index": 0, "row": 1, "column": "c14_error", "message": "Give the error of c14_age (one standard deviation, in 14C years)."}]}`}</Code>
+        <p>
+          <code>index</code> counts from 0, <code>row</code> from 1. Too many rows or too large a body is <code>413</code>.
+        </p>
+      </Endpoint>
+
+      <Endpoint id="uploads" method="POST" path="/api/v1/uploads" who="A contributor's token.">
+        <p>
+          Sends a spreadsheet (CSV or XLSX, up to {uploadMaxMb} MB, header row = the template's column names) as the
+          multipart field <code>file</code>. It is read and checked; nothing reaches the registry until it is committed.
+          Rows are numbered as a spreadsheet shows them (the header is row 1). The{" "}
+          <a href="/uploads/template.csv">CSV template</a> and <a href="/uploads/template.xlsx">XLSX template</a> list the
+          columns with an example row each.
+        </p>
+        <Code>{`curl -s -X POST ${base}/api/v1/uploads -H "Authorization: Bearer <token>" -F "file=@dates.csv"`}</Code>
+        <Code label="200">{`{"upload_id": "q3V9…", "rows": 120, "valid": 118,
+ "errors": [{"row": 14, "column": "latitude", "message": "Latitude 95 is outside −90 to 90."}]}`}</Code>
+        <p>
+          A file that cannot be read, of the wrong kind or too large is answered with <code>400</code>, <code>413</code> or{" "}
+          <code>415</code> and <code>{`{"error": "…"}`}</code>.
+        </p>
+      </Endpoint>
+
+      <Endpoint id="uploads-commit" method="POST" path="/api/v1/uploads/{upload_id}/commit" who="A contributor's token; only your own uploads.">
+        <p>
+          Commits a checked upload in one transaction, with calibration: <code>{`{"mode": "all"}`}</code> only when every
+          row is valid, <code>{`{"mode": "valid_only"}`}</code> to store the valid rows and leave the others out.
+        </p>
+        <Code>{`curl -s -X POST ${base}/api/v1/uploads/q3V9…/commit -H "Authorization: Bearer <token>" \\
+  -H 'Content-Type: application/json' -d '{"mode":"valid_only"}'`}</Code>
+        <Code label="200">{`{"committed": 118, "determination_ids": [901, 902, …]}`}</Code>
+        <p>
+          Mode <code>all</code> with any error, or an upload already committed, is <code>409</code> and writes nothing;
+          someone else's upload is <code>404</code>; a body without a valid mode is <code>400</code>.
+        </p>
+      </Endpoint>
+
+      <section className="card grid gap-3" aria-labelledby="columns-heading">
+        <h2 id="columns-heading">Column names</h2>
+        <p>The names used by uploads, both determinations endpoints and the form.</p>
+        <div className="overflow-x-auto">
+          <table className="data-table">
+            <thead>
+              <tr>
+                <th scope="col">Column</th>
+                <th scope="col">Unit</th>
+                <th scope="col">Meaning</th>
+              </tr>
+            </thead>
+            <tbody>
+              {COLUMNS.map((c) => (
+                <tr key={c.name}>
+                  <td>
+                    <code>{c.name}</code>
+                  </td>
+                  <td>{c.unit || (c.choices ? c.choices.join(", ") : "")}</td>
+                  <td>{c.help}</td>
+                </tr>
+              ))}
+            </tbody>
+          </table>
+        </div>
+      </section>
+    </div>
+  );
+}
+
+function Endpoint({ id, method, path, who, children }: { id: string; method: string; path: string; who: string; children: React.ReactNode }) {
+  return (
+    <section id={id} className="card grid gap-3" aria-labelledby={`${id}-heading`}>
+      <h2 id={`${id}-heading`} className="font-mono text-lg">
+        {method} {path}
+      </h2>
+      <p className="text-sm text-muted">{who}</p>
+      {children}
+    </section>
+  );
+}
+
+function Code({ label, children }: { label?: string; children: string }) {
+  return (
+    <div>
+      {label ? <p className="text-sm font-semibold text-muted">Answer {label}</p> : null}
+      <pre className="overflow-x-auto rounded bg-ice-50 p-3 text-xs">{children}</pre>
+    </div>
+  );
+}
+
+export function ErrorBoundary({ error }: Route.ErrorBoundaryProps) {
+  return <ErrorView error={error} />;
+}

@@ -1,0 +1,141 @@
+// The single-determination form (new and edit): the registry's one row schema wrapped with the
+// few things only the form has — whether the site is chosen from the registry or entered new,
+// and that the laboratory is picked from a list. Client-safe: Conform validates with it in the
+// browser, the server with the same schema plus the checks that need the database.
+
+import { z } from "zod";
+import {
+  isBlankCell,
+  makeRowSchema,
+  type DeterminationRow,
+  type RowContext,
+  type RowIssue,
+} from "#app/utils/determination-input.ts";
+
+export const SITE_CHOICES = ["existing", "new"] as const;
+export type SiteChoice = (typeof SITE_CHOICES)[number];
+
+/** What a valid form yields: the row (template column names) and how its site is found. */
+export type SubmissionValue = {
+  siteChoice: SiteChoice;
+  /** The chosen site when `siteChoice` is "existing". */
+  siteId: number | null;
+  row: DeterminationRow;
+};
+
+/** The registry lists the form offers; the loader sends them, the browser builds its context from them. */
+export type FormOptions = {
+  sites: { id: number; name: string; latitude: number; longitude: number }[];
+  labs: { id: number; name: string; codePrefix: string }[];
+  materials: { name: string; methods: string[]; marine: boolean }[];
+  curves: { name: string; displayName: string; kind: "atmospheric" | "marine" }[];
+};
+
+/** The validation context the browser can build without the database (no duplicate or curve-range checks). */
+export function clientRowContext(options: Pick<FormOptions, "materials" | "curves">): RowContext {
+  return {
+    materials: options.materials.map((m) => m.name),
+    curves: options.curves.map((c) => c.name),
+    marineMaterials: options.materials.filter((m) => m.marine).map((m) => m.name),
+    marineCurves: options.curves.filter((c) => c.kind === "marine").map((c) => c.name),
+    materialMethods: Object.fromEntries(options.materials.map((m) => [m.name.toLowerCase(), m.methods])),
+  };
+}
+
+const SITE_FIELDS = new Set(["site_name", "latitude", "longitude", "elevation_m", "setting"]);
+
+/**
+ * The form's schema. `serverChecks` runs on a row that passed every other rule and adds what
+ * only the database can tell (an unknown laboratory, a sample already recorded with another
+ * material), so those messages also land at their fields.
+ */
+export function makeSubmissionSchema(ctx: RowContext, serverChecks?: (value: SubmissionValue) => RowIssue[]) {
+  const rowSchema = makeRowSchema(ctx);
+  return z
+    .object({ site_choice: z.unknown().optional(), site_id: z.unknown().optional() })
+    .loose()
+    .transform((raw, zctx): SubmissionValue => {
+      const issue = (column: string, message: string) =>
+        zctx.addIssue({ code: "custom", path: [column], message, input: raw[column] });
+      const siteChoice: SiteChoice = raw.site_choice === "existing" ? "existing" : "new";
+      let siteId: number | null = null;
+      let failed = false;
+      if (siteChoice === "existing") {
+        const n = Number(raw.site_id);
+        if (isBlankCell(raw.site_id) || !Number.isSafeInteger(n) || n <= 0) {
+          issue("site_id", "Choose a site from the list, or enter a new site.");
+          failed = true;
+        } else siteId = n;
+      }
+      if (isBlankCell(raw.lab_name)) {
+        issue("lab_name", "Choose the laboratory that measured it.");
+        failed = true;
+      }
+      const parsed = rowSchema.safeParse(raw);
+      if (!parsed.success) {
+        for (const i of parsed.error.issues) {
+          const column = String(i.path[0] ?? "");
+          // Without a chosen site the site's own fields are empty; the one message at site_id says it.
+          if (siteChoice === "existing" && siteId === null && SITE_FIELDS.has(column)) continue;
+          issue(column, i.message);
+        }
+        return z.NEVER;
+      }
+      if (failed) return z.NEVER;
+      const value: SubmissionValue = { siteChoice, siteId, row: parsed.data };
+      const extra = serverChecks?.(value) ?? [];
+      if (extra.length > 0) {
+        for (const e of extra) issue(e.column, e.message);
+        return z.NEVER;
+      }
+      return value;
+    });
+}
+
+/** A duplicate-lab-code message names the existing record's address; the form turns it into a link. */
+export function existingRecordLink(message: string): { before: string; href: string } | null {
+  const m = /^(.*?)(\/determinations\/\d+)\s*$/.exec(message);
+  return m ? { before: m[1]!, href: m[2]! } : null;
+}
+
+/** Measurement columns whose problems the live preview reports (the rest are the form's business). */
+export const PREVIEW_COLUMNS = [
+  "method",
+  "material",
+  "c14_age",
+  "c14_error",
+  "f14c",
+  "f14c_error",
+  "d13c",
+  "age_normalised",
+  "greater_than",
+  "curve",
+  "delta_r",
+  "delta_r_error",
+  "de_gy",
+  "de_error_gy",
+  "dose_rate_gy_per_ka",
+  "dose_rate_error_gy_per_ka",
+  "k_percent",
+  "u_ppm",
+  "th_ppm",
+  "water_content",
+  "burial_depth_m",
+  "density_g_cm3",
+  "measurement_year",
+] as const;
+
+/** The live preview's answer. */
+export type PreviewResult =
+  | { state: "empty"; message: string }
+  | { state: "incomplete"; column: string; message: string }
+  | { state: "no-age"; message: string; label: string }
+  | {
+      state: "ok";
+      label: string;
+      medianCalBp: number;
+      hpd68: { from: number; to: number; p: number }[];
+      hpd95: { from: number; to: number; p: number }[];
+      /** Luminescence: the age in ka and the dose rate it used (computed from K, U, Th when not given). */
+      luminescence?: { ageKa: number; errorKa: number; doseRate: number; doseRateError: number; computed: boolean };
+    };
