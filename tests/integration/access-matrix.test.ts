@@ -11,7 +11,7 @@ import { beforeAll, describe, expect, it } from "vitest";
 import type { RouteConfigEntry } from "@react-router/dev/routes";
 import routes from "#app/routes.ts";
 import { getDb } from "#app/db/client.server.ts";
-import { determinations, jobs, labs, samples, sites, type Role } from "#app/db/schema.ts";
+import { determinations, jobs, labs, samples, sites, uploadBatches, type Role } from "#app/db/schema.ts";
 import { createSession } from "#app/auth/session.server.ts";
 import { createToken } from "#app/models/tokens.server.ts";
 import { args, get, personWithSession, post, run, type Outcome } from "#tests/support/auth.ts";
@@ -29,8 +29,9 @@ type Answer = "ok" | "sign-in" | "forbidden" | "unauthorized" | "allowed" | "non
 type PerAudience = Answer | Record<Audience, Answer>;
 
 type Row = {
-  /** The URL to request; `:name` segments are filled from the fixtures below. */
+  /** The URL to request; a `:name` segment is filled with the fixture that `params` names for it. */
   url: string;
+  params?: Record<string, keyof Fixtures>;
   get: PerAudience;
   post: PerAudience;
   auth?: "cookie" | "token";
@@ -71,8 +72,8 @@ export const ACCESS: Record<string, Row> = {
   "routes/api/v1.me": { url: "/api/v1/me", auth: "token", get: { ...signedIn("ok"), "signed-out": "unauthorized" }, post: "none" },
   // Reading the registry: any signed-in person
   "routes/explore": { url: "/explore", get: signedIn("ok"), post: "none" },
-  "routes/determination": { url: "/determinations/:determinationId", get: signedIn("ok"), post: "none" },
-  "routes/site": { url: "/sites/:siteId", get: signedIn("ok"), post: "none" },
+  "routes/determination": { url: "/determinations/:id", params: { id: "determinationId" }, get: signedIn("ok"), post: "none" },
+  "routes/site": { url: "/sites/:id", params: { id: "siteId" }, get: signedIn("ok"), post: "none" },
   "routes/map": { url: "/map", get: signedIn("ok"), post: "none" },
   "routes/api/map-sites": { url: "/api/map-sites", get: { ...signedIn("ok"), "signed-out": "unauthorized" }, post: "none" },
   // Calibration: public (rate-limited per address)
@@ -82,7 +83,60 @@ export const ACCESS: Record<string, Row> = {
   "routes/api/curve-window": { url: "/api/curve-window?curve=intcal20&from=12500&to=11500", get: "ok", post: "none" },
   // Curves and background jobs: editors
   "routes/curves": { url: "/curves", get: only(["editor"], "ok"), post: only(["editor"], "allowed") },
-  "routes/api/jobs": { url: "/api/jobs/:jobId", get: only(["editor"], "ok", "unauthorized"), post: "none" },
+  "routes/api/jobs": { url: "/api/jobs/:id", params: { id: "jobId" }, get: only(["editor"], "ok", "unauthorized"), post: "none" },
+  // Submitting: contributors, on their own uploads and determinations (the fixtures belong to the matrix contributor)
+  "routes/uploads": { url: "/uploads", get: only(["contributor"], "ok"), post: only(["contributor"], "allowed") },
+  "routes/api/upload-file": { url: "/uploads/file", get: "none", post: only(["contributor"], "allowed") },
+  "routes/api/upload-template-xlsx": { url: "/uploads/template.xlsx", get: only(["contributor"], "ok"), post: "none" },
+  "routes/api/upload-template-csv": { url: "/uploads/template.csv", get: only(["contributor"], "ok"), post: "none" },
+  "routes/upload": {
+    url: "/uploads/:publicId",
+    params: { publicId: "uploadPublicId" },
+    get: only(["contributor"], "ok"),
+    post: only(["contributor"], "allowed"),
+  },
+  "routes/api/upload-errors-csv": {
+    url: "/uploads/:publicId/errors.csv",
+    params: { publicId: "uploadPublicId" },
+    get: only(["contributor"], "ok"),
+    post: "none",
+  },
+  "routes/submit": { url: "/submit", get: only(["contributor"], "ok"), post: only(["contributor"], "allowed") },
+  "routes/api/determination-preview": {
+    url: "/api/determination-preview",
+    get: only(["contributor"], "status:405"),
+    post: only(["contributor"], "allowed"),
+  },
+  "routes/submissions": { url: "/submissions", get: only(["contributor"], "ok"), post: only(["contributor"], "allowed") },
+  // The fixture determination was submitted by the matrix contributor, so only they may edit it.
+  "routes/submission-edit": {
+    url: "/submissions/:id/edit",
+    params: { id: "determinationId" },
+    get: only(["contributor"], "ok"),
+    post: only(["contributor"], "allowed"),
+  },
+  // Documentation: public
+  "routes/api-docs": { url: "/api-docs", get: "ok", post: "none" },
+  // Contributors' API, by token
+  "routes/api/v1.uploads": {
+    url: "/api/v1/uploads",
+    auth: "token",
+    get: only(["contributor"], "status:405", "unauthorized"),
+    post: only(["contributor"], "allowed", "unauthorized"),
+  },
+  "routes/api/v1.uploads.commit": {
+    url: "/api/v1/uploads/:uploadId/commit",
+    params: { uploadId: "uploadPublicId" },
+    auth: "token",
+    get: only(["contributor"], "status:405", "unauthorized"),
+    post: only(["contributor"], "allowed", "unauthorized"),
+  },
+  "routes/api/v1.determinations": {
+    url: "/api/v1/determinations",
+    auth: "token",
+    get: { ...signedIn("ok"), "signed-out": "unauthorized" },
+    post: only(["contributor"], "allowed", "unauthorized"),
+  },
 };
 
 type Entry = { id: string; file: string; path: string };
@@ -97,7 +151,8 @@ function flatten(entries: RouteConfigEntry[], parentPath = ""): Entry[] {
 
 const ENTRIES: Entry[] = [{ id: "root", file: "root.tsx", path: "/" }, ...flatten(routes)];
 
-const fixtures: Record<string, string> = {};
+type Fixtures = { siteId: string; determinationId: string; jobId: string; uploadPublicId: string };
+const fixtures = {} as Fixtures;
 const people = {} as Record<Exclude<Audience, "signed-out">, { id: number; token: string }>;
 let cookies = {} as Record<Exclude<Audience, "signed-out">, string>;
 
@@ -121,26 +176,45 @@ beforeAll(async () => {
   const sample = db.insert(samples).values({ siteId: site.id, fieldCode: "ZZM-F1", material: "marine shell" }).returning().get();
   const det = db
     .insert(determinations)
-    .values({ sampleId: sample.id, labId: lab.id, labCode: "ZZM-0001", method: "radiocarbon", constraintKind: "minimum", c14AgeYr: 9500, c14ErrorYr: 45 })
+    .values({
+      sampleId: sample.id,
+      labId: lab.id,
+      contributorId: people.contributor.id,
+      labCode: "ZZM-0001",
+      method: "radiocarbon",
+      constraintKind: "minimum",
+      c14AgeYr: 9500,
+      c14ErrorYr: 45,
+    })
     .returning()
     .get();
   const job = db.insert(jobs).values({ kind: "recalibrate" }).returning().get();
-  Object.assign(fixtures, { siteId: String(site.id), determinationId: String(det.id), jobId: String(job.id) });
+  const upload = db
+    .insert(uploadBatches)
+    .values({ publicId: "matrix-upload-0001", userId: people.contributor.id, fileName: "matrix.csv", fileKind: "csv", fileSizeBytes: 10 })
+    .returning()
+    .get();
+  Object.assign(fixtures, {
+    siteId: String(site.id),
+    determinationId: String(det.id),
+    jobId: String(job.id),
+    uploadPublicId: upload.publicId,
+  });
 });
 
-function fill(url: string): { url: string; params: Record<string, string> } {
+function fill(row: Row): { url: string; params: Record<string, string> } {
   const params: Record<string, string> = {};
-  const filled = url.replace(/:(\w+)/g, (_, name: string) => {
-    const value = fixtures[name];
-    if (!value) throw new Error(`No fixture for :${name}`);
-    params[name.replace(/(determination|site|job)Id$/, "id")] = value;
-    return value;
+  const url = row.url.replace(/:(\w+)/g, (_, name: string) => {
+    const fixture = row.params?.[name];
+    if (!fixture) throw new Error(`The row for ${row.url} names no fixture for :${name}`);
+    params[name] = fixtures[fixture];
+    return encodeURIComponent(fixtures[fixture]);
   });
-  return { url: filled, params };
+  return { url, params };
 }
 
 function requestFor(row: Row, audience: Audience, method: "GET" | "POST"): Request {
-  const { url } = fill(row.url);
+  const { url } = fill(row);
   const headers: Record<string, string> = {};
   let cookie: string | undefined;
   if (audience !== "signed-out") {
@@ -193,7 +267,7 @@ describe("access matrix", () => {
         loader?: (a: unknown) => unknown;
         action?: (a: unknown) => unknown;
       };
-      const { params } = fill(row.url);
+      const { params } = fill(row);
       await freshSessions();
       const problems: string[] = [];
       for (const [method, cell, fn] of [
