@@ -23,6 +23,7 @@ export async function loader({ request }: Route.LoaderArgs) {
     base: env().APP_URL ?? new URL(request.url).origin,
     uploadMaxMb: Math.round(env().UPLOAD_MAX_BYTES / 1024 / 1024),
     calibrated,
+    perPage: { default: API_DEFAULT_PER_PAGE, max: API_MAX_PER_PAGE },
   };
 }
 
@@ -35,7 +36,8 @@ const ENDPOINTS = [
   ["POST", "/api/v1/uploads/{upload_id}/commit", "uploads-commit", "contributor token"],
 ] as const;
 
-const FILTERS: [string, string][] = [
+function filterParameters(perPage: { default: number; max: number }): [string, string][] {
+  return [
   ["method", "radiocarbon, luminescence or exposure"],
   ["material", "a material from the registry's list, e.g. marine shell"],
   ["lab", "a laboratory's id"],
@@ -49,11 +51,12 @@ const FILTERS: [string, string][] = [
   ["sort", "labCode, site, age, cal, grade or created (default: created)"],
   ["dir", "asc or desc"],
   ["page", "page number from 1"],
-  ["per_page", `rows per page, 1 to ${API_MAX_PER_PAGE} (default ${API_DEFAULT_PER_PAGE})`],
-];
+  ["per_page", `rows per page, 1 to ${perPage.max} (default ${perPage.default})`],
+  ];
+}
 
 export default function ApiDocs({ loaderData }: Route.ComponentProps) {
-  const { base, uploadMaxMb, calibrated } = loaderData;
+  const { base, uploadMaxMb, calibrated, perPage } = loaderData;
   const calibrateExample = calibrated
     ? JSON.stringify(calibrated, null, 2)
     : `{"curves": {"intcal20": {"version": "…", "citation": "…"}},
@@ -141,7 +144,7 @@ export default function ApiDocs({ loaderData }: Route.ComponentProps) {
             </tr>
           </thead>
           <tbody>
-            {FILTERS.map(([name, meaning]) => (
+            {filterParameters(perPage).map(([name, meaning]) => (
               <tr key={name}>
                 <td>
                   <code>{name}</code>
