@@ -67,9 +67,6 @@ export function DeterminationForm({
   const [material, setMaterial] = useState(defaultValue.material ?? "");
   const [curve, setCurve] = useState(defaultValue.curve ?? "");
   const [c14Input, setC14Input] = useState(defaultValue.c14_age === "" && defaultValue.f14c ? "f14c" : "age");
-  const [rateInput, setRateInput] = useState(
-    defaultValue.dose_rate_gy_per_ka === "" && defaultValue.k_percent ? "components" : "total",
-  );
 
   const marineMaterials = useMemo(() => new Set(options.materials.filter((m) => m.marine).map((m) => m.name)), [options]);
   const marineCurves = useMemo(() => options.curves.filter((c) => c.kind === "marine"), [options]);
@@ -84,6 +81,12 @@ export function DeterminationForm({
     if (chosenSite && !shown.includes(chosenSite)) shown.unshift(chosenSite);
     return { shown, more: list.length - Math.min(list.length, 300) };
   }, [siteFilter, options.sites, chosenSite]);
+
+  function chooseMethod(next: string) {
+    setMethod(next);
+    // A material of the other method would only be refused; let the contributor choose again.
+    if (material && !options.materials.some((m) => m.name === material && m.methods.includes(next))) chooseMaterial("");
+  }
 
   function chooseMaterial(name: string) {
     setMaterial(name);
@@ -116,7 +119,7 @@ export function DeterminationForm({
     return () => clearTimeout(timer.current);
     // Choices that enable or disable fields change what is submitted; a re-render after them re-checks.
     // eslint-disable-next-line react-hooks/exhaustive-deps
-  }, [method, material, curve, c14Input, rateInput]);
+  }, [method, material, curve, c14Input]);
 
   return (
     <div className="grid gap-8 lg:grid-cols-[minmax(0,1fr)_20rem]">
@@ -183,6 +186,14 @@ export function DeterminationForm({
                   <p className="text-sm text-muted">{filteredSites.more} more; type part of the name to narrow the list.</p>
                 ) : null}
                 {options.sites.length === 0 ? <p className="text-sm text-muted">The registry has no sites yet; enter a new one.</p> : null}
+                {chosenSite ? (
+                  <p className="text-sm" data-testid="chosen-site">
+                    Chosen: <strong>{chosenSite.name}</strong>, {chosenSite.latitude.toFixed(4)}°, {chosenSite.longitude.toFixed(4)}°{" "}
+                    <Link to={`/sites/${chosenSite.id}`} target="_blank" rel="noopener">
+                      see the site
+                    </Link>
+                  </p>
+                ) : null}
                 <FieldError field={f.site_id!} />
               </div>
               {chosenSite ? (
@@ -247,10 +258,10 @@ export function DeterminationForm({
           <div className="field sm:col-span-2">
             <span className="label" id="method-label">Method</span>
             <div role="radiogroup" aria-labelledby="method-label" className="flex flex-wrap gap-x-6 gap-y-2">
-              <Radio name="method" value="radiocarbon" checked={method === "radiocarbon"} onChange={setMethod} field={f.method}>
+              <Radio name="method" value="radiocarbon" checked={method === "radiocarbon"} onChange={chooseMethod} field={f.method}>
                 Radiocarbon
               </Radio>
-              <Radio name="method" value="luminescence" checked={method === "luminescence"} onChange={setMethod} field={f.method}>
+              <Radio name="method" value="luminescence" checked={method === "luminescence"} onChange={chooseMethod} field={f.method}>
                 Luminescence
               </Radio>
             </div>
@@ -406,19 +417,12 @@ export function DeterminationForm({
           <TextField field={f.mineral!} column="mineral" />
           <TextField field={f.de_gy!} column="de_gy" inputMode="decimal" />
           <TextField field={f.de_error_gy!} column="de_error_gy" inputMode="decimal" label="De ± 1σ" />
-          <div role="radiogroup" aria-label="Dose rate" className="flex flex-wrap gap-x-6 gap-y-2 sm:col-span-2">
-            <Radio name="dose_rate_input" value="total" checked={rateInput === "total"} onChange={setRateInput}>
-              Total dose rate as measured
-            </Radio>
-            <Radio name="dose_rate_input" value="components" checked={rateInput === "components"} onChange={setRateInput}>
-              Compute it from K, U, Th, water and burial depth
-            </Radio>
-          </div>
-          <fieldset disabled={rateInput !== "total"} hidden={rateInput !== "total"} className="contents">
-            <TextField field={f.dose_rate_gy_per_ka!} column="dose_rate_gy_per_ka" inputMode="decimal" />
-            <TextField field={f.dose_rate_error_gy_per_ka!} column="dose_rate_error_gy_per_ka" inputMode="decimal" label="Dose rate ± 1σ" />
-          </fieldset>
-          <fieldset disabled={rateInput !== "components"} hidden={rateInput !== "components"} className="grid gap-4 sm:col-span-2 sm:grid-cols-3">
+          <TextField field={f.dose_rate_gy_per_ka!} column="dose_rate_gy_per_ka" inputMode="decimal" />
+          <TextField field={f.dose_rate_error_gy_per_ka!} column="dose_rate_error_gy_per_ka" inputMode="decimal" label="Dose rate ± 1σ" />
+          <fieldset className="grid gap-4 sm:col-span-2 sm:grid-cols-3">
+            <legend className="text-sm font-semibold text-muted">
+              Dose rate components — kept with the date, and used to compute the dose rate when it is left empty
+            </legend>
             <TextField field={f.k_percent!} column="k_percent" inputMode="decimal" />
             <TextField field={f.u_ppm!} column="u_ppm" inputMode="decimal" />
             <TextField field={f.th_ppm!} column="th_ppm" inputMode="decimal" />

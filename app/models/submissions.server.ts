@@ -429,6 +429,10 @@ export function updateSubmission(db: Db, id: number, value: SubmissionValue, act
       labId: placed.labId,
       publicationId: placed.publicationId,
     };
+    // The factors a lab's own dose rate was computed with stay recorded while that dose rate stands.
+    if (next.conversionFactors == null && before.conversionFactors != null && next.doseRateGyPerKa === before.doseRateGyPerKa) {
+      (next as { conversionFactors: string | null }).conversionFactors = before.conversionFactors;
+    }
     const placeAfter = placeSnapshot(db, placed.sampleId);
     const fieldChanged = Object.entries(next).some(
       ([k, v]) => !UNTRACKED.has(k) && JSON.stringify((before as Record<string, unknown>)[k] ?? null) !== JSON.stringify(v ?? null),
@@ -514,7 +518,10 @@ export function formDefaults(db: Db, det: StoredDetermination): Record<string, s
     .where(eq(samples.id, det.sampleId))
     .get()!;
   const s = (v: number | string | null | undefined) => (v == null ? "" : String(v));
-  const computedRate = det.conversionFactors != null;
+  // A dose rate computed from K, U and Th is shown as its components only, so an edit recomputes it.
+  const computedRate =
+    det.conversionFactors === DEFAULT_CONVERSION_FACTORS &&
+    [det.kPercent, det.uPpm, det.thPpm, det.waterContentFraction, det.burialDepthM, det.densityGPerCm3].every((v) => v != null);
   return {
     site_choice: "existing",
     site_id: String(place.site.id),
@@ -549,7 +556,6 @@ export function formDefaults(db: Db, det: StoredDetermination): Record<string, s
     mineral: s(det.mineral),
     de_gy: s(det.deGy),
     de_error_gy: s(det.deErrorGy),
-    // A dose rate computed from K, U and Th is shown as its components, so an edit recomputes it.
     dose_rate_gy_per_ka: computedRate ? "" : s(det.doseRateGyPerKa),
     dose_rate_error_gy_per_ka: computedRate ? "" : s(det.doseRateErrorGyPerKa),
     k_percent: s(det.kPercent),

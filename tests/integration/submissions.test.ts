@@ -376,6 +376,29 @@ describe("edit and withdraw", () => {
     expect(auditRows(id)).toHaveLength(1);
   });
 
+  it("edits a luminescence date: a computed dose rate comes back as its components and is computed again", async () => {
+    const lum = idFrom((await submit(luminescenceForm())).location);
+    const rateBefore = detRow(lum).dose_rate_gy_per_ka as number;
+    const defaults = await editForm(lum);
+    expect(defaults).toMatchObject({ dose_rate_gy_per_ka: "", k_percent: "1.6", water_content: "0.15", method: "luminescence" });
+    expect((await save(lum, defaults)).status).toBe(302);
+    expect(detRow(lum)).toMatchObject({ version: 1, dose_rate_gy_per_ka: rateBefore });
+    expect((await save(lum, { ...defaults, k_percent: "2.1" })).status).toBe(302);
+    const after = detRow(lum) as Record<string, unknown>;
+    expect(after).toMatchObject({ version: 2, k_percent: 2.1, conversion_factors: "guerin2011" });
+    expect(after.dose_rate_gy_per_ka as number).toBeGreaterThan(rateBefore);
+  });
+
+  it("keeps the conversion factors recorded with a lab's own dose rate when the dose rate is not changed", async () => {
+    const det = createTestDetermination(db(), { method: "luminescence", contributorId: contributor.id, conversionFactors: "adamiec1998", labId: db().$client.prepare("select id from labs where name = ?").pluck().get(labName) as number });
+    const sampleMaterial = db().$client.prepare("update samples set material = 'quartz' where id = ?").run(det.sampleId);
+    expect(sampleMaterial.changes).toBe(1);
+    const defaults = await editForm(det.id);
+    expect(defaults.dose_rate_gy_per_ka).toBe("2.2");
+    expect((await save(det.id, { ...defaults, de_gy: "25" })).status).toBe(302);
+    expect(detRow(det.id)).toMatchObject({ version: 2, de_gy: 25, conversion_factors: "adamiec1998", dose_rate_gy_per_ka: 2.2 });
+  });
+
   it("moves the sample with the determination when nobody else uses it, and keeps no orphan", async () => {
     const id = await submitted();
     const sampleId = detRow(id).sample_id;
