@@ -532,7 +532,8 @@ export const auditLog = sqliteTable(
 
 /**
  * What the demo generator knows and the registry should not: each demo determination's true
- * deglaciation age and the fault planted in it, if any. Only the seed writes here; tests read it
+ * calendar age (the age of the dated material itself: for a minimum-limiting sample a little
+ * younger than its site's deglaciation) and the fault planted in it, if any. Only the seed writes here; tests read it
  * to check that the checks find what was planted.
  */
 export const scenarioTruth = sqliteTable("scenario_truth", {
