@@ -1,12 +1,16 @@
 // Low-level inserts for labs, publications, sites, samples and determinations, shared by the
-// seed, the test factories and (later) the submission workflows. A determination is always
-// written together with its audit row, in one transaction.
+// seed, the test factories and the submission workflows, and the one mapping from a validated
+// row (form, spreadsheet, API) to a determination's columns. A determination is always written
+// together with its audit row, in one transaction.
 
 import type Database from "better-sqlite3";
 import { getTableColumns, getTableName, type Column } from "drizzle-orm";
 import type { SQLiteTable } from "drizzle-orm/sqlite-core";
 import type { Db } from "#app/db/client.server.ts";
-import { auditLog, determinations, labs, publications, samples, sites } from "#app/db/schema.ts";
+import { auditLog, determinations, labs, publications, samples, sites, type Method } from "#app/db/schema.ts";
+import type { MeasurementFields } from "#app/models/calibrations.server.ts";
+import { DEFAULT_CONVERSION_FACTORS, doseRate } from "#app/science/luminescence.ts";
+import type { DeterminationRow as ValidatedRow } from "#app/utils/determination-input.ts";
 
 export type NewLab = typeof labs.$inferInsert;
 export type LabRow = typeof labs.$inferSelect;
@@ -33,6 +37,96 @@ export function insertSite(db: Db, values: NewSite): SiteRow {
 
 export function insertSample(db: Db, values: NewSample): SampleRow {
   return insertRow(db, samples, values);
+}
+
+/** The dose rate a luminescence row is calibrated with: given, or computed from K, U, Th. */
+export function rowDoseRate(row: ValidatedRow): { value: number; error: number; computed: boolean } | null {
+  if (row.dose_rate_gy_per_ka != null) {
+    return { value: row.dose_rate_gy_per_ka, error: row.dose_rate_error_gy_per_ka ?? 0, computed: false };
+  }
+  if (row.k_percent == null || row.u_ppm == null || row.th_ppm == null || row.water_content == null) return null;
+  if (row.burial_depth_m == null || row.density_g_cm3 == null) return null;
+  const r = doseRate({
+    k: { value: row.k_percent, error: 0 },
+    u: { value: row.u_ppm, error: 0 },
+    th: { value: row.th_ppm, error: 0 },
+    water: { value: row.water_content, error: 0 },
+    burial: { depthM: row.burial_depth_m, density: row.density_g_cm3 },
+  });
+  return { value: r.total, error: r.totalError, computed: true };
+}
+
+/**
+ * The determination's own columns from a validated row. With `otherMethod: "drop"` (the form)
+ * fields of the other method are dropped, so a value typed under radiocarbon and left behind
+ * when the contributor switched to luminescence is never stored; with "keep" (spreadsheet
+ * uploads and the API's bulk submissions) every field is stored as the row gives it.
+ */
+export function determinationValues(row: ValidatedRow, otherMethod: "drop" | "keep") {
+  const keep = otherMethod === "keep";
+  const c14 = row.method === "radiocarbon";
+  const lum = row.method === "luminescence";
+  const rate = lum ? rowDoseRate(row) : null;
+  const onlyC14 = <T>(v: T | undefined) => (c14 || keep ? (v ?? null) : null);
+  const onlyLum = <T>(v: T | undefined) => (lum || keep ? (v ?? null) : null);
+  return {
+    labCode: row.lab_code,
+    method: row.method as Method,
+    constraintKind: row.constraint_kind,
+    c14AgeYr: onlyC14(row.c14_age),
+    c14ErrorYr: onlyC14(row.c14_error),
+    f14c: onlyC14(row.f14c),
+    f14cError: onlyC14(row.f14c_error),
+    d13cPermil: onlyC14(row.d13c),
+    ageNormalised: c14 || keep ? row.age_normalised : true,
+    isLimit: c14 || keep ? row.greater_than : false,
+    pretreatment: onlyC14(row.pretreatment),
+    curveName: c14 ? (row.curve ?? "intcal20") : null,
+    deltaRYr: onlyC14(row.delta_r),
+    deltaRErrorYr: onlyC14(row.delta_r_error),
+    deltaRCurve: onlyC14(row.delta_r_curve),
+    signal: onlyLum(row.signal),
+    mineral: onlyLum(row.mineral),
+    deGy: onlyLum(row.de_gy),
+    deErrorGy: onlyLum(row.de_error_gy),
+    doseRateGyPerKa: rate?.value ?? null,
+    doseRateErrorGyPerKa: rate?.error ?? null,
+    kPercent: onlyLum(row.k_percent),
+    uPpm: onlyLum(row.u_ppm),
+    thPpm: onlyLum(row.th_ppm),
+    waterContentFraction: onlyLum(row.water_content),
+    grainSizeUm: onlyLum(row.grain_size_um),
+    burialDepthM: onlyLum(row.burial_depth_m),
+    densityGPerCm3: onlyLum(row.density_g_cm3),
+    conversionFactors: rate?.computed ? DEFAULT_CONVERSION_FACTORS : null,
+    measurementYear: onlyLum(row.measurement_year),
+    aliquots: onlyLum(row.aliquots),
+    ageModel: onlyLum(row.age_model),
+    notes: row.notes ?? null,
+  } satisfies Partial<NewDetermination>;
+}
+
+/** The columns a calendar age is computed from, as a stored (uploaded) row would hold them. */
+export function measurementFields(row: ValidatedRow): MeasurementFields {
+  const v = determinationValues(row, "keep");
+  return {
+    method: v.method,
+    c14AgeYr: v.c14AgeYr,
+    c14ErrorYr: v.c14ErrorYr,
+    f14c: v.f14c,
+    f14cError: v.f14cError,
+    d13cPermil: v.d13cPermil,
+    ageNormalised: v.ageNormalised,
+    isLimit: v.isLimit,
+    curveName: v.curveName,
+    deltaRYr: v.deltaRYr,
+    deltaRErrorYr: v.deltaRErrorYr,
+    deGy: v.deGy,
+    deErrorGy: v.deErrorGy,
+    doseRateGyPerKa: v.doseRateGyPerKa,
+    doseRateErrorGyPerKa: v.doseRateErrorGyPerKa,
+    measurementYear: v.measurementYear,
+  };
 }
 
 /**

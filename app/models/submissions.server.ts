@@ -21,11 +21,12 @@ import { calendarOutcome, calibrateDeterminations } from "#app/models/calibratio
 import { activeCurve, listCurves, type CurveRow } from "#app/models/curves.server.ts";
 import {
   auditSnapshot,
+  determinationValues,
   insertDetermination,
+  measurementFields,
+  rowDoseRate,
   type DeterminationRow as StoredDetermination,
-  type NewDetermination,
 } from "#app/models/determinations.server.ts";
-import { measurementFields, rowDoseRate } from "#app/models/uploads.server.ts";
 import { DEFAULT_CONVERSION_FACTORS, luminescenceAge } from "#app/science/luminescence.ts";
 import { interpretRadiocarbon } from "#app/science/radiocarbon.ts";
 import {
@@ -249,54 +250,6 @@ function publicationFor(db: Db, doi: string | undefined): number | null {
   return db.insert(publications).values({ citation: `DOI ${doi}`, doi }).returning({ id: publications.id }).get().id;
 }
 
-/**
- * The determination's own columns from a validated row. Fields of the other method are dropped,
- * so a value typed under radiocarbon and left behind when the contributor switched to
- * luminescence is never stored.
- */
-export function determinationValues(row: DeterminationRow) {
-  const c14 = row.method === "radiocarbon";
-  const lum = row.method === "luminescence";
-  const rate = lum ? rowDoseRate(row) : null;
-  const onlyC14 = <T>(v: T | undefined) => (c14 ? (v ?? null) : null);
-  const onlyLum = <T>(v: T | undefined) => (lum ? (v ?? null) : null);
-  return {
-    labCode: row.lab_code,
-    method: row.method as Method,
-    constraintKind: row.constraint_kind,
-    c14AgeYr: onlyC14(row.c14_age),
-    c14ErrorYr: onlyC14(row.c14_error),
-    f14c: onlyC14(row.f14c),
-    f14cError: onlyC14(row.f14c_error),
-    d13cPermil: onlyC14(row.d13c),
-    ageNormalised: c14 ? row.age_normalised : true,
-    isLimit: c14 ? row.greater_than : false,
-    pretreatment: onlyC14(row.pretreatment),
-    curveName: c14 ? (row.curve ?? "intcal20") : null,
-    deltaRYr: onlyC14(row.delta_r),
-    deltaRErrorYr: onlyC14(row.delta_r_error),
-    deltaRCurve: onlyC14(row.delta_r_curve),
-    signal: onlyLum(row.signal),
-    mineral: onlyLum(row.mineral),
-    deGy: onlyLum(row.de_gy),
-    deErrorGy: onlyLum(row.de_error_gy),
-    doseRateGyPerKa: rate?.value ?? null,
-    doseRateErrorGyPerKa: rate?.error ?? null,
-    kPercent: onlyLum(row.k_percent),
-    uPpm: onlyLum(row.u_ppm),
-    thPpm: onlyLum(row.th_ppm),
-    waterContentFraction: onlyLum(row.water_content),
-    grainSizeUm: onlyLum(row.grain_size_um),
-    burialDepthM: onlyLum(row.burial_depth_m),
-    densityGPerCm3: onlyLum(row.density_g_cm3),
-    conversionFactors: rate?.computed ? DEFAULT_CONVERSION_FACTORS : null,
-    measurementYear: onlyLum(row.measurement_year),
-    aliquots: onlyLum(row.aliquots),
-    ageModel: onlyLum(row.age_model),
-    notes: row.notes ?? null,
-  } satisfies Partial<NewDetermination>;
-}
-
 /** Site, sample, lab and publication for a row, created where needed; call inside the write's transaction. */
 function placeRow(db: Db, value: SubmissionValue, editing: StoredDetermination | null, actor: Actor) {
   const row = value.row;
@@ -349,7 +302,7 @@ export function createSubmission(db: Db, value: SubmissionValue, actor: Actor): 
     const det = insertDetermination(
       db,
       {
-        ...determinationValues(value.row),
+        ...determinationValues(value.row, "drop"),
         sampleId: placed.sampleId,
         labId: placed.labId,
         publicationId: placed.publicationId,
@@ -424,7 +377,7 @@ export function updateSubmission(db: Db, id: number, value: SubmissionValue, act
     const placeBefore = placeSnapshot(db, before.sampleId);
     const placed = placeRow(db, value, before, actor);
     const next = {
-      ...determinationValues(value.row),
+      ...determinationValues(value.row, "drop"),
       sampleId: placed.sampleId,
       labId: placed.labId,
       publicationId: placed.publicationId,

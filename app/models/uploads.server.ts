@@ -26,11 +26,11 @@ import {
   type UploadRowError,
 } from "#app/db/schema.ts";
 import { audit } from "#app/models/audit.server.ts";
-import { calibrateDeterminations, type MeasurementFields } from "#app/models/calibrations.server.ts";
+import { calibrateDeterminations } from "#app/models/calibrations.server.ts";
 import { activeCurve, listCurves, preparedCurve, type CurveRow } from "#app/models/curves.server.ts";
 import { curveAgeLimits } from "#app/science/calibration.ts";
-import { auditSnapshot, insertDetermination } from "#app/models/determinations.server.ts";
-import { DEFAULT_CONVERSION_FACTORS, doseRate, luminescenceAge } from "#app/science/luminescence.ts";
+import { auditSnapshot, determinationValues, insertDetermination, measurementFields } from "#app/models/determinations.server.ts";
+import { luminescenceAge } from "#app/science/luminescence.ts";
 import { interpretRadiocarbon } from "#app/science/radiocarbon.ts";
 import {
   checkRow,
@@ -379,45 +379,6 @@ function loadRegistry(db: Db, labCodes: string[]): Registry {
   };
   const labRows = db.select({ id: labs.id, name: labs.name, codePrefix: labs.codePrefix }).from(labs).all();
   return { ctx, labs: labRows, curveFor };
-}
-
-/** The dose rate a luminescence row is calibrated with: given, or computed from K, U, Th. */
-export function rowDoseRate(row: DeterminationRow): { value: number; error: number; computed: boolean } | null {
-  if (row.dose_rate_gy_per_ka != null) {
-    return { value: row.dose_rate_gy_per_ka, error: row.dose_rate_error_gy_per_ka ?? 0, computed: false };
-  }
-  if (row.k_percent == null || row.u_ppm == null || row.th_ppm == null || row.water_content == null) return null;
-  if (row.burial_depth_m == null || row.density_g_cm3 == null) return null;
-  const r = doseRate({
-    k: { value: row.k_percent, error: 0 },
-    u: { value: row.u_ppm, error: 0 },
-    th: { value: row.th_ppm, error: 0 },
-    water: { value: row.water_content, error: 0 },
-    burial: { depthM: row.burial_depth_m, density: row.density_g_cm3 },
-  });
-  return { value: r.total, error: r.totalError, computed: true };
-}
-
-export function measurementFields(row: DeterminationRow): MeasurementFields {
-  const rate = row.method === "luminescence" ? rowDoseRate(row) : null;
-  return {
-    method: row.method,
-    c14AgeYr: row.c14_age ?? null,
-    c14ErrorYr: row.c14_error ?? null,
-    f14c: row.f14c ?? null,
-    f14cError: row.f14c_error ?? null,
-    d13cPermil: row.d13c ?? null,
-    ageNormalised: row.age_normalised,
-    isLimit: row.greater_than,
-    curveName: row.method === "radiocarbon" ? (row.curve ?? "intcal20") : null,
-    deltaRYr: row.delta_r ?? null,
-    deltaRErrorYr: row.delta_r_error ?? null,
-    deGy: row.de_gy ?? null,
-    deErrorGy: row.de_error_gy ?? null,
-    doseRateGyPerKa: rate?.value ?? null,
-    doseRateErrorGyPerKa: rate?.error ?? null,
-    measurementYear: row.measurement_year ?? null,
-  };
 }
 
 /**
@@ -900,49 +861,16 @@ function writeRows(
       }
       pubCache.set(key, publicationId);
     }
-    const rate = row.method === "luminescence" ? rowDoseRate(row) : null;
     const det = insertDetermination(
       db,
       {
         sampleId,
         labId,
-        labCode: row.lab_code,
-        method: row.method,
-        constraintKind: row.constraint_kind,
+        ...determinationValues(row, "keep"),
         status: "submitted",
         contributorId: ctx.userId,
         publicationId,
         uploadBatchId: ctx.batchId,
-        c14AgeYr: row.c14_age ?? null,
-        c14ErrorYr: row.c14_error ?? null,
-        f14c: row.f14c ?? null,
-        f14cError: row.f14c_error ?? null,
-        d13cPermil: row.d13c ?? null,
-        ageNormalised: row.age_normalised,
-        isLimit: row.greater_than,
-        pretreatment: row.pretreatment ?? null,
-        curveName: row.method === "radiocarbon" ? (row.curve ?? "intcal20") : null,
-        deltaRYr: row.delta_r ?? null,
-        deltaRErrorYr: row.delta_r_error ?? null,
-        deltaRCurve: row.delta_r_curve ?? null,
-        signal: row.signal ?? null,
-        mineral: row.mineral ?? null,
-        deGy: row.de_gy ?? null,
-        deErrorGy: row.de_error_gy ?? null,
-        doseRateGyPerKa: rate?.value ?? null,
-        doseRateErrorGyPerKa: rate?.error ?? null,
-        kPercent: row.k_percent ?? null,
-        uPpm: row.u_ppm ?? null,
-        thPpm: row.th_ppm ?? null,
-        waterContentFraction: row.water_content ?? null,
-        grainSizeUm: row.grain_size_um ?? null,
-        burialDepthM: row.burial_depth_m ?? null,
-        densityGPerCm3: row.density_g_cm3 ?? null,
-        conversionFactors: rate?.computed ? DEFAULT_CONVERSION_FACTORS : null,
-        measurementYear: row.measurement_year ?? null,
-        aliquots: row.aliquots ?? null,
-        ageModel: row.age_model ?? null,
-        notes: row.notes ?? null,
       },
       ctx.userId,
     );
