@@ -39,6 +39,30 @@ export function insertSample(db: Db, values: NewSample): SampleRow {
   return insertRow(db, samples, values);
 }
 
+/** A new site's columns from a validated row. */
+export function siteValues(row: ValidatedRow, createdBy: number): NewSite {
+  return {
+    name: row.site_name,
+    latitude: row.latitude,
+    longitude: row.longitude,
+    elevationM: row.elevation_m ?? null,
+    setting: row.setting ?? null,
+    createdBy,
+  };
+}
+
+/** A sample's own columns from a validated row (the site it hangs on is the caller's). */
+export function sampleValues(row: ValidatedRow) {
+  return {
+    fieldCode: row.sample_code,
+    material: row.material,
+    depthCm: row.depth_cm ?? null,
+    stratUnit: row.strat_unit ?? null,
+    stratOrder: row.strat_order ?? null,
+    context: row.context ?? null,
+  } satisfies Partial<NewSample>;
+}
+
 /** The dose rate a luminescence row is calibrated with: given, or computed from K, U, Th. */
 export function rowDoseRate(row: ValidatedRow): { value: number; error: number; computed: boolean } | null {
   if (row.dose_rate_gy_per_ka != null) {

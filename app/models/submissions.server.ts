@@ -25,6 +25,8 @@ import {
   insertDetermination,
   measurementFields,
   rowDoseRate,
+  sampleValues,
+  siteValues,
   type DeterminationRow as StoredDetermination,
 } from "#app/models/determinations.server.ts";
 import { DEFAULT_CONVERSION_FACTORS, luminescenceAge } from "#app/science/luminescence.ts";
@@ -166,17 +168,6 @@ const SAMPLE_FIELDS = [
   ["context", "context"],
 ] as const;
 
-function sampleValues(row: DeterminationRow) {
-  return {
-    fieldCode: row.sample_code,
-    material: row.material,
-    depthCm: row.depth_cm ?? null,
-    stratUnit: row.strat_unit ?? null,
-    stratOrder: row.strat_order ?? null,
-    context: row.context ?? null,
-  };
-}
-
 function planSample(db: Db, row: DeterminationRow, siteId: number | null, editing: StoredDetermination | null): SamplePlan {
   const target =
     siteId == null
@@ -261,18 +252,7 @@ function placeRow(db: Db, value: SubmissionValue, editing: StoredDetermination |
   let createdSite = false;
   if ("site" in sitePlan) siteId = sitePlan.site.id;
   else {
-    siteId = db
-      .insert(sites)
-      .values({
-        name: row.site_name,
-        latitude: row.latitude,
-        longitude: row.longitude,
-        elevationM: row.elevation_m ?? null,
-        setting: row.setting ?? null,
-        createdBy: actor.userId,
-      })
-      .returning({ id: sites.id })
-      .get().id;
+    siteId = db.insert(sites).values(siteValues(row, actor.userId)).returning({ id: sites.id }).get().id;
     createdSite = true;
   }
   const samplePlan = planSample(db, row, siteId, editing);

@@ -29,7 +29,14 @@ import { audit } from "#app/models/audit.server.ts";
 import { calibrateDeterminations } from "#app/models/calibrations.server.ts";
 import { activeCurve, listCurves, preparedCurve, type CurveRow } from "#app/models/curves.server.ts";
 import { curveAgeLimits } from "#app/science/calibration.ts";
-import { auditSnapshot, determinationValues, insertDetermination, measurementFields } from "#app/models/determinations.server.ts";
+import {
+  auditSnapshot,
+  determinationValues,
+  insertDetermination,
+  measurementFields,
+  sampleValues,
+  siteValues,
+} from "#app/models/determinations.server.ts";
 import { luminescenceAge } from "#app/science/luminescence.ts";
 import { interpretRadiocarbon } from "#app/science/radiocarbon.ts";
 import {
@@ -815,18 +822,7 @@ function writeRows(
     let site = findSite(existingSites.get(row.site_name), row.latitude, row.longitude) ??
       findSite(createdSites.get(row.site_name), row.latitude, row.longitude);
     if (!site) {
-      const created = db
-        .insert(sites)
-        .values({
-          name: row.site_name,
-          latitude: row.latitude,
-          longitude: row.longitude,
-          elevationM: row.elevation_m ?? null,
-          setting: row.setting ?? null,
-          createdBy: ctx.userId,
-        })
-        .returning({ id: sites.id })
-        .get();
+      const created = db.insert(sites).values(siteValues(row, ctx.userId)).returning({ id: sites.id }).get();
       site = { id: created.id, name: row.site_name, latitude: row.latitude, longitude: row.longitude };
       createdSites.set(site.name, [...(createdSites.get(site.name) ?? []), site]);
       createdSiteIds.push(created.id);
@@ -837,15 +833,7 @@ function writeRows(
     if (sampleId === undefined) {
       sampleId = db
         .insert(samples)
-        .values({
-          siteId: site.id,
-          fieldCode: row.sample_code,
-          material: row.material,
-          depthCm: row.depth_cm ?? null,
-          stratUnit: row.strat_unit ?? null,
-          stratOrder: row.strat_order ?? null,
-          context: row.context ?? null,
-        })
+        .values({ siteId: site.id, ...sampleValues(row) })
         .returning({ id: samples.id })
         .get().id;
       createdSampleIds.push(sampleId);
