@@ -81,15 +81,7 @@ export type ExploreRow = {
   material: string;
   method: (typeof METHODS)[number];
   signal: string | null;
-  c14AgeYr: number | null;
-  c14ErrorYr: number | null;
-  f14c: number | null;
-  f14cError: number | null;
-  isLimit: boolean;
-  deGy: number | null;
-  deErrorGy: number | null;
-  doseRateGyPerKa: number | null;
-  doseRateErrorGyPerKa: number | null;
+} & ListedMeasurement & {
   /** ¹⁴C years BP, or luminescence years before measurement; null when not measured. */
   measuredAgeYr: number | null;
   medianCalBp: number | null;
@@ -110,6 +102,24 @@ export type ExploreResult = {
   pageCount: number;
   pageSize: number;
 };
+
+/** The measurement a list shows for each determination (formatMeasuredAge reads it). */
+export type ListedMeasurement = {
+  c14AgeYr: number | null;
+  c14ErrorYr: number | null;
+  f14c: number | null;
+  f14cError: number | null;
+  isLimit: boolean;
+  deGy: number | null;
+  deErrorGy: number | null;
+  doseRateGyPerKa: number | null;
+  doseRateErrorGyPerKa: number | null;
+};
+
+/** The columns of a ListedMeasurement from determinations `d`, in SQL; isLimit comes back 0/1 for the caller to turn into a boolean. */
+export const LISTED_MEASUREMENT_SQL = `d.c14_age_yr as c14AgeYr, d.c14_error_yr as c14ErrorYr, d.f14c, d.f14c_error as f14cError,
+         d.is_limit as isLimit, d.de_gy as deGy, d.de_error_gy as deErrorGy,
+         d.dose_rate_gy_per_ka as doseRateGyPerKa, d.dose_rate_error_gy_per_ka as doseRateErrorGyPerKa`;
 
 /** ¹⁴C age (from F14C when only that was given) or luminescence age in years, in SQL. */
 export const MEASURED_AGE_SQL = `(case d.method
@@ -239,9 +249,7 @@ export function exploreDeterminations(db: Db, filters: ExploreFilters): ExploreR
     .prepare(
       `select d.id, d.lab_code as labCode, t.id as siteId, t.name as siteName, s.id as sampleId,
          s.field_code as fieldCode, s.material, d.method, d.signal,
-         d.c14_age_yr as c14AgeYr, d.c14_error_yr as c14ErrorYr, d.f14c, d.f14c_error as f14cError,
-         d.is_limit as isLimit, d.de_gy as deGy, d.de_error_gy as deErrorGy,
-         d.dose_rate_gy_per_ka as doseRateGyPerKa, d.dose_rate_error_gy_per_ka as doseRateErrorGyPerKa,
+         ${LISTED_MEASUREMENT_SQL},
          ${MEASURED_AGE_SQL} as measuredAgeYr,
          c.median_cal_bp as medianCalBp, c.hpd95_from_bp as hpd95FromBp, c.hpd95_to_bp as hpd95ToBp,
          c.curve_label as curveLabel,

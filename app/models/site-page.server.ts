@@ -1,5 +1,5 @@
 import type { Db } from "#app/db/client.server.ts";
-import { MEASURED_AGE_SQL } from "#app/models/explore.server.ts";
+import { LISTED_MEASUREMENT_SQL, MEASURED_AGE_SQL, type ListedMeasurement } from "#app/models/explore.server.ts";
 
 /*
  * The site page: the site, and every sample with its determinations in stratigraphic order
@@ -21,15 +21,7 @@ export type SiteDeterminationRow = {
   constraintKind: string | null;
   status: string | null;
   grade: number | null;
-  c14AgeYr: number | null;
-  c14ErrorYr: number | null;
-  f14c: number | null;
-  f14cError: number | null;
-  isLimit: boolean;
-  deGy: number | null;
-  deErrorGy: number | null;
-  doseRateGyPerKa: number | null;
-  doseRateErrorGyPerKa: number | null;
+} & ListedMeasurement & {
   measuredAgeYr: number | null;
   medianCalBp: number | null;
   hpd95FromBp: number | null;
@@ -67,9 +59,7 @@ export function siteDetail(db: Db, id: number) {
       `select s.id as sampleId, s.field_code as fieldCode, s.material, s.depth_cm as depthCm,
          s.strat_unit as stratUnit, s.strat_order as stratOrder, s.context,
          d.id, d.lab_code as labCode, d.method, d.signal, d.constraint_kind as constraintKind, d.status, d.grade,
-         d.c14_age_yr as c14AgeYr, d.c14_error_yr as c14ErrorYr, d.f14c, d.f14c_error as f14cError,
-         coalesce(d.is_limit, 0) as isLimit, d.de_gy as deGy, d.de_error_gy as deErrorGy,
-         d.dose_rate_gy_per_ka as doseRateGyPerKa, d.dose_rate_error_gy_per_ka as doseRateErrorGyPerKa,
+         ${LISTED_MEASUREMENT_SQL},
          ${MEASURED_AGE_SQL} as measuredAgeYr,
          c.median_cal_bp as medianCalBp, c.hpd95_from_bp as hpd95FromBp, c.hpd95_to_bp as hpd95ToBp
        from samples s
@@ -78,7 +68,7 @@ export function siteDetail(db: Db, id: number) {
        where s.site_id = ?
        order by s.strat_order is null, s.strat_order, s.depth_cm is null, s.depth_cm, s.field_code, d.lab_code`,
     )
-    .all(id) as (Omit<SiteDeterminationRow, "isLimit"> & { isLimit: number })[];
+    .all(id) as (Omit<SiteDeterminationRow, "isLimit"> & { isLimit: number | null })[];
   const rows: SiteDeterminationRow[] = raw.map((r) => ({ ...r, isLimit: r.isLimit === 1 }));
 
   const determinationCount = rows.filter((r) => r.id != null).length;

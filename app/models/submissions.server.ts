@@ -19,6 +19,7 @@ import {
 import { audit } from "#app/models/audit.server.ts";
 import { calendarOutcome, calibrateDeterminations } from "#app/models/calibrations.server.ts";
 import { activeCurve, listCurves, type CurveRow } from "#app/models/curves.server.ts";
+import { LISTED_MEASUREMENT_SQL, type ListedMeasurement } from "#app/models/explore.server.ts";
 import {
   auditSnapshot,
   determinationValues,
@@ -591,15 +592,7 @@ export type SubmissionListRow = {
   siteName: string;
   fieldCode: string;
   material: string;
-  c14AgeYr: number | null;
-  c14ErrorYr: number | null;
-  f14c: number | null;
-  f14cError: number | null;
-  isLimit: boolean;
-  deGy: number | null;
-  deErrorGy: number | null;
-  doseRateGyPerKa: number | null;
-  doseRateErrorGyPerKa: number | null;
+} & ListedMeasurement & {
   medianCalBp: number | null;
   calibrationError: string | null;
   reviewed: boolean;
@@ -640,9 +633,7 @@ export function listSubmissions(db: Db, userId: number, filters: SubmissionFilte
     .prepare(
       `select d.id, d.lab_code as labCode, d.method, d.signal, d.status, d.grade, d.version,
          t.id as siteId, t.name as siteName, s.field_code as fieldCode, s.material,
-         d.c14_age_yr as c14AgeYr, d.c14_error_yr as c14ErrorYr, d.f14c, d.f14c_error as f14cError, d.is_limit as isLimit,
-         d.de_gy as deGy, d.de_error_gy as deErrorGy, d.dose_rate_gy_per_ka as doseRateGyPerKa,
-         d.dose_rate_error_gy_per_ka as doseRateErrorGyPerKa,
+         ${LISTED_MEASUREMENT_SQL},
          c.median_cal_bp as medianCalBp, c.error as calibrationError,
          exists(select 1 from reviews r where r.determination_id = d.id) as reviewed,
          d.created_at as createdAt, d.updated_at as updatedAt
