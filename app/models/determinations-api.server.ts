@@ -101,9 +101,8 @@ function pageIds(db: Db, filters: ExploreFilters, perPage: number): { ids: numbe
   return { ids: ids.slice(0, perPage), total: first.total };
 }
 
-type Joined = {
-  id: number;
-  lab_code: string;
+/** A row as the query returns it: the API's own fields as they are, plus the ones toApi reshapes. */
+type Joined = Omit<ApiDetermination, "lab" | "site" | "age_normalised" | "greater_than" | "created_at" | "updated_at" | "calibration"> & {
   lab_id: number;
   lab_name: string;
   site_id: number;
@@ -111,37 +110,8 @@ type Joined = {
   latitude: number;
   longitude: number;
   elevation_m: number | null;
-  sample_code: string;
-  material: string;
-  depth_cm: number | null;
-  strat_unit: string | null;
-  method: string;
-  constraint_kind: string;
-  status: string;
-  grade: number | null;
-  version: number;
-  c14_age: number | null;
-  c14_error: number | null;
-  f14c: number | null;
-  f14c_error: number | null;
-  d13c: number | null;
   age_normalised: number;
   is_limit: number;
-  pretreatment: string | null;
-  curve: string | null;
-  delta_r: number | null;
-  delta_r_error: number | null;
-  delta_r_curve: string | null;
-  signal: string | null;
-  mineral: string | null;
-  de_gy: number | null;
-  de_error_gy: number | null;
-  dose_rate_gy_per_ka: number | null;
-  dose_rate_error_gy_per_ka: number | null;
-  measurement_year: number | null;
-  aliquots: number | null;
-  age_model: string | null;
-  doi: string | null;
   created_at: number;
   updated_at: number;
   cal_label: string | null;
