@@ -1,6 +1,6 @@
 import { z } from "zod";
 import type { Db } from "#app/db/client.server.ts";
-import { calendarOutcome } from "#app/models/calibrations.server.ts";
+import { calendarOutcome, radiocarbonAgeFields } from "#app/models/calibrations.server.ts";
 import { activeCurve, type CurveRow } from "#app/models/curves.server.ts";
 import type { CalendarDensity, Range } from "#app/science/density.ts";
 import {
@@ -110,28 +110,7 @@ export function calibrateItems(db: Db, items: unknown[], options: { density?: bo
     if (curve.kind !== "marine" && ((item.delta_r ?? 0) !== 0 || (item.delta_r_error ?? 0) !== 0)) {
       return { id, error: `delta_r applies to marine curves only; ${curve.displayName} is ${curve.kind}.` };
     }
-    const outcome = calendarOutcome(
-      db,
-      {
-        method: "radiocarbon",
-        c14AgeYr: item.c14_age,
-        c14ErrorYr: item.c14_error,
-        f14c: null,
-        f14cError: null,
-        d13cPermil: null,
-        ageNormalised: true,
-        isLimit: false,
-        curveName: name,
-        deltaRYr: item.delta_r ?? null,
-        deltaRErrorYr: item.delta_r_error ?? null,
-        deGy: null,
-        deErrorGy: null,
-        doseRateGyPerKa: null,
-        doseRateErrorGyPerKa: null,
-        measurementYear: null,
-      },
-      curveFor,
-    );
+    const outcome = calendarOutcome(db, radiocarbonAgeFields(item, name), curveFor);
     if (!outcome.ok) return { id, error: outcome.error };
     used.set(name, curve);
     const s = outcome.summary;

@@ -1,7 +1,7 @@
 import { and, desc, eq } from "drizzle-orm";
 import type { Db } from "#app/db/client.server.ts";
 import { calibrations, curves, determinations } from "#app/db/schema.ts";
-import { calendarOutcome, decodeDensity } from "#app/models/calibrations.server.ts";
+import { calendarOutcome, decodeDensity, radiocarbonAgeFields } from "#app/models/calibrations.server.ts";
 import { activeCurve, curveWindow, type CurveRow } from "#app/models/curves.server.ts";
 import {
   plotWindow,
@@ -38,24 +38,7 @@ function plainDensity(d: CalendarDensity) {
 
 /** Plot of one not-stored item (calibration page without script). Null when it does not calibrate. */
 export function plotForItem(db: Db, item: CalibrationItem): CalibrationPlotData | null {
-  const outcome = calendarOutcome(db, {
-    method: "radiocarbon",
-    c14AgeYr: item.c14_age,
-    c14ErrorYr: item.c14_error,
-    f14c: null,
-    f14cError: null,
-    d13cPermil: null,
-    ageNormalised: true,
-    isLimit: false,
-    curveName: item.curve,
-    deltaRYr: item.delta_r ?? null,
-    deltaRErrorYr: item.delta_r_error ?? null,
-    deGy: null,
-    deErrorGy: null,
-    doseRateGyPerKa: null,
-    doseRateErrorGyPerKa: null,
-    measurementYear: null,
-  });
+  const outcome = calendarOutcome(db, radiocarbonAgeFields(item, item.curve));
   if (!outcome.ok || !outcome.curve) return null;
   const marine = outcome.curve.kind === "marine";
   return {

@@ -6,6 +6,7 @@ import { normalDensity, summariseDensity, type CalendarDensity, type DensitySumm
 import { luminescenceAge, luminescenceAgeToCalBp } from "#app/science/luminescence.ts";
 import { interpretRadiocarbon } from "#app/science/radiocarbon.ts";
 import { activeCurve, preparedCurve, type CurveRow } from "#app/models/curves.server.ts";
+import type { CalibrationItem } from "#app/utils/calibrate-input.ts";
 
 type DeterminationRow = typeof determinations.$inferSelect;
 
@@ -33,6 +34,31 @@ export type MeasurementFields = Pick<
   | "doseRateErrorGyPerKa"
   | "measurementYear"
 >;
+
+/** A bare radiocarbon age (δ13C-normalised, not a limit) on a named curve, as calibrated for the calibration API and page. */
+export function radiocarbonAgeFields(
+  item: Pick<CalibrationItem, "c14_age" | "c14_error" | "delta_r" | "delta_r_error">,
+  curveName: string,
+): MeasurementFields {
+  return {
+    method: "radiocarbon",
+    c14AgeYr: item.c14_age,
+    c14ErrorYr: item.c14_error,
+    f14c: null,
+    f14cError: null,
+    d13cPermil: null,
+    ageNormalised: true,
+    isLimit: false,
+    curveName,
+    deltaRYr: item.delta_r ?? null,
+    deltaRErrorYr: item.delta_r_error ?? null,
+    deGy: null,
+    deErrorGy: null,
+    doseRateGyPerKa: null,
+    doseRateErrorGyPerKa: null,
+    measurementYear: null,
+  };
+}
 
 export function curveLabel(curve: CurveRow, deltaR?: number | null, deltaRError?: number | null): string {
   const base = `${curve.displayName} (${curve.version})`;
