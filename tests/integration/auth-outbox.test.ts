@@ -1,7 +1,6 @@
 import fs from "node:fs";
-import path from "node:path";
-import { afterAll, beforeAll, describe, expect, it, vi } from "vitest";
-import { startMailFake } from "#seed/mail-fake.ts";
+import { describe, expect, it, vi } from "vitest";
+import { useMailFake } from "#tests/support/mail-fake.ts";
 
 // The outbox page exists only while the app uses the mail fake; the switch is mocked here so both
 // sides can be tested in one process (the real function reads the environment once).
@@ -16,16 +15,7 @@ const { signInMessage } = await import("#app/mail/templates.server.ts");
 const outbox = await import("#app/routes/dev.outbox.tsx");
 const { args, get, run } = await import("#tests/support/auth.ts");
 
-const outboxDir = path.resolve(`tmp/integration/outbox-dev-${process.pid}-${Date.now()}`);
-let fake: Awaited<ReturnType<typeof startMailFake>>;
-beforeAll(async () => {
-  fake = await startMailFake({ port: 0, outboxDir });
-  process.env.RESEND_BASE_URL = fake.url;
-});
-afterAll(async () => {
-  await fake.close();
-  fs.rmSync(outboxDir, { recursive: true, force: true });
-});
+const fake = useMailFake("dev");
 
 type Page = { problem: string | null; messages: { to: string[]; code: string | null; links: string[]; subject: string; html: string | null }[] };
 
@@ -91,6 +81,6 @@ describe("the mail fake", () => {
     expect(id).toMatch(/^[0-9a-f-]{36}$/);
     const one = await fetch(`${fake.url}/emails/${id}`);
     expect(await one.json()).toMatchObject({ id, to: ["b@example.org"], subject: "Hello", text: "Hi" });
-    expect(fs.readdirSync(outboxDir).some((f) => f.endsWith(`${id}.json`))).toBe(true);
+    expect(fs.readdirSync(fake.outboxDir).some((f) => f.endsWith(`${id}.json`))).toBe(true);
   });
 });

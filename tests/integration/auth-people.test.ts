@@ -1,8 +1,6 @@
-import fs from "node:fs";
-import path from "node:path";
 import { and, eq } from "drizzle-orm";
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { readOutbox, startMailFake } from "#seed/mail-fake.ts";
+import { describe, expect, it } from "vitest";
+import { readOutbox } from "#seed/mail-fake.ts";
 import { getDb } from "#app/db/client.server.ts";
 import { auditLog, sessions, users } from "#app/db/schema.ts";
 import { getOptionalUser } from "#app/auth/session.server.ts";
@@ -11,17 +9,9 @@ import * as people from "#app/routes/people.tsx";
 import * as me from "#app/routes/api/v1.me.ts";
 import * as account from "#app/routes/account.tsx";
 import { args, get, personWithSession, post, run } from "#tests/support/auth.ts";
+import { useMailFake } from "#tests/support/mail-fake.ts";
 
-const outboxDir = path.resolve(`tmp/integration/outbox-people-${process.pid}-${Date.now()}`);
-let fake: Awaited<ReturnType<typeof startMailFake>>;
-beforeAll(async () => {
-  fake = await startMailFake({ port: 0, outboxDir });
-  process.env.RESEND_BASE_URL = fake.url;
-});
-afterAll(async () => {
-  await fake.close();
-  fs.rmSync(outboxDir, { recursive: true, force: true });
-});
+const fake = useMailFake("people");
 
 describe("the people page", () => {
   it("is for editors only", async () => {
@@ -60,7 +50,7 @@ describe("the people page", () => {
     expect(row).toMatchObject({ name: "Noor Field", active: true });
     expect(getPerson(getDb(), row.id)!.roles).toEqual(["contributor", "reviewer"]);
 
-    const mail = readOutbox(outboxDir).filter((m) => m.to.includes("noor.field@example.org"));
+    const mail = readOutbox(fake.outboxDir).filter((m) => m.to.includes("noor.field@example.org"));
     expect(mail).toHaveLength(1);
     expect(mail[0]!.subject).toBe("You are invited to Thawline");
     expect(mail[0]!.text).toContain("Edith Editor has invited you");

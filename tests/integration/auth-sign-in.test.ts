@@ -1,8 +1,6 @@
-import fs from "node:fs";
-import path from "node:path";
 import { and, eq } from "drizzle-orm";
-import { afterAll, afterEach, beforeAll, describe, expect, it, vi } from "vitest";
-import { startMailFake, readOutbox } from "#seed/mail-fake.ts";
+import { afterEach, describe, expect, it, vi } from "vitest";
+import { readOutbox } from "#seed/mail-fake.ts";
 import { getDb } from "#app/db/client.server.ts";
 import { auditLog, sessions, users } from "#app/db/schema.ts";
 import { getOptionalUser } from "#app/auth/session.server.ts";
@@ -13,18 +11,9 @@ import * as signIn from "#app/routes/sign-in.tsx";
 import * as signInLink from "#app/routes/sign-in.link.tsx";
 import * as signOut from "#app/routes/sign-out.ts";
 import { args, CookieJar, get, post, run } from "#tests/support/auth.ts";
+import { useMailFake } from "#tests/support/mail-fake.ts";
 
-const outboxDir = path.resolve(`tmp/integration/outbox-sign-in-${process.pid}-${Date.now()}`);
-let fake: Awaited<ReturnType<typeof startMailFake>>;
-
-beforeAll(async () => {
-  fake = await startMailFake({ port: 0, outboxDir });
-  process.env.RESEND_BASE_URL = fake.url;
-});
-afterAll(async () => {
-  await fake.close();
-  fs.rmSync(outboxDir, { recursive: true, force: true });
-});
+const fake = useMailFake("sign-in");
 afterEach(() => {
   vi.useRealTimers();
 });
@@ -43,7 +32,7 @@ function person(roles: Parameters<typeof createUser>[1]["roles"] = ["contributor
 }
 
 function mailTo(email: string) {
-  return readOutbox(outboxDir).filter((m) => m.to.includes(email));
+  return readOutbox(fake.outboxDir).filter((m) => m.to.includes(email));
 }
 
 /** Asks for a code the way the form does; returns the jar with the pending sign-in cookies. */

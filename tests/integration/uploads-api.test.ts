@@ -1,7 +1,5 @@
-import fs from "node:fs";
-import path from "node:path";
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { readOutbox, startMailFake } from "#seed/mail-fake.ts";
+import { describe, expect, it } from "vitest";
+import { readOutbox } from "#seed/mail-fake.ts";
 import { getDb } from "#app/db/client.server.ts";
 import { createToken } from "#app/models/tokens.server.ts";
 import * as uploadsApi from "#app/routes/api/v1.uploads.ts";
@@ -17,17 +15,9 @@ import { readUpload } from "#app/models/uploads.server.ts";
 import { createTestUser } from "#tests/factories.ts";
 import { args, get, ORIGIN, personWithSession, post, run } from "#tests/support/auth.ts";
 import { toCsvText, toXlsx, uploadRows } from "#tests/support/upload-files.ts";
+import { useMailFake } from "#tests/support/mail-fake.ts";
 
-const outboxDir = path.resolve(`tmp/integration/outbox-uploads-${process.pid}-${Date.now()}`);
-let fake: Awaited<ReturnType<typeof startMailFake>>;
-beforeAll(async () => {
-  fake = await startMailFake({ port: 0, outboxDir });
-  process.env.RESEND_BASE_URL = fake.url;
-});
-afterAll(async () => {
-  await fake.close();
-  fs.rmSync(outboxDir, { recursive: true, force: true });
-});
+const fake = useMailFake("uploads");
 
 let n = 0;
 const prefix = () => `ZA${++n}Q`;
@@ -193,7 +183,7 @@ describe("upload pages", () => {
     const valid = await run(() => uploadPage.action(args(post(location, { intent: "commit-valid" }, { cookie: p.cookie }), { publicId })));
     expect(valid.status).toBe(302);
     expect(count()).toBe(before + 5);
-    const receipt = readOutbox(outboxDir).find((m) => JSON.stringify(m).includes(p.email));
+    const receipt = readOutbox(fake.outboxDir).find((m) => JSON.stringify(m).includes(p.email));
     expect(receipt).toBeTruthy();
     expect(JSON.stringify(receipt)).toContain("5 determinations");
     expect(JSON.stringify(receipt)).toContain("/submissions");
