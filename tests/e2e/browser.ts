@@ -1,4 +1,6 @@
+import Database from "better-sqlite3";
 import { chromium, type Browser } from "playwright-core";
+import { afterAll, beforeAll, inject } from "vitest";
 
 /** Debian's chromium, headless, with the flags this closed network needs. */
 export function launchBrowser(): Promise<Browser> {
@@ -16,4 +18,31 @@ export function launchBrowser(): Promise<Browser> {
       "--disable-dev-shm-usage",
     ],
   });
+}
+
+/** The test file's browser: launched before its tests, closed after them. Read `.browser` inside a test. */
+export function useBrowser(): { browser: Browser } {
+  const session = {} as { browser: Browser };
+  beforeAll(async () => {
+    session.browser = await launchBrowser();
+  });
+  afterAll(async () => {
+    await session.browser?.close();
+  });
+  return session;
+}
+
+/**
+ * The file's browser and a read-only handle on the app's database (to check what a journey
+ * wrote), both opened before its tests and closed after them.
+ */
+export function useBrowserAndDatabase(): { browser: Browser; db: Database.Database } {
+  const session = useBrowser() as { browser: Browser; db: Database.Database };
+  beforeAll(() => {
+    session.db = new Database(inject("databaseFile"), { readonly: true, fileMustExist: true });
+  });
+  afterAll(() => {
+    session.db?.close();
+  });
+  return session;
 }

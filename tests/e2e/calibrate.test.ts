@@ -1,18 +1,11 @@
 import fs from "node:fs";
-import { afterAll, beforeAll, expect, inject, test } from "vitest";
-import type { Browser } from "playwright-core";
-import { launchBrowser } from "./browser.ts";
+import { expect, inject, test } from "vitest";
+import { useBrowser } from "./browser.ts";
 
-let browser: Browser;
-beforeAll(async () => {
-  browser = await launchBrowser();
-});
-afterAll(async () => {
-  await browser?.close();
-});
+const e2e = useBrowser();
 
 test("calibrate one age as you type, see the plot, download the CSV", async () => {
-  const page = await browser.newPage({ acceptDownloads: true });
+  const page = await e2e.browser.newPage({ acceptDownloads: true });
   await page.goto(`${inject("baseUrl")}/calibrate`);
   // Typing only calibrates once the page is interactive.
   await page.waitForLoadState("networkidle");
@@ -40,7 +33,7 @@ test("calibrate one age as you type, see the plot, download the CSV", async () =
 });
 
 test("a pasted list shows each result and a message for a bad line", async () => {
-  const page = await browser.newPage();
+  const page = await e2e.browser.newPage();
   await page.goto(`${inject("baseUrl")}/calibrate`);
   await page.waitForLoadState("networkidle");
   await page.check("#mode-list");

@@ -1,7 +1,6 @@
-import Database from "better-sqlite3";
-import { afterAll, beforeAll, describe, expect, inject, test } from "vitest";
-import type { Browser, Page } from "playwright-core";
-import { launchBrowser } from "./browser.ts";
+import { describe, expect, inject, test } from "vitest";
+import type { Page } from "playwright-core";
+import { useBrowserAndDatabase } from "./browser.ts";
 import { signIn } from "./helpers.ts";
 
 /*
@@ -11,17 +10,7 @@ import { signIn } from "./helpers.ts";
  */
 
 const baseUrl = inject("baseUrl");
-let browser: Browser;
-let db: Database.Database;
-
-beforeAll(async () => {
-  browser = await launchBrowser();
-  db = new Database(inject("databaseFile"), { readonly: true, fileMustExist: true });
-});
-afterAll(async () => {
-  await browser?.close();
-  db?.close();
-});
+const e2e = useBrowserAndDatabase();
 
 /** Every request the page makes must stay on the app's own address (the map is offline). */
 function recordForeignRequests(page: Page): string[] {
@@ -39,7 +28,7 @@ const firstNumber = (text: string | null) => Number((/[\d,]+/.exec(text ?? "")?.
 
 describe("exploring the registry", () => {
   test("filter, sort, page, open a determination, then the map", async () => {
-    const context = await browser.newContext();
+    const context = await e2e.browser.newContext();
     const page = await context.newPage();
     const foreign = recordForeignRequests(page);
     await signIn(page, "modeller@example.org");
@@ -59,7 +48,7 @@ describe("exploring the registry", () => {
     ]);
     await page.getByTestId("explore-total").filter({ hasText: "match these filters" }).waitFor();
     const radiocarbonTotal = firstNumber(await page.getByTestId("explore-total").textContent());
-    const expected = db
+    const expected = e2e.db
       .prepare("select count(*) as n from determinations where method = 'radiocarbon' and status != 'withdrawn'")
       .get() as { n: number };
     expect(radiocarbonTotal).toBe(expected.n);
@@ -101,7 +90,7 @@ describe("exploring the registry", () => {
     const ready = page.getByTestId("map-ready");
     await ready.waitFor({ state: "attached", timeout: 30_000 });
     const drawn = Number(await ready.getAttribute("data-count"));
-    const sites = db
+    const sites = e2e.db
       .prepare(
         `select count(distinct s.site_id) as n from determinations d join samples s on s.id = d.sample_id
          where d.status != 'withdrawn'`,
@@ -125,11 +114,11 @@ describe("exploring the registry", () => {
 
   test("the filter form works without JavaScript", async () => {
     // Sign in with scripts on, then carry the session into a context with scripts off.
-    const signedIn = await browser.newContext();
+    const signedIn = await e2e.browser.newContext();
     await signIn(await signedIn.newPage(), "modeller@example.org");
     const cookies = await signedIn.cookies(baseUrl);
     await signedIn.close();
-    const noScript = await browser.newContext({ javaScriptEnabled: false });
+    const noScript = await e2e.browser.newContext({ javaScriptEnabled: false });
     await noScript.addCookies(cookies);
     const plain = await noScript.newPage();
     await plain.goto(`${baseUrl}/explore`);

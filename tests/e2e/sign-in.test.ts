@@ -1,24 +1,13 @@
-import Database from "better-sqlite3";
-import { afterAll, beforeAll, describe, expect, inject, test } from "vitest";
-import type { Browser, BrowserContext, Page } from "playwright-core";
-import { launchBrowser } from "./browser.ts";
+import { describe, expect, inject, test } from "vitest";
+import type { BrowserContext, Page } from "playwright-core";
+import { useBrowserAndDatabase } from "./browser.ts";
 import { codeFrom, messagesFor, waitForMessage } from "./helpers.ts";
 
 const baseUrl = inject("baseUrl");
-let browser: Browser;
-let db: Database.Database;
-
-beforeAll(async () => {
-  browser = await launchBrowser();
-  db = new Database(inject("databaseFile"), { readonly: true, fileMustExist: true });
-});
-afterAll(async () => {
-  await browser?.close();
-  db?.close();
-});
+const e2e = useBrowserAndDatabase();
 
 function nameOf(email: string): string {
-  const row = db.prepare("select name from users where email = ?").get(email) as { name: string } | undefined;
+  const row = e2e.db.prepare("select name from users where email = ?").get(email) as { name: string } | undefined;
   if (!row) throw new Error(`The seed has no ${email}`);
   return row.name;
 }
@@ -40,7 +29,7 @@ async function sessionCookie(context: BrowserContext): Promise<string> {
 
 describe("signing in", () => {
   test("with the code from the outbox: see your name, then sign out", async () => {
-    const context = await browser.newContext();
+    const context = await e2e.browser.newContext();
     const page = await context.newPage();
     const email = "editor@example.org";
     const message = await askForCode(page, email);
@@ -66,7 +55,7 @@ describe("signing in", () => {
   });
 
   test("with the magic link, confirmed by one click", async () => {
-    const context = await browser.newContext();
+    const context = await e2e.browser.newContext();
     const page = await context.newPage();
     const email = "modeller@example.org";
     const message = await askForCode(page, email);
@@ -84,7 +73,7 @@ describe("signing in", () => {
   });
 
   test("a wrong code is refused with a message at the form", async () => {
-    const context = await browser.newContext();
+    const context = await e2e.browser.newContext();
     const page = await context.newPage();
     const message = await askForCode(page, "reviewer@example.org");
     const wrong = codeFrom(message) === "ABCDEF" ? "ABCDEG" : "ABCDEF";
@@ -98,7 +87,7 @@ describe("signing in", () => {
 
 describe("API tokens from the account page", () => {
   test("a token made in the browser works from the command line", async () => {
-    const context = await browser.newContext();
+    const context = await e2e.browser.newContext();
     const page = await context.newPage();
     const email = "all-roles@example.org";
     const message = await askForCode(page, email);
@@ -121,14 +110,14 @@ describe("API tokens from the account page", () => {
 
 describe("the origin check", () => {
   test("answers a cross-origin POST 403 and changes nothing, on pages and resource routes", async () => {
-    const context = await browser.newContext();
+    const context = await e2e.browser.newContext();
     const page = await context.newPage();
     const email = "contributor@example.org";
     const message = await askForCode(page, email);
     await page.getByLabel("Code from the message").fill(codeFrom(message));
     await Promise.all([page.waitForURL(`${baseUrl}/`), page.getByRole("button", { name: "Sign in", exact: true }).click()]);
     const cookie = await sessionCookie(context);
-    const tokens = () => (db.prepare("select count(*) as n from api_tokens").get() as { n: number }).n;
+    const tokens = () => (e2e.db.prepare("select count(*) as n from api_tokens").get() as { n: number }).n;
     const before = tokens();
 
     const form = new URLSearchParams({ intent: "create-token", label: "planted" });

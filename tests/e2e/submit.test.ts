@@ -1,18 +1,11 @@
-import { afterAll, beforeAll, expect, inject, test } from "vitest";
-import type { Browser } from "playwright-core";
-import { launchBrowser } from "./browser.ts";
+import { expect, inject, test } from "vitest";
+import { useBrowser } from "./browser.ts";
 import { signIn } from "./helpers.ts";
 
-let browser: Browser;
-beforeAll(async () => {
-  browser = await launchBrowser();
-});
-afterAll(async () => {
-  await browser?.close();
-});
+const e2e = useBrowser();
 
 test("a contributor submits a radiocarbon date by form, sees it calibrate live, finds it in My submissions and withdraws it", async () => {
-  const page = await browser.newPage();
+  const page = await e2e.browser.newPage();
   const base = inject("baseUrl");
   const labCode = `FORM-${Date.now() % 1_000_000}`;
   await signIn(page, "contributor@example.org");

@@ -1,9 +1,7 @@
 import fs from "node:fs";
-import Database from "better-sqlite3";
 import ExcelJS from "exceljs";
-import { afterAll, beforeAll, describe, expect, inject, test } from "vitest";
-import type { Browser } from "playwright-core";
-import { launchBrowser } from "./browser.ts";
+import { describe, expect, inject, test } from "vitest";
+import { useBrowserAndDatabase } from "./browser.ts";
 import { signIn } from "./helpers.ts";
 import { uploadRows } from "../support/upload-files.ts";
 
@@ -13,21 +11,11 @@ import { uploadRows } from "../support/upload-files.ts";
  */
 
 const baseUrl = inject("baseUrl");
-let browser: Browser;
-let db: Database.Database;
-
-beforeAll(async () => {
-  browser = await launchBrowser();
-  db = new Database(inject("databaseFile"), { readonly: true, fileMustExist: true });
-});
-afterAll(async () => {
-  await browser?.close();
-  db?.close();
-});
+const e2e = useBrowserAndDatabase();
 
 describe("uploading a spreadsheet", () => {
   test("template → 50 rows with 3 bad → errors → commit the valid rows → Explore", async () => {
-    const context = await browser.newContext({ acceptDownloads: true });
+    const context = await e2e.browser.newContext({ acceptDownloads: true });
     const page = await context.newPage();
     await signIn(page, "contributor@example.org");
 
@@ -88,7 +76,7 @@ describe("uploading a spreadsheet", () => {
     expect(medians.length).toBeGreaterThan(0);
     expect(medians.every((m) => /\d/.test(m))).toBe(true);
 
-    const calibrated = db
+    const calibrated = e2e.db
       .prepare(
         `select count(*) from determinations d join calibrations c on c.determination_id = d.id and c.is_current = 1
          where d.lab_code like ? and c.median_cal_bp is not null and d.status = 'submitted'`,
