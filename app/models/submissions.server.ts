@@ -20,6 +20,7 @@ import { audit } from "#app/models/audit.server.ts";
 import { calendarOutcome, calibrateDeterminations } from "#app/models/calibrations.server.ts";
 import { activeCurve, listCurves, type CurveRow } from "#app/models/curves.server.ts";
 import { LISTED_MEASUREMENT_SQL, type ListedMeasurement } from "#app/models/explore.server.ts";
+import { findSite } from "#app/models/uploads.server.ts";
 import {
   auditSnapshot,
   determinationValues,
@@ -124,15 +125,6 @@ function calendarProblem(db: Db, row: DeterminationRow): RowIssue | null {
 
 // ---------------------------------------------------------------- resolving site, sample, lab, publication
 
-const SITE_MATCH_M = 100;
-
-function distanceM(lat1: number, lon1: number, lat2: number, lon2: number): number {
-  const rad = Math.PI / 180;
-  const x = (lon2 - lon1) * rad * Math.cos(((lat1 + lat2) / 2) * rad);
-  const y = (lat2 - lat1) * rad;
-  return Math.hypot(x, y) * 6_371_000;
-}
-
 type SiteRef = { id: number; name: string };
 type SitePlan = { site: SiteRef } | { create: true } | { issue: RowIssue };
 
@@ -143,12 +135,15 @@ function planSite(db: Db, value: SubmissionValue): SitePlan {
     return site ? { site } : { issue: { column: "site_id", message: "That site is no longer in the registry; choose another." } };
   }
   const { site_name, latitude, longitude } = value.row;
-  const near = db
-    .select({ id: sites.id, name: sites.name, latitude: sites.latitude, longitude: sites.longitude })
-    .from(sites)
-    .where(eq(sites.name, site_name))
-    .all()
-    .find((s) => distanceM(s.latitude, s.longitude, latitude, longitude) <= SITE_MATCH_M);
+  const near = findSite(
+    db
+      .select({ id: sites.id, name: sites.name, latitude: sites.latitude, longitude: sites.longitude })
+      .from(sites)
+      .where(eq(sites.name, site_name))
+      .all(),
+    latitude,
+    longitude,
+  );
   return near ? { site: { id: near.id, name: near.name } } : { create: true };
 }
 

@@ -457,7 +457,8 @@ function loadSitesByName(db: Db, names: string[]): Map<string, SiteRef[]> {
   return out;
 }
 
-function findSite(candidates: SiteRef[] | undefined, lat: number, lon: number): SiteRef | undefined {
+/** The first of the same-named candidates within about 100 m of a row's coordinates: the same site (uploads and the form). */
+export function findSite<T extends { latitude: number; longitude: number }>(candidates: T[] | undefined, lat: number, lon: number): T | undefined {
   return candidates?.find((s) => distanceM(s.latitude, s.longitude, lat, lon) <= SITE_MATCH_M);
 }
 
