@@ -1,7 +1,7 @@
 import { and, desc, eq } from "drizzle-orm";
 import type { Db } from "#app/db/client.server.ts";
 import { calibrations, curves, determinations } from "#app/db/schema.ts";
-import { calendarOutcome, decodeDensity, radiocarbonAgeFields } from "#app/models/calibrations.server.ts";
+import { calendarOutcome, decodeDensity, interpretMeasurement, radiocarbonAgeFields } from "#app/models/calibrations.server.ts";
 import { activeCurve, curveWindow, type CurveRow } from "#app/models/curves.server.ts";
 import {
   plotWindow,
@@ -10,7 +10,6 @@ import {
   type PlotMeasurement,
 } from "#app/components/calibration-plot.tsx";
 import type { CalendarDensity } from "#app/science/density.ts";
-import { interpretRadiocarbon } from "#app/science/radiocarbon.ts";
 import type { CalibrationItem } from "#app/utils/calibrate-input.ts";
 
 /** Everything <CalibrationPlot/> draws, in plain serialisable values. */
@@ -75,15 +74,7 @@ export function plotForDetermination(db: Db, determinationId: number): Calibrati
   const { calibration: c, curve, determination: d } = row;
   if (c.density == null || c.densityStartCalBp == null || c.medianCalBp == null) return null;
   // The measurement as it was calibrated (F14C converted, δ13C normalised if it was not yet).
-  const interpreted = interpretRadiocarbon({
-    measurement:
-      d.c14AgeYr != null
-        ? { age: d.c14AgeYr, error: d.c14ErrorYr ?? Number.NaN }
-        : { f14c: d.f14c ?? Number.NaN, error: d.f14cError ?? Number.NaN },
-    d13c: d.d13cPermil,
-    alreadyNormalised: d.ageNormalised,
-    reportedAsLimit: d.isLimit,
-  });
+  const interpreted = interpretMeasurement(d);
   if (interpreted.kind !== "age") return null;
   const density = decodeDensity(c.density, c.densityStartCalBp);
   const marine = curve.kind === "marine";

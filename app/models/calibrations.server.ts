@@ -35,6 +35,24 @@ export type MeasurementFields = Pick<
   | "measurementYear"
 >;
 
+/**
+ * A radiocarbon measurement as calibration reads it: F14C converted, δ13C-normalised if it was
+ * not yet; a limit or a post-bomb value is not an age.
+ */
+export function interpretMeasurement(
+  d: Pick<MeasurementFields, "c14AgeYr" | "c14ErrorYr" | "f14c" | "f14cError" | "d13cPermil" | "ageNormalised" | "isLimit">,
+) {
+  return interpretRadiocarbon({
+    measurement:
+      d.c14AgeYr != null
+        ? { age: d.c14AgeYr, error: d.c14ErrorYr ?? Number.NaN }
+        : { f14c: d.f14c ?? Number.NaN, error: d.f14cError ?? Number.NaN },
+    d13c: d.d13cPermil,
+    alreadyNormalised: d.ageNormalised,
+    reportedAsLimit: d.isLimit,
+  });
+}
+
 /** A bare radiocarbon age (δ13C-normalised, not a limit) on a named curve, as calibrated for the calibration API and page. */
 export function radiocarbonAgeFields(
   item: Pick<CalibrationItem, "c14_age" | "c14_error" | "delta_r" | "delta_r_error">,
@@ -86,16 +104,7 @@ export function calendarOutcome(
     const curve = curveFor(name);
     if (!curve) return { ok: false, curve: null, label: name, error: `No active curve named "${name}".` };
     const label = curveLabel(curve, d.deltaRYr, d.deltaRErrorYr);
-    const measurement =
-      d.c14AgeYr != null
-        ? { age: d.c14AgeYr, error: d.c14ErrorYr ?? Number.NaN }
-        : { f14c: d.f14c ?? Number.NaN, error: d.f14cError ?? Number.NaN };
-    const interpreted = interpretRadiocarbon({
-      measurement,
-      d13c: d.d13cPermil,
-      alreadyNormalised: d.ageNormalised,
-      reportedAsLimit: d.isLimit,
-    });
+    const interpreted = interpretMeasurement(d);
     if (interpreted.kind !== "age") return { ok: false, curve, label, error: interpreted.message };
     try {
       const marine = curve.kind === "marine";

@@ -17,7 +17,7 @@ import {
   type Status,
 } from "#app/db/schema.ts";
 import { audit } from "#app/models/audit.server.ts";
-import { calendarOutcome, calibrateDeterminations } from "#app/models/calibrations.server.ts";
+import { calendarOutcome, calibrateDeterminations, interpretMeasurement } from "#app/models/calibrations.server.ts";
 import { activeCurve, listCurves, type CurveRow } from "#app/models/curves.server.ts";
 import { LISTED_MEASUREMENT_SQL, type ListedMeasurement } from "#app/models/explore.server.ts";
 import { findSite } from "#app/models/uploads.server.ts";
@@ -32,7 +32,6 @@ import {
   type DeterminationRow as StoredDetermination,
 } from "#app/models/determinations.server.ts";
 import { DEFAULT_CONVERSION_FACTORS, luminescenceAge } from "#app/science/luminescence.ts";
-import { interpretRadiocarbon } from "#app/science/radiocarbon.ts";
 import {
   checkRow,
   isBlankCell,
@@ -108,18 +107,13 @@ export function serverRowContext(db: Db, options: Pick<FormOptions, "materials" 
  */
 function calendarProblem(db: Db, row: DeterminationRow): RowIssue | null {
   const column = row.method === "radiocarbon" ? (row.c14_age != null ? "c14_age" : "f14c") : "de_gy";
+  const fields = measurementFields(row);
   if (row.method === "radiocarbon") {
-    const interpreted = interpretRadiocarbon({
-      measurement:
-        row.c14_age != null ? { age: row.c14_age, error: row.c14_error ?? NaN } : { f14c: row.f14c ?? NaN, error: row.f14c_error ?? NaN },
-      d13c: row.d13c ?? null,
-      alreadyNormalised: row.age_normalised,
-      reportedAsLimit: row.greater_than,
-    });
+    const interpreted = interpretMeasurement(fields);
     if (interpreted.kind === "invalid") return { column, message: interpreted.message };
     if (interpreted.kind !== "age") return null;
   }
-  const outcome = calendarOutcome(db, measurementFields(row));
+  const outcome = calendarOutcome(db, fields);
   return outcome.ok ? null : { column, message: outcome.error };
 }
 
@@ -543,13 +537,7 @@ export function previewCalendarAge(db: Db, raw: Record<string, unknown>, options
   const fields = measurementFields(row);
   const curveFor = (name: string): CurveRow | undefined => activeCurve(db, name);
   if (row.method === "radiocarbon") {
-    const interpreted = interpretRadiocarbon({
-      measurement:
-        row.c14_age != null ? { age: row.c14_age, error: row.c14_error ?? NaN } : { f14c: row.f14c ?? NaN, error: row.f14c_error ?? NaN },
-      d13c: row.d13c ?? null,
-      alreadyNormalised: row.age_normalised,
-      reportedAsLimit: row.greater_than,
-    });
+    const interpreted = interpretMeasurement(fields);
     if (interpreted.kind !== "age") return { state: "no-age", message: interpreted.message, label: fields.curveName ?? "" };
   }
   const outcome = calendarOutcome(db, fields, curveFor);

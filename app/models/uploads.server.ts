@@ -26,7 +26,7 @@ import {
   type UploadRowError,
 } from "#app/db/schema.ts";
 import { audit } from "#app/models/audit.server.ts";
-import { calibrateDeterminations } from "#app/models/calibrations.server.ts";
+import { calibrateDeterminations, interpretMeasurement } from "#app/models/calibrations.server.ts";
 import { activeCurve, listCurves, preparedCurve, type CurveRow } from "#app/models/curves.server.ts";
 import { curveAgeLimits } from "#app/science/calibration.ts";
 import {
@@ -38,7 +38,6 @@ import {
   siteValues,
 } from "#app/models/determinations.server.ts";
 import { luminescenceAge } from "#app/science/luminescence.ts";
-import { interpretRadiocarbon } from "#app/science/radiocarbon.ts";
 import {
   checkRow,
   COLUMNS,
@@ -399,14 +398,7 @@ function calendarProblem(db: Db, row: DeterminationRow, curveFor: (n: string) =>
   const fields = measurementFields(row);
   if (row.method === "radiocarbon") {
     const ageColumn = row.c14_age != null ? "c14_age" : "f14c";
-    const measurement =
-      row.c14_age != null ? { age: row.c14_age, error: row.c14_error ?? NaN } : { f14c: row.f14c ?? NaN, error: row.f14c_error ?? NaN };
-    const interpreted = interpretRadiocarbon({
-      measurement,
-      d13c: row.d13c ?? null,
-      alreadyNormalised: row.age_normalised,
-      reportedAsLimit: row.greater_than,
-    });
+    const interpreted = interpretMeasurement(fields);
     if (interpreted.kind === "invalid") return { column: ageColumn, message: interpreted.message };
     if (interpreted.kind !== "age") return null;
     const curve = curveFor(fields.curveName ?? "intcal20");
