@@ -6,6 +6,7 @@ import type { Db } from "#app/db/client.server.ts";
 import { curvePoints, curves } from "#app/db/schema.ts";
 import {
   checkSpotValues,
+  curveFromRows,
   parseCurveCsv,
   prepareCurve,
   SPOT_VALUES,
@@ -156,19 +157,7 @@ export function loadCurve(db: Db, curveId: number): Curve {
     .prepare("select cal_bp, c14_age_yr, c14_sigma_yr from curve_points where curve_id = ? order by cal_bp")
     .raw()
     .all(curveId) as [number, number, number][];
-  const n = rows.length;
-  const curve: Curve = {
-    name: String(curveId),
-    calBp: new Float64Array(n),
-    c14: new Float64Array(n),
-    sigma: new Float64Array(n),
-  };
-  for (let i = 0; i < n; i++) {
-    curve.calBp[i] = rows[i][0];
-    curve.c14[i] = rows[i][1];
-    curve.sigma[i] = rows[i][2];
-  }
-  return curve;
+  return curveFromRows(String(curveId), rows);
 }
 
 // Prepared grids are immutable once built (a curve version never changes), so one per curve id

@@ -11,6 +11,23 @@ export interface Curve {
   sigma: Float64Array;
 }
 
+/** A curve from rows of [cal BP, 14C age, 1σ] (further entries of a row are ignored), in their order. */
+export function curveFromRows(name: string, rows: readonly (readonly number[])[]): Curve {
+  const n = rows.length;
+  const curve: Curve = {
+    name,
+    calBp: new Float64Array(n),
+    c14: new Float64Array(n),
+    sigma: new Float64Array(n),
+  };
+  for (let i = 0; i < n; i++) {
+    curve.calBp[i] = rows[i][0];
+    curve.c14[i] = rows[i][1];
+    curve.sigma[i] = rows[i][2];
+  }
+  return curve;
+}
+
 export interface CurveIssue {
   /** 1-based line in the CSV text (header is line 1); absent for whole-curve issues. */
   line?: number;
@@ -85,18 +102,7 @@ export function parseCurveCsv(
   if (issues.length) return { ok: false, issues };
 
   rows.sort((a, b) => a[0] - b[0]);
-  const n = rows.length;
-  const curve: Curve = {
-    name,
-    calBp: new Float64Array(n),
-    c14: new Float64Array(n),
-    sigma: new Float64Array(n),
-  };
-  for (let i = 0; i < n; i++) {
-    curve.calBp[i] = rows[i][0];
-    curve.c14[i] = rows[i][1];
-    curve.sigma[i] = rows[i][2];
-  }
+  const curve = curveFromRows(name, rows);
   const lineOf = (i: number) => rows[i][3];
   const validation = validateCurve(curve, options, lineOf);
   if (validation.length) return { ok: false, issues: validation };
