@@ -87,6 +87,8 @@ export type ExploreRow = {
   medianCalBp: number | null;
   hpd95FromBp: number | null;
   hpd95ToBp: number | null;
+  /** How many disjoint ranges make up the 95.4 % HPD (the span above covers them all). */
+  hpd95Parts: number;
   curveLabel: string | null;
   constraintKind: (typeof CONSTRAINT_KINDS)[number];
   grade: number | null;
@@ -252,7 +254,7 @@ export function exploreDeterminations(db: Db, filters: ExploreFilters): ExploreR
          ${LISTED_MEASUREMENT_SQL},
          ${MEASURED_AGE_SQL} as measuredAgeYr,
          c.median_cal_bp as medianCalBp, c.hpd95_from_bp as hpd95FromBp, c.hpd95_to_bp as hpd95ToBp,
-         c.curve_label as curveLabel,
+         coalesce(json_array_length(c.hpd95), 0) as hpd95Parts, c.curve_label as curveLabel,
          d.constraint_kind as constraintKind, d.grade, d.status, l.name as labName, d.created_at as createdAt
        from (select d.id as pageId ${narrowFrom(filters, true)} ${where.sql} ${orderBy} limit ? offset ?) p
        join determinations d on d.id = p.pageId

@@ -119,7 +119,14 @@ function ResultRow({ row }: { row: ExploreRow }) {
       </td>
       <td className="text-right whitespace-nowrap">{formatMeasuredAge(row)}</td>
       <td className="text-right whitespace-nowrap">{formatCal(row.medianCalBp)}</td>
-      <td className="text-right whitespace-nowrap">{formatCalRange(row.hpd95FromBp, row.hpd95ToBp)}</td>
+      <td className="text-right whitespace-nowrap">
+        {formatCalRange(row.hpd95FromBp, row.hpd95ToBp)}
+        {row.hpd95Parts > 1 ? (
+          <span className="ml-1 text-xs text-muted" title="The 95.4 % range is split; the determination page lists each part.">
+            in {row.hpd95Parts} parts
+          </span>
+        ) : null}
+      </td>
       <td className="whitespace-nowrap">
         <abbr title={CONSTRAINT_KIND_LABELS[row.constraintKind]} className="no-underline">
           {row.constraintKind}

@@ -205,3 +205,21 @@ describe("Explore filters", () => {
     expect(exploreDeterminations(getDb(), filters).total).toBeGreaterThan(120);
   });
 });
+
+describe("split 95.4 % ranges", () => {
+  it("says how many parts a split range has, from the stored calibration", async () => {
+    const db = getDb();
+    const { calibrateDeterminations } = await import("#app/models/calibrations.server.ts");
+    // 10250 ± 45 on IntCal20 falls on wiggles: its 95.4 % HPD is several disjoint ranges.
+    const split = createTestDetermination(db, { labCode: "SPLIT-10250", c14AgeYr: 10250, c14ErrorYr: 45, curveName: "intcal20" });
+    calibrateDeterminations(db, [split.id]);
+    const stored = db.$client
+      .prepare("select hpd95 from calibrations where determination_id = ? and is_current = 1")
+      .get(split.id) as { hpd95: string };
+    const parts = (JSON.parse(stored.hpd95) as unknown[]).length;
+    expect(parts).toBeGreaterThan(1);
+    const rows = await explore("?q=SPLIT-10250");
+    expect(rows.rows).toHaveLength(1);
+    expect(rows.rows[0]!.hpd95Parts).toBe(parts);
+  });
+});
