@@ -10,6 +10,7 @@ import {
 import { parseWithZod } from "@conform-to/zod/v4";
 import { useEffect, useMemo, useRef, useState } from "react";
 import { Form, Link, useFetcher, useNavigation } from "react-router";
+import { SiteLocationPicker } from "#app/components/site-location-picker.tsx";
 import { formatCal, formatCalRange, formatProbability } from "#app/utils/age-format.ts";
 import { columnSpec, ROW_SIGNALS } from "#app/utils/determination-input.ts";
 import {
@@ -210,6 +211,9 @@ export function DeterminationForm({
             <TextField field={f.site_name!} column="site_name" className="sm:col-span-2" />
             <TextField field={f.latitude!} column="latitude" inputMode="decimal" placeholder="58.7123" />
             <TextField field={f.longitude!} column="longitude" inputMode="decimal" placeholder="-64.3511" />
+            {siteChoice === "new" ? (
+              <SiteLocationPicker sites={options.sites} latitudeId={f.latitude!.id} longitudeId={f.longitude!.id} />
+            ) : null}
             <TextField field={f.elevation_m!} column="elevation_m" inputMode="decimal" />
             <TextField field={f.setting!} column="setting" />
             <p className="text-sm text-muted sm:col-span-2">

@@ -1,13 +1,10 @@
 // Browser-only: Leaflet touches `window` when it loads. The `.client` suffix keeps this module
 // (and Leaflet with it) out of the server build; the map route loads it with React.lazy after hydration.
-import "leaflet/dist/leaflet.css";
 import { useEffect, useMemo, useRef } from "react";
 import L from "leaflet";
 import { MapContainer, useMap } from "react-leaflet";
-import { feature } from "topojson-client";
 import type { Feature, FeatureCollection } from "geojson";
-import type { GeometryCollection, Topology } from "topojson-specification";
-import landTopology from "world-atlas/land-50m.json";
+import { Basemap, FALLBACK_BOUNDS, SEA_COLOUR } from "./basemap.client.tsx";
 import { ageColourScale, gradeColour } from "#app/utils/map-colours.ts";
 import { gradeWord } from "#app/utils/labels.ts";
 import { formatYears } from "#app/utils/age-format.ts";
@@ -36,12 +33,6 @@ export type SiteMapProps = {
   onReady: (markerCount: number) => void;
 };
 
-const LAND: FeatureCollection = (() => {
-  const topo = landTopology as unknown as Topology<{ land: GeometryCollection }>;
-  const land = feature(topo, topo.objects.land);
-  return (land.type === "FeatureCollection" ? land : { type: "FeatureCollection", features: [land] }) as FeatureCollection;
-})();
-
 function escapeHtml(s: string): string {
   return s.replace(/[&<>"']/g, (c) => ({ "&": "&amp;", "<": "&lt;", ">": "&gt;", '"': "&quot;", "'": "&#39;" })[c]!);
 }
@@ -55,20 +46,6 @@ function popupHtml(s: ClientMapSite): string {
     <p style="margin:2px 0 6px">${grade}</p>
     <a href="/sites/${s.id}">Open the site page</a>
   </div>`;
-}
-
-function Basemap() {
-  const map = useMap();
-  useEffect(() => {
-    const layer = L.geoJSON(LAND, {
-      interactive: false,
-      style: { fillColor: "#f4f1ea", fillOpacity: 1, color: "#9aa8b3", weight: 0.7 },
-    }).addTo(map);
-    return () => {
-      layer.remove();
-    };
-  }, [map]);
-  return null;
 }
 
 function Isochrones({
@@ -183,7 +160,7 @@ export default function SiteMap(props: SiteMapProps) {
   );
 
   const initialBounds = useMemo<L.LatLngBoundsExpression>(() => {
-    if (sites.length === 0) return [[50, -80], [62, -55]];
+    if (sites.length === 0) return FALLBACK_BOUNDS;
     return L.latLngBounds(sites.map((s) => [s.lat, s.lon] as [number, number])).pad(0.08);
   }, [sites]);
 
@@ -193,7 +170,7 @@ export default function SiteMap(props: SiteMapProps) {
       preferCanvas
       attributionControl={false}
       className="h-[68vh] min-h-[420px] w-full rounded-md border border-rule"
-      style={{ background: "#e6eef3" }}
+      style={{ background: SEA_COLOUR }}
       worldCopyJump={false}
       keyboard
     >
