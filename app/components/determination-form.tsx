@@ -21,6 +21,7 @@ import {
   type PreviewResult,
   type SubmissionValue,
 } from "#app/utils/submission-form.ts";
+import { FieldErrors } from "#app/components/ui/field-errors.tsx";
 
 /*
  * The single-determination form, for a new determination and for editing one. Field names are
@@ -542,27 +543,23 @@ function TextField({
 
 /** The field's message; a duplicate lab code links to the record already in the registry. */
 export function FieldError({ field }: { field: Field }) {
-  if (!field.errors?.length) return null;
   return (
-    <p id={field.errorId} className="field-error" role="alert">
-      {field.errors.map((message, i) => {
+    <FieldErrors
+      id={field.errorId}
+      errors={field.errors}
+      render={(message) => {
         const link = existingRecordLink(message);
+        if (!link) return message;
         return (
-          <span key={i}>
-            {link ? (
-              <>
-                {link.before}
-                <Link to={link.href} data-testid="existing-record-link">
-                  {link.href}
-                </Link>
-              </>
-            ) : (
-              message
-            )}{" "}
-          </span>
+          <>
+            {link.before}
+            <Link to={link.href} data-testid="existing-record-link">
+              {link.href}
+            </Link>
+          </>
         );
-      })}
-    </p>
+      }}
+    />
   );
 }
 

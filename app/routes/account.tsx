@@ -17,6 +17,8 @@ import { createToken, listTokens, revokeToken } from "#app/models/tokens.server.
 import { env } from "#app/utils/env.server.ts";
 import { redirectWithFlash } from "#app/utils/flash.server.ts";
 import { formatTimestamp } from "#app/utils/time-format.ts";
+import { ActionButton } from "#app/components/ui/action-button.tsx";
+import { FieldErrors } from "#app/components/ui/field-errors.tsx";
 
 export const meta: Route.MetaFunction = () => [{ title: "Your account — Thawline" }];
 
@@ -132,12 +134,9 @@ export default function Account({ loaderData, actionData }: Route.ComponentProps
         <div className="flex flex-wrap items-baseline justify-between gap-3">
           <h2 id="sessions-heading">Where you are signed in</h2>
           {sessions.length > 1 ? (
-            <Form method="post">
-              <input type="hidden" name="intent" value="revoke-other-sessions" />
-              <button type="submit" className="btn-quiet text-sm">
-                Sign out everywhere else
-              </button>
-            </Form>
+            <ActionButton intent="revoke-other-sessions" className="btn-quiet text-sm">
+              Sign out everywhere else
+            </ActionButton>
           ) : null}
         </div>
         <table className="data-table mt-4">
@@ -163,13 +162,9 @@ export default function Account({ loaderData, actionData }: Route.ComponentProps
                 <td>{s.createdAt}</td>
                 <td>{s.expiresAt}</td>
                 <td className="text-right">
-                  <Form method="post">
-                    <input type="hidden" name="intent" value="revoke-session" />
-                    <input type="hidden" name="session" value={s.handle} />
-                    <button type="submit" className="btn-quiet py-0.5 text-sm">
-                      {s.current ? "Sign out here" : "End session"}
-                    </button>
-                  </Form>
+                  <ActionButton intent="revoke-session" values={{ session: s.handle }}>
+                    {s.current ? "Sign out here" : "End session"}
+                  </ActionButton>
                 </td>
               </tr>
             ))}
@@ -209,13 +204,9 @@ export default function Account({ loaderData, actionData }: Route.ComponentProps
                   <td>{t.createdAt}</td>
                   <td>{t.lastUsedAt ?? "never"}</td>
                   <td className="text-right">
-                    <Form method="post">
-                      <input type="hidden" name="intent" value="revoke-token" />
-                      <input type="hidden" name="tokenId" value={t.id} />
-                      <button type="submit" className="btn-quiet py-0.5 text-sm" aria-label={`Revoke token ${t.label}`}>
-                        Revoke
-                      </button>
-                    </Form>
+                    <ActionButton intent="revoke-token" values={{ tokenId: t.id }} label={`Revoke token ${t.label}`}>
+                      Revoke
+                    </ActionButton>
                   </td>
                 </tr>
               ))}
@@ -256,11 +247,7 @@ function CreateTokenForm({ lastResult }: { lastResult: LastResult }) {
       <div className="field min-w-72">
         <label htmlFor={fields.label.id}>Name of a new token</label>
         <input {...getInputProps(fields.label, { type: "text" })} className="input" placeholder="e.g. cluster scripts" />
-        {fields.label.errors ? (
-          <p id={fields.label.errorId} className="field-error">
-            {fields.label.errors[0]}
-          </p>
-        ) : null}
+        <FieldErrors id={fields.label.errorId} errors={fields.label.errors} />
       </div>
       <button type="submit" className="btn" disabled={busy}>
         Create token

@@ -15,6 +15,7 @@ import { DEFAULT_MAX_STEP } from "#app/science/curve.ts";
 import { env } from "#app/utils/env.server.ts";
 import { redirectWithFlash } from "#app/utils/flash.server.ts";
 import { badRequest, notFound } from "#app/utils/http.server.ts";
+import { ActionButton } from "#app/components/ui/action-button.tsx";
 
 export const meta: Route.MetaFunction = () => [{ title: "Curves — Thawline" }];
 
@@ -251,13 +252,14 @@ export default function CurvesPage({ loaderData, actionData }: Route.ComponentPr
                     {c.active ? (
                       <span className="rounded border border-ice-500 bg-ice-50 px-1.5 text-sm">active</span>
                     ) : (
-                      <Form method="post">
-                        <input type="hidden" name="intent" value="activate" />
-                        <input type="hidden" name="curveId" value={c.id} />
-                        <button type="submit" className="btn-quiet px-2 py-0.5 text-sm" aria-label={`Activate ${c.displayName} version ${c.version}`}>
-                          Activate
-                        </button>
-                      </Form>
+                      <ActionButton
+                        intent="activate"
+                        values={{ curveId: c.id }}
+                        className="btn-quiet px-2 py-0.5 text-sm"
+                        label={`Activate ${c.displayName} version ${c.version}`}
+                      >
+                        Activate
+                      </ActionButton>
                     )}
                   </td>
                 </tr>

@@ -14,6 +14,8 @@ import { env } from "#app/utils/env.server.ts";
 import { redirectWithFlash } from "#app/utils/flash.server.ts";
 import { ROLE_ORDER, ROLE_WORDS } from "#app/utils/roles.ts";
 import { formatTimestamp } from "#app/utils/time-format.ts";
+import { ActionButton } from "#app/components/ui/action-button.tsx";
+import { FieldErrors } from "#app/components/ui/field-errors.tsx";
 
 export const meta: Route.MetaFunction = () => [{ title: "People — Thawline" }];
 
@@ -201,13 +203,13 @@ export default function People({ loaderData, actionData }: Route.ComponentProps)
                   <td>{p.lastSignInAt ?? "never"}</td>
                   <td className="text-right">
                     {p.id === meId ? null : (
-                      <Form method="post">
-                        <input type="hidden" name="intent" value={p.active ? "deactivate" : "reactivate"} />
-                        <input type="hidden" name="userId" value={p.id} />
-                        <button type="submit" className="btn-quiet py-0.5 text-sm" aria-label={`${p.active ? "Deactivate" : "Reactivate"} ${p.name}`}>
-                          {p.active ? "Deactivate" : "Reactivate"}
-                        </button>
-                      </Form>
+                      <ActionButton
+                        intent={p.active ? "deactivate" : "reactivate"}
+                        values={{ userId: p.id }}
+                        label={`${p.active ? "Deactivate" : "Reactivate"} ${p.name}`}
+                      >
+                        {p.active ? "Deactivate" : "Reactivate"}
+                      </ActionButton>
                     )}
                   </td>
                 </tr>
@@ -241,20 +243,12 @@ function InviteForm({ lastResult }: { lastResult: LastResult }) {
         <div className="field">
           <label htmlFor={fields.name.id}>Name</label>
           <input {...getInputProps(fields.name, { type: "text" })} className="input" autoComplete="off" />
-          {fields.name.errors ? (
-            <p id={fields.name.errorId} className="field-error">
-              {fields.name.errors[0]}
-            </p>
-          ) : null}
+          <FieldErrors id={fields.name.errorId} errors={fields.name.errors} />
         </div>
         <div className="field">
           <label htmlFor={fields.email.id}>E-mail address</label>
           <input {...getInputProps(fields.email, { type: "email" })} className="input" autoComplete="off" />
-          {fields.email.errors ? (
-            <p id={fields.email.errorId} className="field-error">
-              {fields.email.errors[0]}
-            </p>
-          ) : null}
+          <FieldErrors id={fields.email.errorId} errors={fields.email.errors} />
         </div>
         <fieldset className="sm:col-span-2" aria-describedby={fields.roles.errors ? fields.roles.errorId : undefined}>
           <legend className="label">Roles</legend>
@@ -269,11 +263,9 @@ function InviteForm({ lastResult }: { lastResult: LastResult }) {
               </label>
             ))}
           </div>
-          {fields.roles.errors ? (
-            <p id={fields.roles.errorId} className="field-error mt-1">
-              {fields.roles.errors[0]}
-            </p>
-          ) : null}
+          <div className="mt-1">
+            <FieldErrors id={fields.roles.errorId} errors={fields.roles.errors} />
+          </div>
         </fieldset>
         <div className="sm:col-span-2">
           <button type="submit" className="btn" disabled={busy}>

@@ -14,6 +14,7 @@ import {
   signInState,
 } from "#app/auth/sign-in.server.ts";
 import { usesMailFake } from "#app/utils/env.server.ts";
+import { FieldErrors } from "#app/components/ui/field-errors.tsx";
 
 export const meta: Route.MetaFunction = () => [{ title: "Sign in — Thawline" }];
 
@@ -144,11 +145,7 @@ function EmailStep(props: { redirectTo: string; suggestedEmail: string; error: s
             autoFocus
             required
           />
-          {fields.email.errors ? (
-            <p id={fields.email.errorId} className="field-error">
-              {fields.email.errors[0]}
-            </p>
-          ) : null}
+          <FieldErrors id={fields.email.errorId} errors={fields.email.errors} />
         </div>
         {/* Honeypot: hidden from people and assistive technology; robots fill it in. */}
         <div aria-hidden="true" className="absolute -left-[9999px] h-px w-px overflow-hidden">
@@ -195,11 +192,7 @@ function CodeStep(props: { email: string; minutes: number; error: string | null;
             autoFocus
             required
           />
-          {fields.code.errors ? (
-            <p id={fields.code.errorId} className="field-error">
-              {fields.code.errors[0]}
-            </p>
-          ) : null}
+          <FieldErrors id={fields.code.errorId} errors={fields.code.errors} />
         </div>
         <div>
           <button type="submit" className="btn" disabled={busy}>

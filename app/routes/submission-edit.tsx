@@ -1,5 +1,5 @@
 import { parseWithZod } from "@conform-to/zod/v4";
-import { data, Form, Link, type ShouldRevalidateFunctionArgs } from "react-router";
+import { data, Link, type ShouldRevalidateFunctionArgs } from "react-router";
 import type { Route } from "./+types/submission-edit";
 import { clientAddress, forbidden, requireRole } from "#app/auth/session.server.ts";
 import { DeterminationForm } from "#app/components/determination-form.tsx";
@@ -21,6 +21,7 @@ import {
 import { redirectWithFlash } from "#app/utils/flash.server.ts";
 import { notFound } from "#app/utils/http.server.ts";
 import { STATUS_LABELS } from "#app/utils/labels.ts";
+import { ActionButton } from "#app/components/ui/action-button.tsx";
 
 export const meta: Route.MetaFunction = ({ data }) => [
   { title: data ? `Edit ${data.determination.labCode} · Thawline` : "Edit a determination · Thawline" },
@@ -122,17 +123,9 @@ export default function EditSubmission({ loaderData, actionData }: Route.Compone
             history and calibrates the determination again. Changes are possible until a reviewer grades it.
           </p>
         </div>
-        <Form
-          method="post"
-          onSubmit={(e) => {
-            if (!window.confirm(`Withdraw ${d.labCode}? This cannot be undone.`)) e.preventDefault();
-          }}
-        >
-          <input type="hidden" name="intent" value="withdraw" />
-          <button type="submit" className="btn-quiet">
-            Withdraw {d.labCode}
-          </button>
-        </Form>
+        <ActionButton intent="withdraw" className="btn-quiet" confirm={`Withdraw ${d.labCode}? This cannot be undone.`}>
+          Withdraw {d.labCode}
+        </ActionButton>
       </header>
       {actionData && "error" in actionData && actionData.error ? (
         <p role="alert" className="rounded border border-conflict bg-conflict-bg px-4 py-2 text-conflict">

@@ -15,6 +15,7 @@ import {
 import { formatCal, formatMeasuredAge } from "#app/utils/age-format.ts";
 import { redirectWithFlash } from "#app/utils/flash.server.ts";
 import { METHOD_LABELS, STATUS_LABELS } from "#app/utils/labels.ts";
+import { ActionButton } from "#app/components/ui/action-button.tsx";
 
 export const meta: Route.MetaFunction = () => [{ title: "My submissions · Thawline" }];
 
@@ -217,19 +218,13 @@ export default function Submissions({ loaderData, actionData }: Route.ComponentP
                           <Link to={`/submissions/${row.id}/edit`} className="btn-quiet py-0.5 text-sm">
                             Edit<span className="sr-only"> {row.labCode}</span>
                           </Link>
-                          <Form
-                            method="post"
-                            onSubmit={(e) => {
-                              if (!window.confirm(`Withdraw ${row.labCode}? This cannot be undone.`)) e.preventDefault();
-                            }}
+                          <ActionButton
+                            intent="withdraw"
+                            values={{ id: row.id, back: search(filters) }}
+                            confirm={`Withdraw ${row.labCode}? This cannot be undone.`}
                           >
-                            <input type="hidden" name="intent" value="withdraw" />
-                            <input type="hidden" name="id" value={row.id} />
-                            <input type="hidden" name="back" value={search(filters)} />
-                            <button type="submit" className="btn-quiet py-0.5 text-sm">
-                              Withdraw<span className="sr-only"> {row.labCode}</span>
-                            </button>
-                          </Form>
+                            Withdraw<span className="sr-only"> {row.labCode}</span>
+                          </ActionButton>
                         </div>
                       ) : null}
                     </td>

@@ -1,5 +1,5 @@
 import { useRef, useState } from "react";
-import { Form, Link, useNavigate } from "react-router";
+import { Link, useNavigate } from "react-router";
 import type { Route } from "./+types/uploads";
 import { clientAddress, requireRole } from "#app/auth/session.server.ts";
 import { ErrorView } from "#app/components/error-view.tsx";
@@ -8,6 +8,7 @@ import { CommitRefused, getBatchForUser, listBatches, undoUpload } from "#app/mo
 import { env } from "#app/utils/env.server.ts";
 import { redirectWithFlash } from "#app/utils/flash.server.ts";
 import { badRequest, notFound } from "#app/utils/http.server.ts";
+import { ActionButton } from "#app/components/ui/action-button.tsx";
 
 export const meta: Route.MetaFunction = () => [{ title: "Upload determinations · Thawline" }];
 
@@ -104,16 +105,14 @@ export default function Uploads({ loaderData }: Route.ComponentProps) {
                     <td>{STATUS_WORDS[b.status] ?? b.status}</td>
                     <td>
                       {b.undoable ? (
-                        <Form
-                          method="post"
-                          onSubmit={(e) => {
-                            if (!confirm(`Take the ${b.committedCount} determinations of “${b.fileName}” out of the registry?`)) e.preventDefault();
-                          }}
+                        <ActionButton
+                          intent="undo"
+                          values={{ publicId: b.publicId }}
+                          className="btn-quiet"
+                          confirm={`Take the ${b.committedCount} determinations of “${b.fileName}” out of the registry?`}
                         >
-                          <input type="hidden" name="intent" value="undo" />
-                          <input type="hidden" name="publicId" value={b.publicId} />
-                          <button type="submit" className="btn-quiet">Undo</button>
-                        </Form>
+                          Undo
+                        </ActionButton>
                       ) : b.status === "parsed" ? (
                         <Link to={`/uploads/${b.publicId}`}>Review and commit</Link>
                       ) : null}
