@@ -3,6 +3,7 @@
 import { useEffect, useMemo, useRef } from "react";
 import L from "leaflet";
 import { MapContainer, useMap } from "react-leaflet";
+import { useNavigate } from "react-router";
 import type { Feature, FeatureCollection } from "geojson";
 import { Basemap, FALLBACK_BOUNDS, SEA_COLOUR } from "./basemap.client.tsx";
 import { ageColourScale, gradeColour } from "#app/utils/map-colours.ts";
@@ -44,7 +45,7 @@ function popupHtml(s: ClientMapSite): string {
     <p style="margin:0;font-weight:600;font-size:15px">${escapeHtml(s.name)}</p>
     <p style="margin:2px 0 0">${s.n} determination${s.n === 1 ? "" : "s"} · ${age}</p>
     <p style="margin:2px 0 6px">${grade}</p>
-    <a href="/sites/${s.id}">Open the site page</a>
+    <a href="/sites/${s.id}" data-site-link>Open the site page</a>
   </div>`;
 }
 
@@ -105,9 +106,29 @@ function SiteMarkers({
   onReady: (n: number) => void;
 }) {
   const map = useMap();
+  const navigate = useNavigate();
   const markersRef = useRef<{ site: ClientMapSite; marker: L.CircleMarker }[]>([]);
   const styleRef = useRef(styleFor);
   styleRef.current = styleFor;
+
+  // Popups are Leaflet's HTML, outside React, and Leaflet stops their clicks from bubbling: follow
+  // the site link inside the app (no full reload) unless the person asked for a new tab or window.
+  useEffect(() => {
+    const onOpen = (e: L.PopupEvent) => {
+      const link = e.popup.getElement()?.querySelector<HTMLAnchorElement>("a[data-site-link]");
+      if (!link || link.dataset.bound) return;
+      link.dataset.bound = "1";
+      link.addEventListener("click", (ev) => {
+        if (ev.button !== 0 || ev.metaKey || ev.ctrlKey || ev.shiftKey || ev.altKey) return;
+        ev.preventDefault();
+        navigate(link.getAttribute("href")!);
+      });
+    };
+    map.on("popupopen", onOpen);
+    return () => {
+      map.off("popupopen", onOpen);
+    };
+  }, [map, navigate]);
 
   useEffect(() => {
     const renderer = L.canvas({ padding: 0.5 });
