@@ -62,12 +62,17 @@ export function DeterminationForm({
   const f = fields as unknown as Record<string, Field>;
 
   // What the form shows depends on a few choices; they are kept here and submitted as typed.
-  const [siteChoice, setSiteChoice] = useState(defaultValue.site_choice === "existing" ? "existing" : "new");
-  const [siteId, setSiteId] = useState(defaultValue.site_id ?? "");
+  // After a submission without script the page is rendered afresh: start from what was sent, so
+  // choosing "A new site" or another method and submitting reveals that part of the form.
+  const sent = (lastResult?.initialValue ?? {}) as Record<string, unknown>;
+  const start = (name: string): string | undefined =>
+    typeof sent[name] === "string" ? (sent[name] as string) : defaultValue[name];
+  const [siteChoice, setSiteChoice] = useState(start("site_choice") === "existing" ? "existing" : "new");
+  const [siteId, setSiteId] = useState(start("site_id") ?? "");
   const [siteFilter, setSiteFilter] = useState("");
-  const [method, setMethod] = useState(defaultValue.method || "radiocarbon");
-  const [material, setMaterial] = useState(defaultValue.material ?? "");
-  const [curve, setCurve] = useState(defaultValue.curve ?? "");
+  const [method, setMethod] = useState(start("method") || "radiocarbon");
+  const [material, setMaterial] = useState(start("material") ?? "");
+  const [curve, setCurve] = useState(start("curve") ?? "");
   const [c14Input, setC14Input] = useState(defaultValue.c14_age === "" && defaultValue.f14c ? "f14c" : "age");
 
   const marineMaterials = useMemo(() => new Set(options.materials.filter((m) => m.marine).map((m) => m.name)), [options]);

@@ -60,3 +60,20 @@ test("a contributor submits a radiocarbon date by form, sees it calibrate live, 
   expect(await row.getByRole("button", { name: `Withdraw ${labCode}` }).count()).toBe(0);
   await page.close();
 });
+
+test("without script, choosing a new site and submitting reveals the new-site fields with their errors", async () => {
+  const context = await e2e.browser.newContext({ javaScriptEnabled: false });
+  const page = await context.newPage();
+  const base = inject("baseUrl");
+  await signIn(page, "contributor@example.org");
+  await page.goto(`${base}/submit`);
+  // The registry has sites, so the form starts on "a site already in the registry".
+  expect(await page.locator('input[name="site_name"]').isVisible()).toBe(false);
+  await page.getByLabel("A new site").check();
+  await Promise.all([page.waitForLoadState("load"), page.getByRole("button", { name: "Submit determination" }).click()]);
+  const latitude = page.locator('input[name="latitude"]');
+  expect(await latitude.isVisible()).toBe(true);
+  expect(await latitude.getAttribute("aria-invalid")).toBe("true");
+  expect(await page.getByLabel("A new site").isChecked()).toBe(true);
+  await context.close();
+});
