@@ -81,18 +81,16 @@ export function rowDoseRate(row: ValidatedRow): { value: number; error: number; 
 }
 
 /**
- * The determination's own columns from a validated row. With `otherMethod: "drop"` (the form)
- * fields of the other method are dropped, so a value typed under radiocarbon and left behind
- * when the contributor switched to luminescence is never stored; with "keep" (spreadsheet
- * uploads and the API's bulk submissions) every field is stored as the row gives it.
+ * The determination's own columns from a validated row. Fields of the other method are
+ * dropped (the row check warns about them), so a value left in a luminescence row's c14_age
+ * column is never stored as part of that determination.
  */
-export function determinationValues(row: ValidatedRow, otherMethod: "drop" | "keep") {
-  const keep = otherMethod === "keep";
+export function determinationValues(row: ValidatedRow) {
   const c14 = row.method === "radiocarbon";
   const lum = row.method === "luminescence";
   const rate = lum ? rowDoseRate(row) : null;
-  const onlyC14 = <T>(v: T | undefined) => (c14 || keep ? (v ?? null) : null);
-  const onlyLum = <T>(v: T | undefined) => (lum || keep ? (v ?? null) : null);
+  const onlyC14 = <T>(v: T | undefined) => (c14 ? (v ?? null) : null);
+  const onlyLum = <T>(v: T | undefined) => (lum ? (v ?? null) : null);
   return {
     labCode: row.lab_code,
     method: row.method as Method,
@@ -102,8 +100,8 @@ export function determinationValues(row: ValidatedRow, otherMethod: "drop" | "ke
     f14c: onlyC14(row.f14c),
     f14cError: onlyC14(row.f14c_error),
     d13cPermil: onlyC14(row.d13c),
-    ageNormalised: c14 || keep ? row.age_normalised : true,
-    isLimit: c14 || keep ? row.greater_than : false,
+    ageNormalised: c14 ? row.age_normalised : true,
+    isLimit: c14 ? row.greater_than : false,
     pretreatment: onlyC14(row.pretreatment),
     curveName: c14 ? (row.curve ?? "intcal20") : null,
     deltaRYr: onlyC14(row.delta_r),
@@ -132,7 +130,7 @@ export function determinationValues(row: ValidatedRow, otherMethod: "drop" | "ke
 
 /** The columns a calendar age is computed from, as a stored (uploaded) row would hold them. */
 export function measurementFields(row: ValidatedRow): MeasurementFields {
-  const v = determinationValues(row, "keep");
+  const v = determinationValues(row);
   return {
     method: v.method,
     c14AgeYr: v.c14AgeYr,

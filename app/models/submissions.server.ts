@@ -272,7 +272,7 @@ export function createSubmission(db: Db, value: SubmissionValue, actor: Actor): 
     const det = insertDetermination(
       db,
       {
-        ...determinationValues(value.row, "drop"),
+        ...determinationValues(value.row),
         sampleId: placed.sampleId,
         labId: placed.labId,
         publicationId: placed.publicationId,
@@ -347,7 +347,7 @@ export function updateSubmission(db: Db, id: number, value: SubmissionValue, act
     const placeBefore = placeSnapshot(db, before.sampleId);
     const placed = placeRow(db, value, before, actor);
     const next = {
-      ...determinationValues(value.row, "drop"),
+      ...determinationValues(value.row),
       sampleId: placed.sampleId,
       labId: placed.labId,
       publicationId: placed.publicationId,

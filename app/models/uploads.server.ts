@@ -847,7 +847,7 @@ function writeRows(
       {
         sampleId,
         labId,
-        ...determinationValues(row, "keep"),
+        ...determinationValues(row),
         status: "submitted",
         contributorId: ctx.userId,
         publicationId,

@@ -439,6 +439,15 @@ export type RowCheck =
   | { ok: true; value: DeterminationRow; issues: []; warnings: RowIssue[] }
   | { ok: false; issues: RowIssue[]; warnings: RowIssue[] };
 
+/** Columns that describe only one method's measurement. */
+export const RADIOCARBON_ONLY_COLUMNS = [
+  "c14_age", "c14_error", "f14c", "f14c_error", "d13c", "pretreatment", "curve", "delta_r", "delta_r_error", "delta_r_curve",
+] as const;
+export const LUMINESCENCE_ONLY_COLUMNS = [
+  "signal", "mineral", "de_gy", "de_error_gy", "dose_rate_gy_per_ka", "dose_rate_error_gy_per_ka", "k_percent", "u_ppm",
+  "th_ppm", "water_content", "grain_size_um", "burial_depth_m", "density_g_cm3", "measurement_year", "aliquots", "age_model",
+] as const;
+
 const TEXT_MAX: Record<string, number> = { notes: 2000, context: 1000 };
 
 /**
@@ -623,6 +632,17 @@ export function checkRow(raw: Record<string, unknown>, ctx: RowContext): RowChec
       for (const p of parts) need(p, `To compute the dose rate, give ${p} too (or give dose_rate_gy_per_ka with its error).`);
     }
     need("measurement_year", "A luminescence row needs the year of measurement.");
+  }
+
+  // Values that belong to the other method are not part of this determination: say so, and they
+  // are not stored (the form never sends them; a spreadsheet row may carry them by accident).
+  if (method === "radiocarbon" || method === "luminescence") {
+    const other = method === "radiocarbon" ? LUMINESCENCE_ONLY_COLUMNS : RADIOCARBON_ONLY_COLUMNS;
+    for (const column of other) {
+      if (has(column)) {
+        warnings.push({ column, message: `${column} is not used for a ${method} row and is not stored.` });
+      }
+    }
   }
 
   // Duplicates against the registry; duplicates within a file are the caller's (it sees every row).

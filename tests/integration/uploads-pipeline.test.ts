@@ -201,6 +201,25 @@ describe("committing", () => {
     expect(() => commitUpload(db(), { ...batch, status: "committed" }, "all", { userId })).toThrow(CommitRefused);
   });
 
+  it("does not store a column that belongs to the other method, and warns about it", async () => {
+    const rows = uploadRows(10, { prefix: prefix() });
+    const lumIndex = rows.findIndex((r) => r.method === "luminescence");
+    rows[lumIndex] = { ...rows[lumIndex], c14_age: 9500, d13c: -25 };
+    const { batch, userId, validation } = await upload(rows);
+    expect(validation.errors).toEqual([]);
+    const result = commitUpload(db(), batch, "all", { userId });
+    const stored = db()
+      .select()
+      .from(determinations)
+      .where(eq(determinations.labCode, String(rows[lumIndex]!.lab_code)))
+      .get()!;
+    expect(result.determinationIds).toContain(stored.id);
+    expect(stored.method).toBe("luminescence");
+    expect(stored.c14AgeYr).toBeNull();
+    expect(stored.d13cPermil).toBeNull();
+    expect(stored.deGy).toBe(rows[lumIndex]!.de_gy);
+  });
+
   it("refuses mode all with errors (409, nothing written) and commits the valid rows only on request", async () => {
     const rows = uploadRows(10, { prefix: prefix() });
     rows[3]!.latitude = "95";

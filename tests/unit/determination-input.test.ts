@@ -187,3 +187,20 @@ describe("nearest", () => {
     expect(nearest("zzzzzzzz", ["intcal20", "marine20"])).toBeNull();
   });
 });
+
+describe("values of the other method", () => {
+  it("warns at each column that does not belong to the row's method, without blocking the row", () => {
+    const r = checkRow(lum({ c14_age: "9500", d13c: "-25" }), ctx);
+    expect(r.ok).toBe(true);
+    expect(r.warnings.map((w) => w.column).sort()).toEqual(["c14_age", "d13c"]);
+    expect(r.warnings[0]!.message).toMatch(/not used for a luminescence row and is not stored/);
+    const back = checkRow(c14({ de_gy: "20" }), ctx);
+    expect(back.ok).toBe(true);
+    expect(back.warnings.map((w) => w.column)).toContain("de_gy");
+  });
+
+  it("gives no such warning to a clean row", () => {
+    expect(checkRow(c14(), ctx).warnings.filter((w) => /not stored/.test(w.message))).toEqual([]);
+    expect(checkRow(lum(), ctx).warnings.filter((w) => /not stored/.test(w.message))).toEqual([]);
+  });
+});
