@@ -1,6 +1,7 @@
 import type { Feature, FeatureCollection } from "geojson";
 import type { Db } from "#app/db/client.server.ts";
 import { MEASURED_AGE_SQL } from "#app/models/explore.server.ts";
+import type { MapSite } from "#app/utils/map-site.ts";
 
 /*
  * Data for the map: one compact row per site, and the demo margin reconstruction's isochrones.
@@ -10,19 +11,7 @@ import { MEASURED_AGE_SQL } from "#app/models/explore.server.ts";
  * never count towards it; a site dated only by those has no age on the map.
  */
 
-export type MapSite = {
-  id: number;
-  name: string;
-  lat: number;
-  lon: number;
-  /** Determinations at the site (not withdrawn). */
-  n: number;
-  /** Youngest and median deglaciation age in years BP (cal BP where calibrated); null when none. */
-  min: number | null;
-  med: number | null;
-  /** Best reliability grade at the site; null when none is graded. */
-  grade: number | null;
-};
+export type { MapSite };
 
 function median(sorted: number[]): number | null {
   if (sorted.length === 0) return null;

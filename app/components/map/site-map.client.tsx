@@ -9,17 +9,9 @@ import { Basemap, FALLBACK_BOUNDS, SEA_COLOUR } from "./basemap.client.tsx";
 import { ageColourScale, gradeColour } from "#app/utils/map-colours.ts";
 import { gradeWord } from "#app/utils/labels.ts";
 import { formatYears } from "#app/utils/age-format.ts";
+import type { MapSite } from "#app/utils/map-site.ts";
 
-export type ClientMapSite = {
-  id: number;
-  name: string;
-  lat: number;
-  lon: number;
-  n: number;
-  min: number | null;
-  med: number | null;
-  grade: number | null;
-};
+export type ClientMapSite = MapSite;
 
 export type SiteMapProps = {
   sites: ClientMapSite[];
