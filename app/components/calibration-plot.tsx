@@ -194,18 +194,7 @@ export function CalibrationPlot({
           />
         </g>
         {/* calendar axis */}
-        <line x1={M.left} x2={W - M.right} y1={bottom} y2={bottom} stroke="#1c2a36" />
-        {xTicks.map((t) => (
-          <g key={`x${t}`} transform={`translate(${x(t)},${bottom})`}>
-            <line y2={5} stroke="#1c2a36" />
-            <text y={19} textAnchor="middle" fontSize={12} fill="#1c2a36">
-              {scale === "bcad" ? formatCalendarYear(t) : groupThousands(t)}
-            </text>
-          </g>
-        ))}
-        <text x={(M.left + W - M.right) / 2} y={H - 12} textAnchor="middle" fontSize={13} fill="#1c2a36">
-          {scale === "bcad" ? "Calendar year (BC/AD)" : "cal BP"}
-        </text>
+        <CalendarAxis x={x} ticks={xTicks} y={bottom} from={M.left} to={W - M.right} labelY={H - 12} scale={scale} />
         {/* radiocarbon axis */}
         <line x1={M.left} x2={M.left} y1={top} y2={bottom} stroke="#1c2a36" />
         {yTicks.map((t) => (
@@ -258,5 +247,41 @@ function RangeList({ label, ranges, scale, tone }: { label: string; ranges: Plot
         </span>
       ))}
     </p>
+  );
+}
+
+/** The calendar axis shared by the calibration plot and the luminescence density: cal BP or BC/AD. */
+export function CalendarAxis({
+  x,
+  ticks,
+  y,
+  from,
+  to,
+  labelY,
+  scale,
+}: {
+  x: (t: number) => number;
+  ticks: number[];
+  y: number;
+  from: number;
+  to: number;
+  labelY: number;
+  scale: CalendarScale;
+}) {
+  return (
+    <g>
+      <line x1={from} x2={to} y1={y} y2={y} stroke="#1c2a36" />
+      {ticks.map((t) => (
+        <g key={`x${t}`} transform={`translate(${x(t)},${y})`}>
+          <line y2={5} stroke="#1c2a36" />
+          <text y={19} textAnchor="middle" fontSize={12} fill="#1c2a36">
+            {scale === "bcad" ? formatCalendarYear(t) : groupThousands(t)}
+          </text>
+        </g>
+      ))}
+      <text x={(from + to) / 2} y={labelY} textAnchor="middle" fontSize={13} fill="#1c2a36">
+        {scale === "bcad" ? "Calendar year (BC/AD)" : "cal BP"}
+      </text>
+    </g>
   );
 }

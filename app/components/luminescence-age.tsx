@@ -9,7 +9,7 @@ import {
   type ConversionFactorKey,
   type DoseRateBreakdown,
 } from "#app/science/luminescence.ts";
-import type { CalendarScale } from "#app/components/calibration-plot.tsx";
+import { CalendarAxis, type CalendarScale } from "#app/components/calibration-plot.tsx";
 
 /*
  * A luminescence age: De / dose rate with its error, the dose-rate breakdown recomputed from
@@ -186,18 +186,7 @@ function NormalDensityPlot({ mean, sd, scale, measurementYear }: { mean: number;
       <path d={shape(within(2)) ?? ""} fill="#8bbad6" />
       <path d={shape(within(1)) ?? ""} fill="#2a6590" />
       <line x1={x(mean)} x2={x(mean)} y1={bottom} y2={M.top} stroke="#0f273b" />
-      <line x1={M.left} x2={W - M.right} y1={bottom} y2={bottom} stroke="#1c2a36" />
-      {ticks.map((t) => (
-        <g key={t} transform={`translate(${x(t)},${bottom})`}>
-          <line y2={5} stroke="#1c2a36" />
-          <text y={19} textAnchor="middle" fontSize={12} fill="#1c2a36">
-            {scale === "bcad" ? formatCalendarYear(t) : groupThousands(t)}
-          </text>
-        </g>
-      ))}
-      <text x={(M.left + W - M.right) / 2} y={H - 8} textAnchor="middle" fontSize={13} fill="#1c2a36">
-        {scale === "bcad" ? "Calendar year (BC/AD)" : "cal BP"}
-      </text>
+      <CalendarAxis x={x} ticks={ticks} y={bottom} from={M.left} to={W - M.right} labelY={H - 8} scale={scale} />
     </svg>
   );
 }
