@@ -427,20 +427,47 @@ export const uploadBatches = sqliteTable(
   (t) => [index("uploads_user_idx").on(t.userId)],
 );
 
-// ---------------------------------------------------------------- releases
+// ---------------------------------------------------------------- constraint sets and releases
 
-export const releases = sqliteTable("releases", {
-  id: integer("id").primaryKey({ autoIncrement: true }),
-  slug: text("slug").notNull().unique(),
-  name: text("name").notNull(),
-  description: text("description"),
-  filter: text("filter", { mode: "json" }).$type<Record<string, unknown>>().notNull(),
-  curveVersions: text("curve_versions", { mode: "json" }).$type<string[]>().notNull(),
-  itemCount: integer("item_count").notNull(),
-  checksum: text("checksum").notNull(),
-  createdBy: integer("created_by").notNull().references(() => users.id),
-  publishedAt: integer("published_at", { mode: "timestamp_ms" }).notNull(),
-});
+/** A modeller's named filter, to return to; the determinations it selects change with the registry. */
+export const constraintSets = sqliteTable(
+  "constraint_sets",
+  {
+    id: integer("id").primaryKey({ autoIncrement: true }),
+    userId: integer("user_id").notNull().references(() => users.id, { onDelete: "cascade" }),
+    name: text("name").notNull(),
+    /** The filter as URL search parameters (the same names as the constraints API). */
+    filter: text("filter").notNull(),
+    createdAt: createdAt(),
+    updatedAt: integer("updated_at", { mode: "timestamp_ms" }).notNull().default(now),
+  },
+  (t) => [uniqueIndex("constraint_sets_user_name_idx").on(t.userId, t.name)],
+);
+
+export const releases = sqliteTable(
+  "releases",
+  {
+    id: integer("id").primaryKey({ autoIncrement: true }),
+    slug: text("slug").notNull().unique(),
+    name: text("name").notNull(),
+    version: text("version").notNull().default("1"),
+    description: text("description"),
+    filter: text("filter", { mode: "json" }).$type<Record<string, unknown>>().notNull(),
+    curveVersions: text("curve_versions", { mode: "json" }).$type<string[]>().notNull(),
+    itemCount: integer("item_count").notNull(),
+    checksum: text("checksum").notNull(),
+    /** Name of the canonical serialisation the checksum was computed by (see docs/releases-checksum.md). */
+    checksumRule: text("checksum_rule").notNull().default("thawline-canonical-1"),
+    citation: text("citation").notNull().default(""),
+    /** The release this one is compared with on its page, fixed when it is published. */
+    previousReleaseId: integer("previous_release_id"),
+    /** The saved set definition it was published from, if any (the release keeps its own copy of the filter). */
+    constraintSetId: integer("constraint_set_id").references(() => constraintSets.id, { onDelete: "set null" }),
+    createdBy: integer("created_by").notNull().references(() => users.id),
+    publishedAt: integer("published_at", { mode: "timestamp_ms" }).notNull(),
+  },
+  (t) => [uniqueIndex("releases_name_version_idx").on(t.name, t.version)],
+);
 
 export const releaseItems = sqliteTable(
   "release_items",
@@ -450,7 +477,7 @@ export const releaseItems = sqliteTable(
     /** The row exactly as released (measurement, calibration summary, grade, flags); never updated. */
     frozen: text("frozen", { mode: "json" }).$type<Record<string, unknown>>().notNull(),
   },
-  (t) => [primaryKey({ columns: [t.releaseId, t.determinationId] })],
+  (t) => [primaryKey({ columns: [t.releaseId, t.determinationId] }), index("release_items_det_idx").on(t.determinationId)],
 );
 
 // ---------------------------------------------------------------- reconstructions and model runs
