@@ -23,9 +23,17 @@ export interface CalibrationInput {
   age: number;
   /** 1σ of the age, years. */
   error: number;
-  /** Local marine reservoir offset against this curve, 14C yr. */
+  /**
+   * The same measurement as F14C ± 1σ. Below F14C_SPACE_BELOW the likelihood is taken in F14C
+   * space, where the measurement's error is symmetric, instead of through a symmetric age error.
+   */
+  f14c?: number;
+  f14cError?: number;
+  /** Local reservoir offset against this curve (marine ΔR, or a freshwater offset), 14C yr. */
   deltaR?: number;
   deltaRError?: number;
+  /** The curve's name as people know it, for messages (default: the prepared curve's name). */
+  curveLabel?: string;
 }
 
 export interface CalibrationResult extends DensitySummary {
@@ -33,6 +41,10 @@ export interface CalibrationResult extends DensitySummary {
   density: CalendarDensity;
   /** True when non-negligible probability reaches the first or last year of the curve. */
   atCurveLimit: boolean;
+  /** True when the likelihood was computed in F14C space (near background). */
+  inF14cSpace: boolean;
+  /** Plain notes for the reader: truncation at the curve's end, F14C space. */
+  notes: string[];
 }
 
 export type CalibrationErrorCode = "invalid-input" | "beyond-curve";
@@ -52,6 +64,10 @@ export class CalibrationError extends Error {
  */
 const CUTOFF_SD = 6;
 const CUTOFF2 = CUTOFF_SD * CUTOFF_SD;
+/** A measurement calibrates when its 2σ range (with the curve's own σ) reaches the curve's range. */
+export const REACH_SD = 2;
+/** Below this F14C (about 37,000 14C yr BP) the likelihood is taken in F14C space. */
+export const F14C_SPACE_BELOW = 0.01;
 
 let scratch = new Float64Array(4096);
 
@@ -59,36 +75,76 @@ function fmt(x: number): string {
   return groupThousands(Math.round(x));
 }
 
-/**
- * The 14C ages, after ΔR, that the curve can calibrate: a measurement outside the curve's own
- * 14C range is refused rather than piled up against the curve's end.
- */
+/** The 14C ages, after ΔR, that the curve spans. */
 export function curveAgeLimits(prepared: PreparedCurve, deltaR = 0): { min: number; max: number } {
   return { min: prepared.minC14 + deltaR, max: prepared.maxC14 + deltaR };
 }
 
-export function calibrate(prepared: PreparedCurve, input: CalibrationInput): CalibrationResult {
-  const { age, error } = input;
+/**
+ * Why a measurement cannot be calibrated on this curve, or null when it can: it is refused only
+ * when its 2σ range, widened by the curve's own σ at that end and σ_ΔR, lies wholly outside the
+ * curve's 14C range, so it cannot overlap the curve. Forms and uploads call this too.
+ */
+export function beyondCurve(prepared: PreparedCurve, input: CalibrationInput): string | null {
   const deltaR = input.deltaR ?? 0;
-  const deltaRError = input.deltaRError ?? 0;
+  const drs = input.deltaRError ?? 0;
+  const lim = curveAgeLimits(prepared, deltaR);
+  const name = input.curveLabel ?? prepared.name;
+  const last = prepared.startCalBp + prepared.length - 1;
+  const covers =
+    `${name} covers ${fmt(lim.min)}–${fmt(lim.max)} 14C yr BP${deltaR !== 0 ? ` with ΔR ${fmt(deltaR)}` : ""} ` +
+    `(${fmt(prepared.startCalBp)}–${fmt(last)} cal BP)`;
+  const below = Math.hypot(input.error, drs, prepared.minC14Sigma) * REACH_SD;
+  const above = Math.hypot(input.error, drs, prepared.maxC14Sigma) * REACH_SD;
+  if (useF14cSpace(input)) {
+    // The same test in F14C, where the error is symmetric: F + 2σ must reach the curve's oldest F.
+    const fOld = ageToF(lim.max);
+    const sCurve = (fOld * Math.hypot(prepared.maxC14Sigma, drs)) / LIBBY;
+    if (input.f14c! + REACH_SD * Math.hypot(input.f14cError!, sCurve) < fOld) {
+      return `F14C ${input.f14c!.toPrecision(3)} ± ${input.f14cError!.toPrecision(2)} cannot overlap the curve: even F14C + 2σ is below ${name}'s oldest value (${fOld.toPrecision(3)}); ${covers}.`;
+    }
+    return null;
+  }
+  if (input.age + below < lim.min) {
+    return `${fmt(input.age)} ± ${fmt(input.error)} 14C yr BP is beyond the curve and cannot overlap it: even its age + 2σ (${fmt(input.age + below)}) is younger than the curve reaches; ${covers}.`;
+  }
+  if (input.age - above > lim.max) {
+    return `${fmt(input.age)} ± ${fmt(input.error)} 14C yr BP is beyond the curve and cannot overlap it: even its age − 2σ (${fmt(input.age - above)}) is older than the curve reaches; ${covers}.`;
+  }
+  return null;
+}
+
+const LIBBY = 8033;
+function ageToF(age: number): number {
+  return Math.exp(-age / LIBBY);
+}
+
+function useF14cSpace(input: CalibrationInput): boolean {
+  return input.f14c !== undefined && input.f14cError !== undefined && input.f14c < F14C_SPACE_BELOW && input.f14cError > 0;
+}
+
+function checkInput(input: CalibrationInput): void {
+  const { age, error } = input;
   if (!Number.isFinite(age)) throw new CalibrationError("The radiocarbon age must be a number.", "invalid-input");
   if (!(error > 0) || !Number.isFinite(error)) {
     throw new CalibrationError("The age error must be a positive number.", "invalid-input");
   }
-  if (!Number.isFinite(deltaR)) throw new CalibrationError("ΔR must be a number.", "invalid-input");
-  if (!(deltaRError >= 0) || !Number.isFinite(deltaRError)) {
+  if (!Number.isFinite(input.deltaR ?? 0)) throw new CalibrationError("ΔR must be a number.", "invalid-input");
+  const drs = input.deltaRError ?? 0;
+  if (!(drs >= 0) || !Number.isFinite(drs)) {
     throw new CalibrationError("The ΔR error must be zero or more.", "invalid-input");
   }
+}
+
+export function calibrate(prepared: PreparedCurve, input: CalibrationInput): CalibrationResult {
+  checkInput(input);
+  const refusal = beyondCurve(prepared, input);
+  if (refusal) throw new CalibrationError(refusal, "beyond-curve");
+  if (useF14cSpace(input)) return finish(prepared, input, likelihoodInF14c(prepared, input), true);
+  const { age, error } = input;
+  const deltaR = input.deltaR ?? 0;
+  const deltaRError = input.deltaRError ?? 0;
   const mu = age - deltaR;
-  if (mu < prepared.minC14 || mu > prepared.maxC14) {
-    const lim = curveAgeLimits(prepared, deltaR);
-    const last = prepared.startCalBp + prepared.length - 1;
-    throw new CalibrationError(
-      `${fmt(age)} 14C yr BP is beyond the curve: ${prepared.name} covers ${fmt(lim.min)}–${fmt(lim.max)} ` +
-        `14C yr BP${deltaR !== 0 ? ` with ΔR ${fmt(deltaR)}` : ""} (${fmt(prepared.startCalBp)}–${fmt(last)} cal BP).`,
-      "beyond-curve",
-    );
-  }
   const extraVar = error * error + deltaRError * deltaRError;
   const { blockSize, blockMinC, blockMaxC, blockMaxS2, superMinC, superMaxC, superMaxS2, c, s2, length } = prepared;
   const nBlocks = blockMinC.length;
@@ -113,7 +169,7 @@ export function calibrate(prepared: PreparedCurve, input: CalibrationInput): Cal
   }
   if (bFirst < 0) {
     // Only reachable if the curve has gaps in 14C coverage wider than the cutoff.
-    throw new CalibrationError(`${fmt(age)} 14C yr BP matches no part of ${prepared.name}.`, "beyond-curve");
+    throw new CalibrationError(`${fmt(age)} 14C yr BP matches no part of ${input.curveLabel ?? prepared.name}.`, "beyond-curve");
   }
   const g0 = bFirst * blockSize;
   const g1 = Math.min(length, (bLast + 1) * blockSize);
@@ -140,13 +196,64 @@ export function calibrate(prepared: PreparedCurve, input: CalibrationInput): Cal
     }
   }
 
-  const { density, summary } = finishAndSummarise(work, 0, span, prepared.startCalBp + g0, max);
+  return finish(prepared, input, { work, from: 0, to: span, start: prepared.startCalBp + g0, max }, false);
+}
+
+interface Likelihood {
+  work: Float64Array;
+  from: number;
+  to: number;
+  start: number;
+  max: number;
+}
+
+/**
+ * Likelihood of the measured F given the curve's F (and its σ, propagated from the age σ) on
+ * the whole grid; used only near background, where it is cheap enough not to need the index.
+ */
+function likelihoodInF14c(prepared: PreparedCurve, input: CalibrationInput): Likelihood {
+  const { c, s2, length } = prepared;
+  const dr = input.deltaR ?? 0;
+  const drs2 = (input.deltaRError ?? 0) ** 2;
+  const f = input.f14c!;
+  const sf2 = input.f14cError! ** 2;
+  if (scratch.length < length) scratch = new Float64Array(Math.max(length, scratch.length * 2));
+  const work = scratch;
+  let max = 0;
+  for (let g = 0; g < length; g++) {
+    const fc = ageToF(c[g] + dr);
+    const sc = fc / LIBBY;
+    const iv = 1 / (sf2 + sc * sc * (s2[g] + drs2));
+    const d = f - fc;
+    const q = d * d * iv;
+    const v = q > CUTOFF2 ? 0 : expNonPositive(-0.5 * q) * Math.sqrt(iv);
+    work[g] = v;
+    if (v > max) max = v;
+  }
+  if (!(max > 0)) {
+    throw new CalibrationError(`F14C ${f.toPrecision(3)} matches no part of ${input.curveLabel ?? prepared.name}.`, "beyond-curve");
+  }
+  return { work, from: 0, to: length, start: prepared.startCalBp, max };
+}
+
+function finish(prepared: PreparedCurve, input: CalibrationInput, l: Likelihood, inF14cSpace: boolean): CalibrationResult {
+  const { density, summary } = finishAndSummarise(l.work, l.from, l.to, l.start, l.max);
+  const curveFirst = prepared.startCalBp;
+  const curveLast = prepared.startCalBp + prepared.length - 1;
   const first = density.startCalBp;
   const last = first + density.values.length - 1;
-  return {
-    ...summary,
-    curveName: prepared.name,
-    density,
-    atCurveLimit: first <= prepared.startCalBp || last >= prepared.startCalBp + length - 1,
-  };
+  const atCurveLimit = first <= curveFirst || last >= curveLast;
+  const name = input.curveLabel ?? prepared.name;
+  const notes: string[] = [];
+  for (const r of [...summary.hpd68, ...summary.hpd95]) {
+    if (r.from >= curveLast || r.to <= curveFirst) r.atCurveLimit = true;
+  }
+  if (last >= curveLast) {
+    notes.push(`The probability reaches the old end of ${name} (${fmt(curveLast)} cal BP) and is cut there: the date may be older than the ranges say.`);
+  }
+  if (first <= curveFirst) {
+    notes.push(`The probability reaches the young end of ${name} (${fmt(curveFirst)} cal BP) and is cut there: the date may be younger than the ranges say.`);
+  }
+  if (inF14cSpace) notes.push("Near background: the likelihood was computed in F14C, where the measurement's error is symmetric.");
+  return { ...summary, curveName: prepared.name, density, atCurveLimit, inF14cSpace, notes };
 }

@@ -250,6 +250,9 @@ export interface PreparedCurve {
   /** Range of the curve's 14C ages, for "beyond the curve" messages. */
   minC14: number;
   maxC14: number;
+  /** The curve's own 1σ where it reaches minC14 and maxC14. */
+  minC14Sigma: number;
+  maxC14Sigma: number;
 }
 
 /** Blocks per super-block in the two-level index. */
@@ -332,7 +335,15 @@ export function prepareCurve(curve: Curve, options: PrepareOptions = {}): Prepar
     superMaxS2,
     minC14,
     maxC14,
+    minC14Sigma: Math.sqrt(s2[argExtreme(c, -1)]),
+    maxC14Sigma: Math.sqrt(s2[argExtreme(c, 1)]),
   };
+}
+
+function argExtreme(c: Float64Array, sign: 1 | -1): number {
+  let best = 0;
+  for (let g = 1; g < c.length; g++) if (sign * (c[g] - c[best]) > 0) best = g;
+  return best;
 }
 
 /**

@@ -14,6 +14,8 @@ export interface Range {
   to: number;
   /** Probability that the calendar age lies in this range. */
   p: number;
+  /** Set when the range is cut by the end of the curve it was calibrated on. */
+  atCurveLimit?: boolean;
 }
 
 export interface DensitySummary {
@@ -42,13 +44,20 @@ function fillBuckets(values: Float32Array, scale: number): void {
   }
 }
 
+/** A level of the HPD: every point above `t`, and `take` of the `tied` points exactly at `t`. */
+interface Level {
+  t: number;
+  take: number;
+  tied: number;
+}
+
 /**
- * Density levels above which the grid points hold 68.3 % and 95.4 % of the total: the same
- * result as sorting all points from highest down and accumulating, but only the value bucket
+ * The density levels of the 68.3 % and 95.4 % regions: the same result as sorting all points
+ * from highest down and accumulating until the target is reached, but only the value bucket
  * where a target is crossed gets sorted. Expects bucketSum filled with the same `scale`; the
  * result does not depend on the scale, only the work does.
  */
-function hpdThresholds(values: Float32Array, scale: number, total: number): [number, number] {
+function hpdLevels(values: Float32Array, scale: number, total: number): [Level, Level] {
   const target68 = HPD_68 * total;
   const target95 = HPD_95 * total;
   let cum = 0;
@@ -81,28 +90,72 @@ function hpdThresholds(values: Float32Array, scale: number, total: number): [num
   return [crossing(m68, before68, target68), crossing(m95, before95, target95)];
 }
 
-function crossing(members: number[], before: number, target: number): number {
+function crossing(members: number[], before: number, target: number): Level {
   members.sort((a, b) => b - a);
   let c = before;
-  for (const v of members) {
+  for (let j = 0; j < members.length; j++) {
+    const v = members[j];
     c += v;
-    if (c >= target) return v;
+    if (c >= target) {
+      let first = j;
+      while (first > 0 && members[first - 1] === v) first--;
+      let last = j;
+      while (last + 1 < members.length && members[last + 1] === v) last++;
+      return { t: v, take: j - first + 1, tied: last - first + 1 };
+    }
   }
   // Rounding can leave the target a hair out of reach; then every positive point is taken.
-  return members.length ? members[members.length - 1] : Number.MIN_VALUE;
+  const t = members.length ? members[members.length - 1] : Number.MIN_VALUE;
+  return { t, take: Number.MAX_SAFE_INTEGER, tied: Number.MAX_SAFE_INTEGER };
 }
 
 /**
- * Runs of grid points at or above each threshold (t95 ≤ t68), and the median, in one pass.
+ * Which of the points tied at a level's value are taken when only some are needed: those
+ * nearest to points already above the level (so a range grows at its edges rather than
+ * splitting), then the younger. 1 = taken. The order depends only on the points strictly above
+ * `t`, so when both levels fall on the same value the 68.3 % choice lies inside the 95.4 % one.
+ */
+function tieMask(values: Float32Array, level: Level): Uint8Array | null {
+  if (level.take >= level.tied) return null;
+  const n = values.length;
+  const dist = new Float64Array(n).fill(Infinity);
+  let lastAbove = -Infinity;
+  for (let i = 0; i < n; i++) {
+    if (values[i] > level.t) lastAbove = i;
+    dist[i] = i - lastAbove;
+  }
+  lastAbove = Infinity;
+  for (let i = n - 1; i >= 0; i--) {
+    if (values[i] > level.t) lastAbove = i;
+    dist[i] = Math.min(dist[i], lastAbove - i);
+  }
+  const tied: number[] = [];
+  for (let i = 0; i < n; i++) if (values[i] === level.t) tied.push(i);
+  tied.sort((a, b) => dist[a] - dist[b] || a - b);
+  const mask = new Uint8Array(n);
+  for (let j = 0; j < level.take; j++) mask[tied[j]] = 1;
+  return mask;
+}
+
+function member(v: number, i: number, level: Level, mask: Uint8Array | null): boolean {
+  if (!(v > 0)) return false;
+  if (v > level.t) return true;
+  return v === level.t && (mask === null || mask[i] === 1);
+}
+
+/**
+ * Runs of grid points in each region (the 68.3 % one inside the 95.4 % one), and the median, in one pass.
  * The median treats each year's probability as spread evenly over that year.
  */
 function rangesAndMedian(
   values: Float32Array,
   start: number,
-  t68: number,
-  t95: number,
+  l68: Level,
+  l95: Level,
   half: number,
 ): { r68: Range[]; r95: Range[]; median: number } {
+  const mask68 = tieMask(values, l68);
+  const mask95 = tieMask(values, l95);
   let cum = 0;
   let median = Number.NaN;
   const r68: Range[] = [];
@@ -116,8 +169,8 @@ function rangesAndMedian(
     const v = i < n ? values[i] : 0;
     if (median !== median && v > 0 && cum + v >= half) median = start + i - 0.5 + (half - cum) / v;
     cum += v;
-    const in95 = v >= t95 && v > 0;
-    const in68 = in95 && v >= t68;
+    const in95 = i < n && member(v, i, l95, mask95);
+    const in68 = in95 && member(v, i, l68, mask68);
     if (in95) {
       if (open95 < 0) {
         open95 = i;
@@ -144,9 +197,10 @@ function rangesAndMedian(
 }
 
 /**
- * Median, mean and 68.3 % / 95.4 % highest-density ranges of a grid density. Grid points that
- * tie with the point where the level is reached are all taken (curves with integer 14C ages
- * produce exact ties), so a range never splits arbitrarily among equal points. Range bounds are
+ * Median, mean and 68.3 % / 95.4 % highest-density ranges of a grid density: the smallest set of
+ * grid years whose probability reaches the level. Where several years tie at the level's value
+ * (flat stretches of a curve produce exact ties) only as many are taken as the level needs, so
+ * the mass does not overshoot; see tieMask for which. Range bounds are
  * grid years; the median treats each year's probability as spread evenly over that year, so
  * a symmetric density centred on a grid year has that year as its median.
  */
@@ -182,8 +236,8 @@ function summariseWithStats(density: CalendarDensity, stats: DensityStats): Dens
   if (!(total > 0)) throw new Error("The density is empty.");
   const scale = stats.scale ?? N_BUCKETS / max;
   if (stats.scale === undefined) fillBuckets(values, scale);
-  const [t68, t95] = hpdThresholds(values, scale, total);
-  const { r68, r95, median } = rangesAndMedian(values, start, t68, t95, total / 2);
+  const [l68, l95] = hpdLevels(values, scale, total);
+  const { r68, r95, median } = rangesAndMedian(values, start, l68, l95, total / 2);
   return {
     medianCalBp: median,
     meanCalBp: start + moment / total,

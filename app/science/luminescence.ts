@@ -1,6 +1,15 @@
 // Luminescence ages: age = De / dose rate, the dose rate from K, U and Th with published
 // conversion factors, water attenuation and the cosmic contribution, and conversion to cal BP.
 
+import {
+  CONVERSION_FACTORS,
+  DEFAULT_CONVERSION_FACTORS,
+  WATER_H,
+  waterFactor,
+  type ConversionFactorKey,
+} from "./dose-rate-factors.ts";
+import { cosmicAtDepth } from "./cosmic.ts";
+
 export interface ValueError {
   value: number;
   error: number;
@@ -34,37 +43,16 @@ export function luminescenceAgeToCalBp(
   return { calBp: ageKa * 1000 - (measurementYear - 1950), error: errorKa * 1000 };
 }
 
-export type ConversionFactorKey = "guerin2011" | "adamiec1998";
-
-export interface ConversionFactors {
-  key: ConversionFactorKey;
-  citation: string;
-  /** Gy/ka per % K. */
-  k: { beta: number; gamma: number };
-  /** Gy/ka per ppm U (and Th). */
-  u: { alpha: number; beta: number; gamma: number };
-  th: { alpha: number; beta: number; gamma: number };
-}
-
-// From memory per CHECK_VALUES B2 — "confirm before use"; kept selectable and recorded in results.
-export const CONVERSION_FACTORS: Readonly<Record<ConversionFactorKey, ConversionFactors>> = {
-  guerin2011: {
-    key: "guerin2011",
-    citation: "Guérin, Mercier & Adamiec 2011, Ancient TL 29(1):5–8",
-    k: { beta: 0.7982, gamma: 0.2491 },
-    u: { alpha: 2.795, beta: 0.1457, gamma: 0.1116 },
-    th: { alpha: 0.7375, beta: 0.0277, gamma: 0.0479 },
-  },
-  adamiec1998: {
-    key: "adamiec1998",
-    citation: "Adamiec & Aitken 1998, Ancient TL 16(2):37–46",
-    k: { beta: 0.782, gamma: 0.243 },
-    u: { alpha: 2.78, beta: 0.146, gamma: 0.113 },
-    th: { alpha: 0.738, beta: 0.0286, gamma: 0.0514 },
-  },
-};
-
-export const DEFAULT_CONVERSION_FACTORS: ConversionFactorKey = "guerin2011";
+export {
+  CONVERSION_FACTORS,
+  DEFAULT_CONVERSION_FACTORS,
+  WATER_H,
+  waterFactor,
+  type ConversionFactorKey,
+  type ConversionFactors,
+  type Radiation,
+} from "./dose-rate-factors.ts";
+export { COSMIC_MIN_OVERBURDEN, cosmicAtDepth, cosmicDoseRate, overburden, type CosmicResult } from "./cosmic.ts";
 
 export interface DryDoseRates {
   alpha: number;
@@ -84,76 +72,6 @@ export function dryDoseRates(
     alpha: f.u.alpha * u + f.th.alpha * th,
     beta: f.k.beta * k + f.u.beta * u + f.th.beta * th,
     gamma: f.k.gamma * k + f.u.gamma * u + f.th.gamma * th,
-  };
-}
-
-/** Zimmerman 1971 / Aitken 1985: water absorbs more of each radiation than the same mass of mineral. */
-export const WATER_H = { alpha: 1.5, beta: 1.25, gamma: 1.14 } as const;
-
-export type Radiation = keyof typeof WATER_H;
-
-/** Factor Ḋ_wet/Ḋ_dry for water content W = water mass / dry mass (a fraction, not %). */
-export function waterFactor(radiation: Radiation, water: number): number {
-  return 1 / (1 + WATER_H[radiation] * water);
-}
-
-/** Below this overburden (hg/cm²) the cosmic formula is outside its stated validity. */
-export const COSMIC_MIN_OVERBURDEN = 1.67;
-
-/**
- * Cosmic dose rate (Gy/ka) at sea level and geomagnetic latitude 55° under `x` hg/cm² of
- * overburden (Prescott & Hutton 1994, from memory). Valid for x above 1.67 hg/cm².
- */
-export function cosmicDoseRate(x: number): number {
-  return (6072 / ((Math.pow(x + 11.6, 1.68) + 75) * (x + 212))) * Math.exp(-5.5e-4 * x);
-}
-
-/**
- * 1 m of sediment at 1 g/cm³ is 100 g/cm² = 1 hg/cm², so the overburden in hg/cm² is simply
- * depth (m) × density (g/cm³).
- */
-export function overburden(depthM: number, densityGcm3: number): number {
-  return depthM * densityGcm3;
-}
-
-export interface CosmicResult {
-  x: number;
-  doseRate: number;
-  error: number;
-  withinValidity: boolean;
-  note?: string;
-}
-
-/**
- * Cosmic contribution at a burial depth. Its error combines the depth and density errors
- * (through the formula's slope) with a relative allowance for the formula itself.
- */
-export function cosmicAtDepth(input: {
-  depthM: number;
-  depthError?: number;
-  density: number;
-  densityError?: number;
-  /** Relative uncertainty of the formula; 10 % is a common-practice allowance. */
-  relativeError?: number;
-}): CosmicResult {
-  const { depthM, density } = input;
-  if (!(depthM >= 0) || !(density > 0)) throw new Error("Depth must be ≥ 0 m and density > 0 g/cm³.");
-  const x = overburden(depthM, density);
-  const d = cosmicDoseRate(x);
-  const h = 1e-4;
-  const slope = (cosmicDoseRate(x + h) - cosmicDoseRate(Math.max(0, x - h))) / (x + h - Math.max(0, x - h));
-  const sx = Math.hypot((input.depthError ?? 0) * density, (input.densityError ?? 0) * depthM);
-  const rel = input.relativeError ?? 0.1;
-  const error = Math.hypot(slope * sx, rel * d);
-  const withinValidity = x > COSMIC_MIN_OVERBURDEN;
-  return {
-    x,
-    doseRate: d,
-    error,
-    withinValidity,
-    note: withinValidity
-      ? undefined
-      : `Overburden ${x.toFixed(2)} hg/cm² is below ${COSMIC_MIN_OVERBURDEN} hg/cm², where the cosmic formula is not valid; the value is an extrapolation.`,
   };
 }
 
@@ -204,7 +122,9 @@ export interface DoseRateBreakdown {
 }
 
 /**
- * Total environmental dose rate (Gy/ka). Errors: each input (K, U, Th, W, a-value, depth,
+ * The earlier, simpler dose rate (no grain size, Rb, site scaling or default errors), kept for
+ * the callers that still pass bare K, U, Th and water; fullDoseRate (dose-rate.ts) is the
+ * complete computation. Total environmental dose rate (Gy/ka). Errors: each input (K, U, Th, W, a-value, depth,
  * density, cosmic allowance, internal) is treated as independent; the total's error is the
  * quadrature sum over inputs of |∂total/∂input| · σ_input. K, U, Th and W each feed several
  * components, so the total's error is not the quadrature sum of the component errors.
@@ -249,11 +169,17 @@ export function doseRate(input: DoseRateInput): DoseRateBreakdown {
     cosmic = input.cosmicOverride.value;
     cosmicError = input.cosmicOverride.error;
   } else {
-    const c = cosmicAtDepth({ ...input.burial, relativeError: input.cosmicRelativeError });
+    const c = cosmicAtDepth({
+      depthM: input.burial.depthM,
+      depthError: input.burial.depthError ?? 0,
+      density: input.burial.density,
+      densityError: input.burial.densityError ?? 0,
+      relativeError: input.cosmicRelativeError,
+    });
     cosmic = c.doseRate;
     cosmicError = c.error;
     cosmicWithinValidity = c.withinValidity;
-    if (c.note) notes.push(c.note);
+    if (c.caution) notes.push(c.caution);
   }
   const internal = input.internal?.value ?? 0;
   const internalError = input.internal?.error ?? 0;

@@ -94,6 +94,11 @@ export interface NormalisationInput {
   d13c?: number | null;
   /** True for a lab's conventional age or for F14C as defined (both already at −25 ‰). */
   alreadyNormalised: boolean;
+  /**
+   * The reported value was normalised to δ13C = 0 ‰ instead of −25 ‰ (older practice for marine
+   * shells); it is brought to −25 ‰ here, which makes the age older by 406.8 yr (exact form).
+   */
+  normalisedToZeroPermil?: boolean;
   form?: NormalisationForm;
 }
 
@@ -150,7 +155,14 @@ export function normaliseMeasurement(input: NormalisationInput): NormalisedMeasu
   }
   let correctionYears = 0;
   let normalisedHere = false;
-  if (!input.alreadyNormalised) {
+  if (input.alreadyNormalised && input.normalisedToZeroPermil) {
+    // From the 0 ‰ reference to −25 ‰: the factor of δ13C = 0 ‰, whatever the sample's δ13C.
+    const n = normaliseF14c(f, sf, 0, form);
+    f = n.f14c;
+    sf = n.error;
+    correctionYears = normalisationShiftYears(0, form);
+    normalisedHere = true;
+  } else if (!input.alreadyNormalised) {
     const d13c = input.d13c;
     if (d13c === undefined || d13c === null || !Number.isFinite(d13c)) {
       throw new RadiocarbonInputError(
@@ -188,6 +200,11 @@ export function limitAgeFromF14c(f14c: number, f14cError: number): number {
 /** Near background (van der Plicht & Hogg 2006, from memory): F below 2σ of zero. */
 export function isNearBackground(f14c: number, f14cError: number): boolean {
   return f14c < 2 * f14cError;
+}
+
+/** Post-bomb only when F exceeds 1 significantly: by more than twice its error. */
+export function isPostBomb(f14c: number, f14cError: number): boolean {
+  return f14c - 2 * f14cError > 1;
 }
 
 export interface RadiocarbonInput extends NormalisationInput {
@@ -229,12 +246,20 @@ export function interpretRadiocarbon(input: RadiocarbonInput): RadiocarbonInterp
     throw e;
   }
   if (input.reportedAsLimit) {
+    // A limit given as F14C is the age of F + 2σ (CHECK_VALUES A1); one given as an age stands.
+    const fromF = input.measurement.f14c !== undefined;
+    const minAge = fromF ? limitAgeFromF14c(n.f14c, n.f14cError) : n.age;
+    if (!Number.isFinite(minAge)) {
+      return { kind: "invalid", field: "f14c", message: "F14C + 2σ must be above zero to give a limiting age." };
+    }
     return {
       kind: "limit",
-      minAge: n.age,
+      minAge,
       f14c: n.f14c,
       f14cError: n.f14cError,
-      message: `Reported as greater than ${fmtYears(n.age)} 14C yr BP: stored as a limit and not calibrated.`,
+      message: fromF
+        ? `Reported as a limit: greater than ${fmtYears(minAge)} 14C yr BP (from F14C + 2σ), stored as a limit and not calibrated.`
+        : `Reported as greater than ${fmtYears(minAge)} 14C yr BP: stored as a limit and not calibrated.`,
     };
   }
   if (isNearBackground(n.f14c, n.f14cError)) {
@@ -256,14 +281,14 @@ export function interpretRadiocarbon(input: RadiocarbonInput): RadiocarbonInterp
         `reported as greater than ${fmtYears(minAge)} 14C yr BP (from F14C + 2σ) and not calibrated.`,
     };
   }
-  if (n.f14c > 1) {
+  if (isPostBomb(n.f14c, n.f14cError)) {
     return {
       kind: "postbomb",
       f14c: n.f14c,
       f14cError: n.f14cError,
       age: n.age,
       message:
-        `F14C ${n.f14c.toFixed(4)} is above 1 (age ${fmtYears(n.age)} BP): a post-bomb sample, ` +
+        `F14C ${n.f14c.toFixed(4)} ± ${n.f14cError.toFixed(4)} is above 1 by more than 2σ (age ${fmtYears(n.age)} BP): a post-bomb sample, ` +
         `which the bundled curves (ending at AD 1950) cannot calibrate.`,
     };
   }
@@ -282,7 +307,7 @@ export function interpretRadiocarbon(input: RadiocarbonInput): RadiocarbonInterp
     normalisedHere: n.normalisedHere,
     correctionYears: n.correctionYears,
     message: n.normalisedHere
-      ? `Normalised to δ13C = −25 ‰ (${n.correctionYears >= 0 ? "+" : ""}${n.correctionYears.toFixed(1)} yr).`
+      ? `Normalised to δ13C = −25 ‰ (${n.correctionYears >= 0 ? "+" : ""}${n.correctionYears.toFixed(1)} yr${input.normalisedToZeroPermil ? ", from the 0 ‰ reference" : ""}).`
       : "Conventional age, used as reported.",
   };
 }

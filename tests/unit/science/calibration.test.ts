@@ -51,29 +51,25 @@ function bruteForce(p: PreparedCurve, mu: number, extraVar: number): Float64Arra
 }
 
 /**
- * The HPD definition done the slow way: sort all grid values from highest down, accumulate to
- * the level; every point at least as high as the one that reaches it is taken (ties included).
+ * The HPD definition done the slow way: sort all grid values from highest down and accumulate
+ * until the level is reached; the smallest set's mass is where the accumulation stops.
  */
 function referenceHpdMass(values: ArrayLike<number>, level: number): number {
   const sorted = Array.from(values).sort((a, b) => b - a);
   const total = sum(sorted);
   let cum = 0;
-  let h = 0;
   for (const v of sorted) {
     cum += v;
-    if (cum >= level * total) {
-      h = v;
-      break;
-    }
+    if (cum >= level * total) break;
   }
-  return sum(sorted.filter((v) => v >= h)) / total;
+  return cum / total;
 }
 
 describe("calibration on synthetic curves (A4 derived checks)", () => {
   it("a straight curve gives μ ± σ and μ ± 2σ within one grid step", () => {
-    // 0.683 and 0.954 are not exactly ±1σ and ±2σ of a normal (z = 1.00045 and 1.99539), so the
-    // allowance grows by that tiny difference for wide errors.
-    const z68 = 1.00045;
+    // 0.683 and 0.954 are not exactly ±1σ and ±2σ of a normal (two-sided z = 1.00064 and 1.99539,
+    // from the normal quantile), so the allowance grows by that tiny difference for wide errors.
+    const z68 = 1.00064;
     const z95 = 1.99539;
     fc.assert(
       fc.property(fc.double({ min: 3000, max: 25000, noNaN: true }), fc.double({ min: 5, max: 100, noNaN: true }), (mu, sigma) => {
@@ -176,8 +172,10 @@ describe("calibration on the published curves", () => {
         // The stored density alone reproduces the reported summary exactly.
         const again = summariseDensity(r.density);
         expect(again.medianCalBp).toBe(r.medianCalBp);
-        expect(again.hpd68).toEqual(r.hpd68);
-        expect(again.hpd95).toEqual(r.hpd95);
+        // calibrate adds only the curve-limit flag to the ranges.
+        const bare = (list: Range[]) => list.map(({ atCurveLimit: _, ...x }) => x);
+        expect(again.hpd68).toEqual(bare(r.hpd68));
+        expect(again.hpd95).toEqual(bare(r.hpd95));
         const p68 = sum(r.hpd68.map((q) => q.p));
         const p95 = sum(r.hpd95.map((q) => q.p));
         expect(p68).toBeGreaterThanOrEqual(0.683 - 1e-6);
@@ -270,9 +268,9 @@ describe("calibration on the published curves", () => {
     })();
     expect(err).toBeInstanceOf(CalibrationError);
     expect((err as CalibrationError).code).toBe("beyond-curve");
-    expect((err as Error).message).toMatch(/beyond the curve: intcal20 covers 95–50,193 14C yr BP \(0–55,000 cal BP\)/);
+    expect((err as Error).message).toMatch(/cannot overlap it: even its age − 2σ \(58,487\) is older than the curve reaches; intcal20 covers 95–50,193 14C yr BP \(0–55,000 cal BP\)/);
     expect(() => calibrate(intcal, { age: 20, error: 20 })).toThrow(/beyond the curve/);
-    expect(() => calibrate(marine, { age: 51000, error: 500, deltaR: 100 })).toThrow(/with ΔR 100/);
+    expect(() => calibrate(marine, { age: 54000, error: 500, deltaR: 100 })).toThrow(/with ΔR 100/);
     expect(() => calibrate(intcal, { age: 5000, error: 0 })).toThrow(CalibrationError);
     expect(() => calibrate(intcal, { age: Number.NaN, error: 10 })).toThrow(/must be a number/);
   });
@@ -304,7 +302,7 @@ describe("normalDensity and summariseDensity", () => {
         expect(Math.abs(r.medianCalBp - m)).toBeLessThanOrEqual(0.5);
         expect(Math.abs(r.meanCalBp - m)).toBeLessThanOrEqual(0.01);
         // Same allowance as on the straight curve: one grid step plus the 0.683/0.954 vs ±1σ/±2σ gap.
-        const tol68 = 1 + 0.00045 * s + 1e-9;
+        const tol68 = 1 + 0.00064 * s + 1e-9;
         const tol95 = 1 + (2 - 1.99539) * s + 1e-9;
         expect(Math.abs(r.hpd68[0].from - (m + s))).toBeLessThanOrEqual(tol68);
         expect(Math.abs(r.hpd68[0].to - (m - s))).toBeLessThanOrEqual(tol68);

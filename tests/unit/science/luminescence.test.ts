@@ -2,7 +2,6 @@ import { describe, expect, it } from "vitest";
 import fc from "fast-check";
 import {
   CONVERSION_FACTORS,
-  cosmicAtDepth,
   cosmicDoseRate,
   doseRate,
   dryDoseRates,
@@ -45,12 +44,16 @@ describe("year of measurement (B5, common practice)", () => {
 });
 
 describe("conversion factors (B2)", () => {
-  it("both tables are available under their keys", () => {
-    // Guérin, Mercier & Adamiec 2011; Adamiec & Aitken 1998 — from memory, CHECK_VALUES B2
-    expect(CONVERSION_FACTORS.guerin2011.k.beta).toBe(0.7982);
-    expect(CONVERSION_FACTORS.guerin2011.th.gamma).toBe(0.0479);
-    expect(CONVERSION_FACTORS.adamiec1998.u.alpha).toBe(2.78);
-    expect(CONVERSION_FACTORS.adamiec1998.th.gamma).toBe(0.0514);
+  it("each table gives its own dose rates per unit of each element", () => {
+    // Guérin, Mercier & Adamiec 2011; Adamiec & Aitken 1998 — from memory, CHECK_VALUES B2:
+    // one unit of a single element gives its factor [derived]
+    expectQuoted(dryDoseRates(1, 0, 0, "guerin2011").beta, 0.7982, 4);
+    expectQuoted(dryDoseRates(0, 0, 1, "guerin2011").gamma, 0.0479, 4);
+    expectQuoted(dryDoseRates(0, 1, 0, "adamiec1998").alpha, 2.78, 2);
+    expectQuoted(dryDoseRates(0, 0, 1, "adamiec1998").gamma, 0.0514, 4);
+    expectQuoted(dryDoseRates(1, 0, 0, "adamiec1998").gamma, 0.243, 3);
+    expectQuoted(dryDoseRates(0, 1, 0, "adamiec1998").gamma, 0.113, 3);
+    expect(Object.keys(CONVERSION_FACTORS).sort()).toEqual(["adamiec1998", "guerin2011"]);
   });
 
   it("dry dose rates for K 2 %, U 2 ppm, Th 8 ppm", () => {
@@ -60,8 +63,9 @@ describe("conversion factors (B2)", () => {
     expectQuoted(d.gamma, 1.1046, 4);
     expectQuoted(d.alpha, 11.49, 3);
     const old = dryDoseRates(2, 2, 8, "adamiec1998");
-    // Adamiec & Aitken 1998 — from memory [derived from the B2 table]
-    expect(old.beta).toBeCloseTo(0.782 * 2 + 0.146 * 2 + 0.0286 * 8, 12);
+    // Adamiec & Aitken 1998 — from memory [derived from the B2 table]: β 2.0848, γ 1.1232 Gy/ka
+    expectQuoted(old.beta, 2.0848, 4);
+    expectQuoted(old.gamma, 1.1232, 4);
     expect(old.beta).not.toBeCloseTo(d.beta, 3);
   });
 });
@@ -90,33 +94,26 @@ describe("water (B3)", () => {
 });
 
 describe("cosmic dose rate (B4)", () => {
-  it("matches the derived values", () => {
-    // Prescott & Hutton 1994 — from memory [derived]: x = 2 → 0.1826; 5 → 0.1491; 10 → 0.1090 Gy/ka
-    expectQuoted(cosmicDoseRate(2), 0.1826, 4);
-    expectQuoted(cosmicDoseRate(5), 0.1491, 4);
-    expectQuoted(cosmicDoseRate(10), 0.109, 4);
-  });
-
-  it("takes the overburden in hg/cm² as depth (m) × density (g/cm³)", () => {
-    // 1 m at 2 g/cm³ = 200 g/cm² = 2 hg/cm²
-    expect(overburden(1, 2)).toBe(2);
-    expect(cosmicAtDepth({ depthM: 1, density: 2 }).doseRate).toBe(cosmicDoseRate(2));
-  });
-
-  it("notes when the burial is too shallow for the formula", () => {
-    // Prescott & Hutton 1994 — from memory: valid above 1.67 hg/cm²
-    const shallow = cosmicAtDepth({ depthM: 0.5, density: 1.8 });
-    expect(shallow.withinValidity).toBe(false);
-    expect(shallow.note).toMatch(/below 1.67 hg\/cm²/);
-    expect(cosmicAtDepth({ depthM: 1, density: 1.8 }).withinValidity).toBe(true);
-  });
-
   it("decreases with depth", () => {
     fc.assert(
       fc.property(fc.double({ min: 0, max: 100, noNaN: true }), fc.double({ min: 0.01, max: 10, noNaN: true }), (x, dx) => {
         expect(cosmicDoseRate(x + dx)).toBeLessThan(cosmicDoseRate(x));
       }),
     );
+  });
+
+  it("the breakdown keeps the shallow-burial note", () => {
+    // Prescott & Hutton 1994 — from memory: valid above 1.67 hg/cm²
+    const r = doseRate({
+      k: { value: 1, error: 0 },
+      u: { value: 1, error: 0 },
+      th: { value: 1, error: 0 },
+      water: { value: 0, error: 0 },
+      burial: { depthM: 0.5, density: 1.8 },
+    });
+    expect(r.cosmicWithinValidity).toBe(false);
+    expect(r.notes.join(" ")).toMatch(/below 1.67 hg\/cm²/);
+    expect(overburden(0.5, 1.8)).toBeCloseTo(0.9, 12);
   });
 });
 

@@ -79,6 +79,25 @@ describe("δ13C normalisation (A2)", () => {
     expect(conv.correctionYears).toBe(0);
   });
 
+  it("scales σ_F with F, so the age error is unchanged by normalisation", () => {
+    // Stuiver & Polach 1977 [derived]: δ13C = 0 ‰ → factor (0.975)² = 0.950625; F 0.5 ± 0.0025
+    const n = normaliseMeasurement({ measurement: { f14c: 0.5, error: 0.0025 }, d13c: 0, alreadyNormalised: false });
+    expect(n.f14c).toBeCloseTo(0.4753125, 10);
+    expect(n.f14cError).toBeCloseTo(0.002376563, 8);
+    // σ_t = 8033 σ_F / F is the same before and after: 40.17 yr (A1 check value)
+    expectQuoted(n.ageError, 40.17, 2);
+  });
+
+  it("brings an age normalised to 0 ‰ (legacy shell ages) to −25 ‰", () => {
+    // Stuiver & Polach 1977 [derived, A2]: the 0 ‰ reference differs by +406.8 yr (exact form)
+    const n = normaliseMeasurement({ measurement: { age: 10000, error: 40 }, alreadyNormalised: true, normalisedToZeroPermil: true });
+    expectQuoted(n.age, 10406.8, 1);
+    expect(n.ageError).toBe(40);
+    const r = interpretRadiocarbon({ measurement: { age: 10000, error: 40 }, alreadyNormalised: true, normalisedToZeroPermil: true });
+    expect(r).toMatchObject({ kind: "age", age: expect.closeTo(10406.76, 1) });
+    if (r.kind === "age") expect(r.message).toMatch(/0 ‰ reference/);
+  });
+
   it("gives the same age from F14C or from the age", () => {
     fc.assert(
       fc.property(fc.double({ min: 0.01, max: 1, noNaN: true }), fc.double({ min: -35, max: 5, noNaN: true }), (f, d13c) => {
@@ -139,6 +158,15 @@ describe("interpretRadiocarbon", () => {
     expect(r).toMatchObject({ kind: "limit", minAge: 45000 });
   });
 
+  it("computes a lab's greater-than given as F14C from F + 2σ (A1)", () => {
+    // van der Plicht & Hogg 2006 — from memory (CHECK_VALUES A1): F = 0.0010 ± 0.0008 → "> 47,814 yr BP"
+    const r = interpretRadiocarbon({ measurement: { f14c: 0.001, error: 0.0008 }, alreadyNormalised: true, reportedAsLimit: true });
+    expect(r).toMatchObject({ kind: "limit", minAge: expect.closeTo(47814, 0) });
+    // Even when F itself is well above 2σ, a reported limit is the age of F + 2σ, not of F.
+    const firm = interpretRadiocarbon({ measurement: { f14c: 0.01, error: 0.001 }, alreadyNormalised: true, reportedAsLimit: true });
+    expect(firm).toMatchObject({ kind: "limit", minAge: expect.closeTo(-8033 * Math.log(0.012), 6) });
+  });
+
   it("flags post-bomb F14C as not calibratable (A1)", () => {
     // Stuiver & Polach 1977 [derived]: pMC 110 → −765.6 yr
     const r = interpretRadiocarbon({ measurement: { f14c: 1.1, error: 0.003 }, alreadyNormalised: true });
@@ -149,6 +177,13 @@ describe("interpretRadiocarbon", () => {
     }
     const neg = interpretRadiocarbon({ measurement: { age: -120, error: 20 }, alreadyNormalised: true });
     expect(neg.kind).toBe("postbomb");
+  });
+
+  it("is post-bomb only when F exceeds 1 by more than 2σ", () => {
+    // common practice: 1.002 ± 0.003 is consistent with 1 and stays a (calibratable) age
+    const r = interpretRadiocarbon({ measurement: { f14c: 1.002, error: 0.003 }, alreadyNormalised: true });
+    expect(r.kind).toBe("age");
+    expect(interpretRadiocarbon({ measurement: { f14c: 1.007, error: 0.003 }, alreadyNormalised: true }).kind).toBe("postbomb");
   });
 
   it("reports bad numbers as invalid, naming the field", () => {
