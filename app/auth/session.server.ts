@@ -78,9 +78,6 @@ export async function requireRole(request: Request, ...allowed: Role[]): Promise
   return user;
 }
 
-export function hasRole(user: SessionUser | null | undefined, role: Role): boolean {
-  return !!user && user.roles.includes(role);
-}
 
 export async function createSession(
   userId: number,

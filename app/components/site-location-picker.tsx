@@ -1,3 +1,4 @@
+import { useHydrated } from "#app/utils/use-hydrated.ts";
 import { lazy, Suspense, useCallback, useEffect, useState } from "react";
 import type { LatLon, PickerSite } from "#app/components/map/site-picker.client.tsx";
 
@@ -44,11 +45,10 @@ export function SiteLocationPicker({
   latitudeId: string;
   longitudeId: string;
 }) {
-  const [hydrated, setHydrated] = useState(false);
+  const hydrated = useHydrated();
   const [position, setPosition] = useState<LatLon | null>(null);
 
   useEffect(() => {
-    setHydrated(true);
     const lat = inputById(latitudeId);
     const lon = inputById(longitudeId);
     if (!lat || !lon) return;

@@ -49,14 +49,10 @@ export function StratColumn({ units }: { units: ColumnUnit[] }) {
     .range([PLOT_X0, PLOT_X1])
     .nice();
 
-  let y = AXIS_H;
-  const blocks = units.map((u, i) => {
-    const h = Math.max(40, u.dates.length * ROW_H + UNIT_PAD * 2);
-    const block = { unit: u, y, h, shade: i % 2 === 0 ? "#dcebf4" : "#b9d6e8" };
-    y += h;
-    return block;
-  });
-  const height = y + 8;
+  const heights = units.map((u) => Math.max(40, u.dates.length * ROW_H + UNIT_PAD * 2));
+  const tops = heights.map((_, i) => AXIS_H + heights.slice(0, i).reduce((sum, h) => sum + h, 0));
+  const blocks = units.map((u, i) => ({ unit: u, y: tops[i]!, h: heights[i]!, shade: i % 2 === 0 ? "#dcebf4" : "#b9d6e8" }));
+  const height = AXIS_H + heights.reduce((sum, h) => sum + h, 0) + 8;
   const ticks = x.ticks(6);
 
   return (

@@ -2,7 +2,7 @@ import { and, desc, eq } from "drizzle-orm";
 import type { Db } from "#app/db/client.server.ts";
 import { calibrations, curves, determinations } from "#app/db/schema.ts";
 import { calendarOutcome, decodeDensity, interpretMeasurement, radiocarbonAgeFields } from "#app/models/calibrations.server.ts";
-import { activeCurve, curveWindow, type CurveRow } from "#app/models/curves.server.ts";
+import { curveWindow, type CurveRow } from "#app/models/curves.server.ts";
 import {
   plotWindow,
   type PlotCalibration,
@@ -93,9 +93,4 @@ export function plotForDetermination(db: Db, determinationId: number): Calibrati
       density: plainDensity(density),
     },
   };
-}
-
-/** Whether the named curve is a marine one (the page shows ΔR fields for it). */
-export function isMarineCurve(db: Db, name: string): boolean {
-  return activeCurve(db, name)?.kind === "marine";
 }

@@ -3,7 +3,7 @@ import fs from "node:fs";
 import path from "node:path";
 import { and, asc, eq } from "drizzle-orm";
 import type { Db } from "#app/db/client.server.ts";
-import { curvePoints, curves } from "#app/db/schema.ts";
+import { curves } from "#app/db/schema.ts";
 import {
   checkSpotValues,
   curveFromRows,

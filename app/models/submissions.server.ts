@@ -10,7 +10,6 @@ import {
   labs,
   materials,
   publications,
-  reviews,
   samples,
   sites,
   type Method,

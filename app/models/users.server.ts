@@ -205,11 +205,3 @@ export function recordSignIn(db: DbOrTx, userId: number, details: { method: "cod
     });
   });
 }
-
-export function userHasRole(db: DbOrTx, userId: number, role: Role): boolean {
-  return !!db
-    .select({ role: userRoles.role })
-    .from(userRoles)
-    .where(and(eq(userRoles.userId, userId), eq(userRoles.role, role)))
-    .get();
-}

@@ -13,7 +13,7 @@ export const meta: Route.MetaFunction = () => [{ title: "API · Thawline" }];
 
 export async function loader({ request }: Route.LoaderArgs) {
   // Public page: documentation only. The calibration example is computed, so its numbers are real.
-  let calibrated: unknown = null;
+  let calibrated: unknown;
   try {
     calibrated = calibrateItems(getDb(), [{ id: "a1", c14_age: 10250, c14_error: 45, curve: "intcal20" }]);
   } catch {

@@ -1,3 +1,4 @@
+import { useHydrated } from "#app/utils/use-hydrated.ts";
 import { useEffect, useMemo, useRef, useState } from "react";
 import { data, useFetcher, type ShouldRevalidateFunctionArgs } from "react-router";
 import type { Route } from "./+types/calibrate";
@@ -85,8 +86,7 @@ export default function CalibratePage({ loaderData, actionData }: Route.Componen
   const [input, setInput] = useState<PageInput>(actionData?.input ?? EMPTY_INPUT);
   const [scale, setScale] = useState<CalendarScale>(actionData?.scale ?? "bp");
   const [selected, setSelected] = useState<number>(0);
-  const [hydrated, setHydrated] = useState(false);
-  useEffect(() => setHydrated(true), []);
+  const hydrated = useHydrated();
 
   const marineNames = useMemo(() => new Set(curves.filter((c) => c.kind === "marine").map((c) => c.name)), [curves]);
   const chosen = curves.find((c) => c.name === input.curve);
@@ -100,18 +100,21 @@ export default function CalibratePage({ loaderData, actionData }: Route.Componen
   const pending = useRef<InputEntry[]>([]);
   const [sent, setSent] = useState<{ entries: InputEntry[] } | null>(null);
   const submitNow = useRef<() => void>(() => {});
-  submitNow.current = () => {
-    if (items.length === 0 || items.length > MAX_CALIBRATION_ITEMS) {
+  // The latest inputs for the debounced request, refreshed after each render.
+  useEffect(() => {
+    submitNow.current = () => {
+      if (items.length === 0 || items.length > MAX_CALIBRATION_ITEMS) {
+        pending.current = entries;
+        setSent({ entries });
+        return;
+      }
       pending.current = entries;
-      setSent({ entries });
-      return;
-    }
-    pending.current = entries;
-    void calc.submit(
-      { determinations: items, density: items.length <= DENSITY_WITH_RESULTS },
-      { method: "post", action: "/api/v1/calibrate", encType: "application/json" },
-    );
-  };
+      void calc.submit(
+        { determinations: items, density: items.length <= DENSITY_WITH_RESULTS },
+        { method: "post", action: "/api/v1/calibrate", encType: "application/json" },
+      );
+    };
+  });
   useEffect(() => {
     if (!hydrated) return;
     const t = setTimeout(() => submitNow.current(), DEBOUNCE_MS);

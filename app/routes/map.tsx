@@ -1,3 +1,4 @@
+import { useHydrated } from "#app/utils/use-hydrated.ts";
 import { lazy, Suspense, useCallback, useEffect, useMemo, useState } from "react";
 import { useFetcher } from "react-router";
 import type { Route } from "./+types/map";
@@ -24,12 +25,11 @@ const TIME_STEP = 50;
 export default function MapPage({ loaderData }: Route.ComponentProps) {
   const { reconstruction } = loaderData;
   const fetcher = useFetcher<{ sites: MapSite[] } | { error: string }>();
-  const [hydrated, setHydrated] = useState(false);
+  const hydrated = useHydrated();
   const [colourBy, setColourBy] = useState<"age" | "grade">("age");
   const [showIsochrones, setShowIsochrones] = useState(true);
   const [readyCount, setReadyCount] = useState<number | null>(null);
 
-  useEffect(() => setHydrated(true), []);
   useEffect(() => {
     if (fetcher.state === "idle" && !fetcher.data) fetcher.load("/api/map-sites");
   }, [fetcher]);

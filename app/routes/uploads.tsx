@@ -154,7 +154,7 @@ function UploadForm({ maxBytes }: { maxBytes: number }) {
     };
     xhr.upload.onload = () => setPhase("checking");
     xhr.onload = () => {
-      let data: { location?: string; error?: string } = {};
+      let data: { location?: string; error?: string };
       try {
         data = JSON.parse(xhr.responseText);
       } catch {

@@ -9,10 +9,6 @@ import { finishAndSummarise, type CalendarDensity, type DensitySummary } from ".
 export {
   normalDensity,
   summariseDensity,
-  densityAt,
-  HPD_68,
-  HPD_95,
-  DENSITY_TRIM,
   type CalendarDensity,
   type DensitySummary,
   type Range,

@@ -65,7 +65,7 @@ export function parseCurveCsv(
 ): CurveParseResult {
   const issues: CurveIssue[] = [];
   const lines = text.replace(/^\uFEFF/, "").split(/\r\n|\n|\r/);
-  let headerIndex = lines.findIndex((l) => l.trim() !== "");
+  const headerIndex = lines.findIndex((l) => l.trim() !== "");
   if (headerIndex < 0) return { ok: false, issues: [{ message: "The file is empty." }] };
   const header = splitCsvLine(lines[headerIndex]).map((h) => h.toLowerCase());
   const idx: Record<string, number> = {};

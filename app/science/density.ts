@@ -325,9 +325,3 @@ export function normalDensity(meanCalBp: number, sdYears: number): CalendarDensi
   if (!any) work[Math.round(meanCalBp) - lo] = 1;
   return finishDensity(work, 0, work.length, lo);
 }
-
-/** Probability mass per calendar year, or 0 outside the stored range. */
-export function densityAt(density: CalendarDensity, calBp: number): number {
-  const i = calBp - density.startCalBp;
-  return i >= 0 && i < density.values.length && Number.isInteger(i) ? density.values[i] : 0;
-}

@@ -691,4 +691,3 @@ export function makeRowSchema(ctx: RowContext) {
   });
 }
 
-export type RowSchema = ReturnType<typeof makeRowSchema>;

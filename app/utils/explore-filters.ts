@@ -13,6 +13,7 @@ export const GRADE_FILTERS = ["3", "2", "1", "0", "ungraded"] as const;
 export const STATUS_FILTERS = ["submitted", "in_review", "graded", "withdrawn", "all"] as const;
 // Kept literal so the browser bundle need not load the schema; this line fails to compile if they drift.
 type MissingStatus = Exclude<Status, (typeof STATUS_FILTERS)[number]>;
+/** @public a compile-time check that nothing reads */
 export const STATUS_FILTERS_COMPLETE: [MissingStatus] extends [never] ? true : false = true;
 
 /** Sort directions people expect when they first click a column. */

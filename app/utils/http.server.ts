@@ -3,14 +3,6 @@ export function notFound(message = "Not found"): never {
   throw new Response(message, { status: 404, statusText: "Not Found" });
 }
 
-export function invariantResponse(
-  condition: unknown,
-  message: string,
-  status = 400,
-): asserts condition {
-  if (!condition) throw new Response(message, { status });
-}
-
 export function badRequest(message: string): never {
   throw new Response(message, { status: 400, statusText: "Bad Request" });
 }

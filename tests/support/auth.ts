@@ -87,7 +87,6 @@ export async function run(fn: () => unknown): Promise<Outcome> {
 
 /** Route module functions are typed for the framework; tests hand them just these arguments. */
 export function args(request: Request, params: Record<string, string> = {}) {
-  // eslint-disable-next-line @typescript-eslint/no-explicit-any
   return { request, params, context: {} } as any;
 }
 

@@ -101,7 +101,9 @@ function SiteMarkers({
   const navigate = useNavigate();
   const markersRef = useRef<{ site: ClientMapSite; marker: L.CircleMarker }[]>([]);
   const styleRef = useRef(styleFor);
-  styleRef.current = styleFor;
+  useEffect(() => {
+    styleRef.current = styleFor;
+  });
 
   // Popups are Leaflet's HTML, outside React, and Leaflet stops their clicks from bubbling: follow
   // the site link inside the app (no full reload) unless the person asked for a new tab or window.

@@ -15,7 +15,7 @@ export const CALIBRATE_RATE_LIMIT = { limit: 60, windowMs: 60_000 } as const;
 /** 10,000 items with long ids stay well below this. */
 const MAX_BODY_BYTES = 8 * 1024 * 1024;
 
-export async function loader({ request }: Route.LoaderArgs) {
+export async function loader(_: Route.LoaderArgs) {
   // Public endpoint; only POST calibrates.
   return json(
     { error: "Use POST with a JSON body; see /calibrate for the request format." },
