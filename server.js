@@ -18,7 +18,11 @@ app.use("/assets", express.static("build/client/assets", { immutable: true, maxA
 app.use(express.static("build/client", { maxAge: "1h" }));
 app.use((req, _res, next) => {
   const trustProxy = process.env.TRUST_PROXY === "true";
-  const forwarded = trustProxy ? String(req.headers["x-forwarded-for"] ?? "").split(",")[0].trim() : "";
+  const forwarded = trustProxy
+    ? String(req.headers["x-forwarded-for"] ?? "")
+        .split(",")[0]
+        .trim()
+    : "";
   req.headers["x-thawline-client"] = forwarded || req.socket.remoteAddress || "unknown";
   delete req.headers["x-forwarded-for"];
   next();

@@ -106,8 +106,8 @@ function Shell({ children }: { children: React.ReactNode }) {
       </main>
       <footer className="border-t border-rule py-6 text-sm text-muted">
         <div className="mx-auto max-w-7xl px-5">
-          Calibrated ages depend on the curve and its version; marine ages depend on ΔR. Grades are expert
-          judgements, not measurements. For research use.
+          Calibrated ages depend on the curve and its version; marine ages depend on ΔR. Grades are expert judgements, not
+          measurements. For research use.
         </div>
       </footer>
     </div>
@@ -129,10 +129,7 @@ function Logo() {
 function FlashBanner() {
   const { flash } = useLoaderData<typeof loader>();
   if (!flash) return null;
-  const tone =
-    flash.kind === "error"
-      ? "border-conflict bg-conflict-bg text-conflict"
-      : "border-ice-300 bg-ice-50 text-ink";
+  const tone = flash.kind === "error" ? "border-conflict bg-conflict-bg text-conflict" : "border-ice-300 bg-ice-50 text-ink";
   return (
     <div role="status" className={`mb-6 rounded border px-4 py-2 ${tone}`}>
       {flash.message}

@@ -49,11 +49,7 @@ t = performance.now();
 const seeded = await seedDemo(db, { size: "full" });
 const seedMs = performance.now() - t;
 report("setup", "curve import (IntCal20 + Marine20)", ms(curveImportMs));
-report(
-  "seed",
-  `full seed (${seeded.summary.determinations} determinations, calibrated)`,
-  `${(seedMs / 1000).toFixed(1)} s`,
-);
+report("seed", `full seed (${seeded.summary.determinations} determinations, calibrated)`, `${(seedMs / 1000).toFixed(1)} s`);
 for (const s of seeded.timings) report("seed", `  stage: ${s.stage}`, ms(s.ms));
 
 // ---------------------------------------------------------------- page loaders
@@ -104,23 +100,44 @@ console.log("Calibrating every demo radiocarbon determination from scratch…");
 const intcal = activeCurve(db, "intcal20")!;
 const marine = activeCurve(db, "marine20")!;
 const prepared = { intcal20: preparedCurve(db, intcal.id), marine20: preparedCurve(db, marine.id) };
-type C14 = { c14_age_yr: number | null; c14_error_yr: number | null; f14c: number | null; f14c_error: number | null;
-  d13c_permil: number | null; age_normalised: number; is_limit: number; curve_name: string | null; delta_r_yr: number | null;
-  delta_r_error_yr: number | null };
+type C14 = {
+  c14_age_yr: number | null;
+  c14_error_yr: number | null;
+  f14c: number | null;
+  f14c_error: number | null;
+  d13c_permil: number | null;
+  age_normalised: number;
+  is_limit: number;
+  curve_name: string | null;
+  delta_r_yr: number | null;
+  delta_r_error_yr: number | null;
+};
 const c14Rows = db.$client
-  .prepare("select c14_age_yr, c14_error_yr, f14c, f14c_error, d13c_permil, age_normalised, is_limit, curve_name, delta_r_yr, delta_r_error_yr from determinations where method = 'radiocarbon'")
+  .prepare(
+    "select c14_age_yr, c14_error_yr, f14c, f14c_error, d13c_permil, age_normalised, is_limit, curve_name, delta_r_yr, delta_r_error_yr from determinations where method = 'radiocarbon'",
+  )
   .all() as C14[];
 const inputs = c14Rows.flatMap((r) => {
   const i = interpretRadiocarbon({
-    measurement: r.c14_age_yr != null ? { age: r.c14_age_yr, error: r.c14_error_yr ?? 0 } : { f14c: r.f14c ?? 0, error: r.f14c_error ?? 0 },
+    measurement:
+      r.c14_age_yr != null ? { age: r.c14_age_yr, error: r.c14_error_yr ?? 0 } : { f14c: r.f14c ?? 0, error: r.f14c_error ?? 0 },
     d13c: r.d13c_permil,
     alreadyNormalised: !!r.age_normalised,
     reportedAsLimit: !!r.is_limit,
   });
   if (i.kind !== "age") return [];
   const isMarine = r.curve_name === "marine20";
-  return [{ curve: isMarine ? prepared.marine20 : prepared.intcal20, input: { age: i.age, error: i.error,
-    deltaR: isMarine ? (r.delta_r_yr ?? 0) : 0, deltaRError: isMarine ? (r.delta_r_error_yr ?? 0) : 0 } }];
+  return [
+    {
+      curve: isMarine ? prepared.marine20 : prepared.intcal20,
+      input: {
+        age: i.age,
+        error: i.error,
+        deltaR: isMarine ? (r.delta_r_yr ?? 0) : 0,
+        deltaRError: isMarine ? (r.delta_r_error_yr ?? 0) : 0,
+      },
+    },
+  ];
 });
 // The demo has ~4,200 radiocarbon dates; the goal is stated for ~5,500, so scale the set up by cycling.
 const batch = Array.from({ length: 5500 }, (_, i) => inputs[i % inputs.length]!);
@@ -202,16 +219,44 @@ report("calibration API", "POST /api/v1/calibrate, 1,000 items, median of 5 warm
 
 // ---------------------------------------------------------------- uploads
 console.log("Uploading a 5,500-row sheet as XLSX and as CSV…");
-const headers = ["site_name", "latitude", "longitude", "sample_code", "material", "method", "lab_code", "lab_name",
-  "c14_age", "c14_error", "curve", "delta_r", "delta_r_error", "delta_r_curve", "constraint_kind"];
+const headers = [
+  "site_name",
+  "latitude",
+  "longitude",
+  "sample_code",
+  "material",
+  "method",
+  "lab_code",
+  "lab_name",
+  "c14_age",
+  "c14_error",
+  "curve",
+  "delta_r",
+  "delta_r_error",
+  "delta_r_curve",
+  "constraint_kind",
+];
 const lab = db.$client.prepare("select name, code_prefix from labs limit 1").get() as { name: string; code_prefix: string };
 function sheetRows(tag: string) {
   return Array.from({ length: 5500 }, (_, i) => {
     const marineRow = i % 3 === 0;
-    return [`Bench Cove ${tag} ${i % 400}`, 57 + (i % 400) / 200, -64 - (i % 97) / 50, `BN-${tag}-${i}`,
-      marineRow ? "marine shell" : "plant macrofossil", "radiocarbon", `${lab.code_prefix}-B${tag}${i}`, lab.name,
-      8000 + (i % 3000), 30 + (i % 50), marineRow ? "marine20" : "intcal20", marineRow ? 50 : "", marineRow ? 40 : "",
-      marineRow ? "marine20" : "", "minimum"];
+    return [
+      `Bench Cove ${tag} ${i % 400}`,
+      57 + (i % 400) / 200,
+      -64 - (i % 97) / 50,
+      `BN-${tag}-${i}`,
+      marineRow ? "marine shell" : "plant macrofossil",
+      "radiocarbon",
+      `${lab.code_prefix}-B${tag}${i}`,
+      lab.name,
+      8000 + (i % 3000),
+      30 + (i % 50),
+      marineRow ? "marine20" : "intcal20",
+      marineRow ? 50 : "",
+      marineRow ? 40 : "",
+      marineRow ? "marine20" : "",
+      "minimum",
+    ];
   });
 }
 const contributor = seeded.userIds["contributor@example.org"] ?? modeller;
@@ -221,7 +266,10 @@ ws.addRow(headers);
 for (const r of sheetRows("X")) ws.addRow(r);
 const xlsx = Buffer.from(await wb.xlsx.writeBuffer());
 const csv = Buffer.from([headers.join(","), ...sheetRows("C").map((r) => r.join(","))].join("\n"));
-for (const [kind, file] of [["xlsx", xlsx], ["csv", csv]] as const) {
+for (const [kind, file] of [
+  ["xlsx", xlsx],
+  ["csv", csv],
+] as const) {
   const b = await benchUpload(db, file, kind, contributor);
   report(`upload ${kind}`, `${b.rows} rows: parse`, `${(b.parseMs / 1000).toFixed(2)} s`);
   report(`upload ${kind}`, "validate", `${(b.validateMs / 1000).toFixed(2)} s`);
@@ -237,5 +285,6 @@ const w3 = Math.max(...table.map((r) => r.value.length));
 console.log(`\nThawline benchmarks — ${new Date().toISOString()} — Node ${process.version}\n`);
 console.log(`| ${"area".padEnd(w1)} | ${"measure".padEnd(w2)} | ${"value".padStart(w3)} | goal |`);
 console.log(`|${"-".repeat(w1 + 2)}|${"-".repeat(w2 + 2)}|${"-".repeat(w3 + 2)}|------|`);
-for (const r of table) console.log(`| ${r.area.padEnd(w1)} | ${r.measure.padEnd(w2)} | ${r.value.padStart(w3)} | ${r.goal ?? ""} |`);
+for (const r of table)
+  console.log(`| ${r.area.padEnd(w1)} | ${r.measure.padEnd(w2)} | ${r.value.padStart(w3)} | ${r.goal ?? ""} |`);
 db.$client.close();

@@ -23,7 +23,10 @@ if (!/^[^\s@]+@[^\s@]+\.[^\s@]+$/.test(address)) {
   console.error(`"${address}" is not an e-mail address.\n${usage}`);
   process.exit(2);
 }
-const requested = values.roles.split(",").map((r) => r.trim()).filter(Boolean);
+const requested = values.roles
+  .split(",")
+  .map((r) => r.trim())
+  .filter(Boolean);
 const unknown = requested.filter((r) => !isRole(r));
 if (unknown.length || requested.length === 0) {
   console.error(`Unknown role${unknown.length === 1 ? "" : "s"}: ${unknown.join(", ") || "(none given)"}.\n${usage}`);

@@ -20,7 +20,8 @@ for (const signal of ["SIGINT", "SIGTERM"] as const) {
     process.exit(0);
   });
 }
-for (const c of children) c.on("exit", (code) => {
-  for (const other of children) if (other !== c) other.kill();
-  process.exit(code ?? 0);
-});
+for (const c of children)
+  c.on("exit", (code) => {
+    for (const other of children) if (other !== c) other.kill();
+    process.exit(code ?? 0);
+  });

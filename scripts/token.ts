@@ -19,7 +19,9 @@ const db = getDb();
 try {
   const user = findUserByEmail(db, values.email);
   if (!user) {
-    console.error(`Nobody with the address ${values.email} is registered. Invite them first: npm run create-user -- ${values.email} --roles modeller`);
+    console.error(
+      `Nobody with the address ${values.email} is registered. Invite them first: npm run create-user -- ${values.email} --roles modeller`,
+    );
     process.exit(1);
   }
   if (!user.active) {

@@ -4,19 +4,77 @@
 import type { Rng } from "./random.ts";
 
 const HEADS = [
-  "Kiv", "Tarr", "Uml", "Sorv", "Ilv", "Qem", "Navv", "Orl", "Pell", "Skarr",
-  "Tuv", "Vesk", "Yrr", "Ebb", "Hask", "Lunn", "Mirr", "Brev", "Dask", "Frel",
-  "Gorr", "Jask", "Olv", "Rund", "Sull", "Trev", "Wenn", "Zall", "Aav", "Cerr",
+  "Kiv",
+  "Tarr",
+  "Uml",
+  "Sorv",
+  "Ilv",
+  "Qem",
+  "Navv",
+  "Orl",
+  "Pell",
+  "Skarr",
+  "Tuv",
+  "Vesk",
+  "Yrr",
+  "Ebb",
+  "Hask",
+  "Lunn",
+  "Mirr",
+  "Brev",
+  "Dask",
+  "Frel",
+  "Gorr",
+  "Jask",
+  "Olv",
+  "Rund",
+  "Sull",
+  "Trev",
+  "Wenn",
+  "Zall",
+  "Aav",
+  "Cerr",
 ];
 const LINKS = ["a", "i", "u", "o", "e", "aa", "", "ar", "il"];
 const TAILS = ["lik", "viq", "ro", "nen", "sk", "mar", "dal", "rith", "quen", "lo", "sta", "ven", "rud", "lett"];
 
 // Substrings of real place names in and around the demo region that an invented name must not contain.
 const REAL_NAME_PARTS = [
-  "nain", "hebron", "okak", "saglek", "nachvak", "ramah", "torngat", "ungava", "labrador", "kuujj",
-  "kangi", "tasiu", "aupal", "quaqt", "killin", "koksoak", "akpat", "kogal", "makkov", "hopedal",
-  "mugford", "kiglap", "naskau", "george", "whale", "payne", "leaf", "arnaud", "churchill", "caniap",
-  "schefferv", "michikam", "mistast", "eclipse", "napak",
+  "nain",
+  "hebron",
+  "okak",
+  "saglek",
+  "nachvak",
+  "ramah",
+  "torngat",
+  "ungava",
+  "labrador",
+  "kuujj",
+  "kangi",
+  "tasiu",
+  "aupal",
+  "quaqt",
+  "killin",
+  "koksoak",
+  "akpat",
+  "kogal",
+  "makkov",
+  "hopedal",
+  "mugford",
+  "kiglap",
+  "naskau",
+  "george",
+  "whale",
+  "payne",
+  "leaf",
+  "arnaud",
+  "churchill",
+  "caniap",
+  "schefferv",
+  "michikam",
+  "mistast",
+  "eclipse",
+  "napak",
 ];
 
 function invented(rng: Rng): string {
@@ -41,16 +99,41 @@ export function siteName(rng: Rng, features: readonly string[], taken: Set<strin
 
 /** Fictional surnames made of glacial-geology words. */
 export const SURNAMES = [
-  "Frostmere", "Kettleby", "Morainewood", "Eskerholm", "Drumlinson", "Cirqueton", "Varvebridge",
-  "Tillworth", "Outwashley", "Snowhaven", "Icefallow", "Kamesford", "Floeberg", "Sastrugill",
-  "Nunatakker", "Rimebrook", "Fjordell", "Calvington", "Sedgewhistle", "Driftmoor",
+  "Frostmere",
+  "Kettleby",
+  "Morainewood",
+  "Eskerholm",
+  "Drumlinson",
+  "Cirqueton",
+  "Varvebridge",
+  "Tillworth",
+  "Outwashley",
+  "Snowhaven",
+  "Icefallow",
+  "Kamesford",
+  "Floeberg",
+  "Sastrugill",
+  "Nunatakker",
+  "Rimebrook",
+  "Fjordell",
+  "Calvington",
+  "Sedgewhistle",
+  "Driftmoor",
 ];
 
 const INITIALS = "ABCDEFGHJKLMNPRSTVW";
 
 export function authorList(rng: Rng): string {
-  const n = rng.weighted([[1, 0.2], [2, 0.35], [3, 0.3], [4, 0.15]] as const);
-  const names = rng.shuffle(SURNAMES).slice(0, n).map((s) => `${s}, ${rng.pick([...INITIALS])}.`);
+  const n = rng.weighted([
+    [1, 0.2],
+    [2, 0.35],
+    [3, 0.3],
+    [4, 0.15],
+  ] as const);
+  const names = rng
+    .shuffle(SURNAMES)
+    .slice(0, n)
+    .map((s) => `${s}, ${rng.pick([...INITIALS])}.`);
   if (names.length === 1) return names[0];
   return `${names.slice(0, -1).join(", ")} & ${names[names.length - 1]}`;
 }

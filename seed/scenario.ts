@@ -192,12 +192,54 @@ export interface ScenarioOptions {
 
 /** Invented labs. Prefixes follow a pattern (three letters ending in X or Z) no real lab uses. */
 export const DEMO_LABS: readonly ScenarioLab[] = [
-  { name: "Kivalo Isotope Works", codePrefix: "KVX", city: "Port Ivalen", methods: ["radiocarbon"], typicalErrorYr: 35, reportsF14c: true },
-  { name: "Orrin Vale Carbon Facility", codePrefix: "ORZ", city: "Orrin Vale", methods: ["radiocarbon"], typicalErrorYr: 45, reportsF14c: false },
-  { name: "Tallowmere Accelerator Group", codePrefix: "TWX", city: "Tallowmere", methods: ["radiocarbon"], typicalErrorYr: 30, reportsF14c: true },
-  { name: "Mirewood Radiocarbon Laboratory", codePrefix: "MWZ", city: "Mirewood", methods: ["radiocarbon"], typicalErrorYr: 70, reportsF14c: false },
-  { name: "Hollowquartz Luminescence Unit", codePrefix: "HQX", city: "Hollowby", methods: ["luminescence"], typicalErrorYr: 0, reportsF14c: false },
-  { name: "Pennick Ridge Dating Laboratory", codePrefix: "PRZ", city: "Pennick", methods: ["luminescence", "radiocarbon"], typicalErrorYr: 55, reportsF14c: false },
+  {
+    name: "Kivalo Isotope Works",
+    codePrefix: "KVX",
+    city: "Port Ivalen",
+    methods: ["radiocarbon"],
+    typicalErrorYr: 35,
+    reportsF14c: true,
+  },
+  {
+    name: "Orrin Vale Carbon Facility",
+    codePrefix: "ORZ",
+    city: "Orrin Vale",
+    methods: ["radiocarbon"],
+    typicalErrorYr: 45,
+    reportsF14c: false,
+  },
+  {
+    name: "Tallowmere Accelerator Group",
+    codePrefix: "TWX",
+    city: "Tallowmere",
+    methods: ["radiocarbon"],
+    typicalErrorYr: 30,
+    reportsF14c: true,
+  },
+  {
+    name: "Mirewood Radiocarbon Laboratory",
+    codePrefix: "MWZ",
+    city: "Mirewood",
+    methods: ["radiocarbon"],
+    typicalErrorYr: 70,
+    reportsF14c: false,
+  },
+  {
+    name: "Hollowquartz Luminescence Unit",
+    codePrefix: "HQX",
+    city: "Hollowby",
+    methods: ["luminescence"],
+    typicalErrorYr: 0,
+    reportsF14c: false,
+  },
+  {
+    name: "Pennick Ridge Dating Laboratory",
+    codePrefix: "PRZ",
+    city: "Pennick",
+    methods: ["luminescence", "radiocarbon"],
+    typicalErrorYr: 55,
+    reportsF14c: false,
+  },
 ];
 
 export const DEMO_JOURNAL = "Journal of Imaginary Glacial Studies";
@@ -239,7 +281,10 @@ const SUB_TILL_MARINE: UnitSpec = {
   kind: "max",
   years: [2500, 24000],
   thicknessCm: [60, 200],
-  materials: [["marine shell", 3], ["quartz", 1]],
+  materials: [
+    ["marine shell", 3],
+    ["quartz", 1],
+  ],
   context: "shells and sand beneath till, overridden by the advancing ice",
 };
 
@@ -248,7 +293,11 @@ const BURIED_ORGANICS: UnitSpec = {
   kind: "max",
   years: [2500, 26000],
   thicknessCm: [20, 80],
-  materials: [["wood", 2], ["plant macrofossil", 2], ["peat", 1]],
+  materials: [
+    ["wood", 2],
+    ["plant macrofossil", 2],
+    ["peat", 1],
+  ],
   context: "compressed organic bed beneath till",
 };
 
@@ -259,9 +308,41 @@ const SETTINGS: readonly SettingSpec[] = [
     weight: 0.35,
     features: ["Delta", "Terraces", "Flats"],
     units: [
-      { name: "topset sand", kind: "min", years: [450, 800], thicknessCm: [120, 300], materials: [["quartz", 3], ["K-feldspar", 1.5], ["marine shell", 1]], context: "horizontally bedded sand and gravel, delta topset" },
-      { name: "foreset sand", kind: "min", years: [150, 450], thicknessCm: [150, 400], materials: [["marine shell", 3], ["quartz", 2], ["K-feldspar", 1]], context: "inclined sand beds, delta foreset" },
-      { name: "prodelta mud", kind: "min", years: [0, 150], thicknessCm: [100, 300], materials: [["marine shell", 3], ["foraminifera", 1.5]], context: "laminated mud with paired valves" },
+      {
+        name: "topset sand",
+        kind: "min",
+        years: [450, 800],
+        thicknessCm: [120, 300],
+        materials: [
+          ["quartz", 3],
+          ["K-feldspar", 1.5],
+          ["marine shell", 1],
+        ],
+        context: "horizontally bedded sand and gravel, delta topset",
+      },
+      {
+        name: "foreset sand",
+        kind: "min",
+        years: [150, 450],
+        thicknessCm: [150, 400],
+        materials: [
+          ["marine shell", 3],
+          ["quartz", 2],
+          ["K-feldspar", 1],
+        ],
+        context: "inclined sand beds, delta foreset",
+      },
+      {
+        name: "prodelta mud",
+        kind: "min",
+        years: [0, 150],
+        thicknessCm: [100, 300],
+        materials: [
+          ["marine shell", 3],
+          ["foraminifera", 1.5],
+        ],
+        context: "laminated mud with paired valves",
+      },
       TILL(),
       SUB_TILL_MARINE,
     ],
@@ -272,8 +353,29 @@ const SETTINGS: readonly SettingSpec[] = [
     weight: 0.25,
     features: ["Strand", "Beach Ridges", "Cove"],
     units: [
-      { name: "beach gravel", kind: "min", years: [300, 800], thicknessCm: [80, 200], materials: [["marine shell", 3], ["quartz", 1.5], ["whale bone", 0.2]], context: "rounded gravel and sand, raised beach ridge" },
-      { name: "glaciomarine silt", kind: "min", years: [0, 300], thicknessCm: [100, 300], materials: [["marine shell", 3], ["foraminifera", 1]], context: "massive silt with dropstones" },
+      {
+        name: "beach gravel",
+        kind: "min",
+        years: [300, 800],
+        thicknessCm: [80, 200],
+        materials: [
+          ["marine shell", 3],
+          ["quartz", 1.5],
+          ["whale bone", 0.2],
+        ],
+        context: "rounded gravel and sand, raised beach ridge",
+      },
+      {
+        name: "glaciomarine silt",
+        kind: "min",
+        years: [0, 300],
+        thicknessCm: [100, 300],
+        materials: [
+          ["marine shell", 3],
+          ["foraminifera", 1],
+        ],
+        context: "massive silt with dropstones",
+      },
       TILL(),
     ],
   },
@@ -283,8 +385,29 @@ const SETTINGS: readonly SettingSpec[] = [
     weight: 0.4,
     features: ["Bluff", "Cutbank", "Section"],
     units: [
-      { name: "littoral sand", kind: "min", years: [350, 800], thicknessCm: [100, 250], materials: [["marine shell", 2], ["quartz", 1.5], ["K-feldspar", 1]], context: "regressive shoreface sand" },
-      { name: "glaciomarine silt", kind: "min", years: [0, 350], thicknessCm: [150, 500], materials: [["marine shell", 3], ["foraminifera", 2]], context: "shells in growth position in silt" },
+      {
+        name: "littoral sand",
+        kind: "min",
+        years: [350, 800],
+        thicknessCm: [100, 250],
+        materials: [
+          ["marine shell", 2],
+          ["quartz", 1.5],
+          ["K-feldspar", 1],
+        ],
+        context: "regressive shoreface sand",
+      },
+      {
+        name: "glaciomarine silt",
+        kind: "min",
+        years: [0, 350],
+        thicknessCm: [150, 500],
+        materials: [
+          ["marine shell", 3],
+          ["foraminifera", 2],
+        ],
+        context: "shells in growth position in silt",
+      },
       TILL(),
       SUB_TILL_MARINE,
     ],
@@ -295,8 +418,32 @@ const SETTINGS: readonly SettingSpec[] = [
     weight: 0.38,
     features: ["Lake", "Pond", "Tarn"],
     units: [
-      { name: "gyttja", kind: "min", years: [400, 800], thicknessCm: [100, 400], materials: [["gyttja", 2], ["plant macrofossil", 2], ["bulk sediment", 1.5], ["moss", 1]], context: "lake core, organic mud" },
-      { name: "basal organic silt", kind: "min", years: [0, 400], thicknessCm: [20, 80], materials: [["plant macrofossil", 2.5], ["bulk sediment", 2], ["moss", 1], ["gyttja", 1]], context: "lake core, first organic sediment above minerogenic silt" },
+      {
+        name: "gyttja",
+        kind: "min",
+        years: [400, 800],
+        thicknessCm: [100, 400],
+        materials: [
+          ["gyttja", 2],
+          ["plant macrofossil", 2],
+          ["bulk sediment", 1.5],
+          ["moss", 1],
+        ],
+        context: "lake core, organic mud",
+      },
+      {
+        name: "basal organic silt",
+        kind: "min",
+        years: [0, 400],
+        thicknessCm: [20, 80],
+        materials: [
+          ["plant macrofossil", 2.5],
+          ["bulk sediment", 2],
+          ["moss", 1],
+          ["gyttja", 1],
+        ],
+        context: "lake core, first organic sediment above minerogenic silt",
+      },
       TILL([50, 150]),
     ],
   },
@@ -306,8 +453,31 @@ const SETTINGS: readonly SettingSpec[] = [
     weight: 0.24,
     features: ["Bog", "Fen", "Mire"],
     units: [
-      { name: "peat", kind: "min", years: [400, 800], thicknessCm: [80, 300], materials: [["peat", 2], ["plant macrofossil", 1.5], ["wood", 1]], context: "sedge peat" },
-      { name: "basal peat", kind: "min", years: [0, 400], thicknessCm: [10, 40], materials: [["plant macrofossil", 2], ["bulk sediment", 2], ["peat", 1], ["wood", 1]], context: "basal peat on mineral soil" },
+      {
+        name: "peat",
+        kind: "min",
+        years: [400, 800],
+        thicknessCm: [80, 300],
+        materials: [
+          ["peat", 2],
+          ["plant macrofossil", 1.5],
+          ["wood", 1],
+        ],
+        context: "sedge peat",
+      },
+      {
+        name: "basal peat",
+        kind: "min",
+        years: [0, 400],
+        thicknessCm: [10, 40],
+        materials: [
+          ["plant macrofossil", 2],
+          ["bulk sediment", 2],
+          ["peat", 1],
+          ["wood", 1],
+        ],
+        context: "basal peat on mineral soil",
+      },
       TILL([50, 200]),
       BURIED_ORGANICS,
     ],
@@ -318,9 +488,31 @@ const SETTINGS: readonly SettingSpec[] = [
     weight: 0.16,
     features: ["Terrace", "Outwash", "Brook"],
     units: [
-      { name: "outwash sand", kind: "min", years: [0, 600], thicknessCm: [150, 400], materials: [["quartz", 3], ["K-feldspar", 1.5], ["wood", 0.5], ["charcoal", 0.3]], context: "cross-bedded proglacial sand" },
+      {
+        name: "outwash sand",
+        kind: "min",
+        years: [0, 600],
+        thicknessCm: [150, 400],
+        materials: [
+          ["quartz", 3],
+          ["K-feldspar", 1.5],
+          ["wood", 0.5],
+          ["charcoal", 0.3],
+        ],
+        context: "cross-bedded proglacial sand",
+      },
       TILL(),
-      { name: "sub-till sand", kind: "max", years: [3000, 30000], thicknessCm: [80, 200], materials: [["quartz", 2], ["wood", 1]], context: "sand beneath till" },
+      {
+        name: "sub-till sand",
+        kind: "max",
+        years: [3000, 30000],
+        thicknessCm: [80, 200],
+        materials: [
+          ["quartz", 2],
+          ["wood", 1],
+        ],
+        context: "sand beneath till",
+      },
     ],
   },
   {
@@ -329,8 +521,28 @@ const SETTINGS: readonly SettingSpec[] = [
     weight: 0.08,
     features: ["Dunes", "Sandhills"],
     units: [
-      { name: "dune sand", kind: "min", years: [300, 800], thicknessCm: [150, 300], materials: [["quartz", 2], ["K-feldspar", 1]], context: "well-sorted aeolian sand" },
-      { name: "outwash sand", kind: "min", years: [0, 300], thicknessCm: [100, 250], materials: [["quartz", 2], ["K-feldspar", 1]], context: "proglacial sand beneath dune" },
+      {
+        name: "dune sand",
+        kind: "min",
+        years: [300, 800],
+        thicknessCm: [150, 300],
+        materials: [
+          ["quartz", 2],
+          ["K-feldspar", 1],
+        ],
+        context: "well-sorted aeolian sand",
+      },
+      {
+        name: "outwash sand",
+        kind: "min",
+        years: [0, 300],
+        thicknessCm: [100, 250],
+        materials: [
+          ["quartz", 2],
+          ["K-feldspar", 1],
+        ],
+        context: "proglacial sand beneath dune",
+      },
     ],
   },
   {
@@ -339,7 +551,18 @@ const SETTINGS: readonly SettingSpec[] = [
     weight: 0.14,
     features: ["Moraine", "Ridge", "Kame"],
     units: [
-      { name: "slopewash", kind: "min", years: [300, 800], thicknessCm: [40, 150], materials: [["plant macrofossil", 2], ["charcoal", 1], ["quartz", 1]], context: "colluvium on the moraine crest" },
+      {
+        name: "slopewash",
+        kind: "min",
+        years: [300, 800],
+        thicknessCm: [40, 150],
+        materials: [
+          ["plant macrofossil", 2],
+          ["charcoal", 1],
+          ["quartz", 1],
+        ],
+        context: "colluvium on the moraine crest",
+      },
       TILL([150, 400]),
       BURIED_ORGANICS,
     ],
@@ -466,7 +689,14 @@ export function generateScenario(inputs: ScenarioInputs, options: ScenarioOption
       latitude: round(lat, 5),
       longitude: round(lon, 5),
       elevationM: round(coastal ? marineLimit * rng.uniform(0.12, 0.95) : rng.uniform(160, 820), 1),
-      locationUncertaintyM: rng.weighted([[10, 3], [25, 3], [50, 2], [100, 2], [250, 1], [1000, 0.5]] as const),
+      locationUncertaintyM: rng.weighted([
+        [10, 3],
+        [25, 3],
+        [50, 2],
+        [100, 2],
+        [250, 1],
+        [1000, 0.5],
+      ] as const),
       setting: setting.name,
       region: regionOf(lon, lat, coastal),
       notes: "Synthetic demo site: invented for the Thawline demo scenario, not a real place.",
@@ -488,27 +718,45 @@ export function generateScenario(inputs: ScenarioInputs, options: ScenarioOption
   const quota = (f: PlantedFault) => Math.round(PLANTED_SHARES[f] * totalDets);
   const clean = (s: PlannedSample) => s.fault === null && s.constraintKind === "minimum";
 
-  fillQuota(faultRng, samples, quota("reworked"), (s) => clean(s) && s.material === "marine shell", (s) => {
-    const site = sites[s.siteIndex];
-    s.fault = "reworked";
-    s.trueAgeCalBp = Math.min(40000, site.deglaciationCalBp + faultRng.uniform(4000, 26000));
-    if (faultRng.chance(0.5)) {
-      const setting = SETTINGS.find((x) => x.name === site.setting)!;
-      const till = setting.units.findIndex((u) => u.kind === "till");
-      s.stratUnit = "till";
-      s.stratOrder = till + 1;
-      if (s.tillDepthCm !== null) s.depthCm = s.tillDepthCm;
-      s.context = "shell fragments in diamicton";
-    }
-  });
-  fillQuota(faultRng, samples, quota("old_carbon"), (s) => clean(s) && s.material === "bulk sediment", (s) => {
-    s.fault = "old_carbon";
-    s.oldCarbonYr = faultRng.uniform(500, 3000);
-  });
-  fillQuota(faultRng, samples, quota("partial_bleaching"), (s) => clean(s) && LUMINESCENCE_MATERIALS.has(s.material), (s) => {
-    s.fault = "partial_bleaching";
-    s.bleachingResidualKa = faultRng.uniform(1, 5);
-  });
+  fillQuota(
+    faultRng,
+    samples,
+    quota("reworked"),
+    (s) => clean(s) && s.material === "marine shell",
+    (s) => {
+      const site = sites[s.siteIndex];
+      s.fault = "reworked";
+      s.trueAgeCalBp = Math.min(40000, site.deglaciationCalBp + faultRng.uniform(4000, 26000));
+      if (faultRng.chance(0.5)) {
+        const setting = SETTINGS.find((x) => x.name === site.setting)!;
+        const till = setting.units.findIndex((u) => u.kind === "till");
+        s.stratUnit = "till";
+        s.stratOrder = till + 1;
+        if (s.tillDepthCm !== null) s.depthCm = s.tillDepthCm;
+        s.context = "shell fragments in diamicton";
+      }
+    },
+  );
+  fillQuota(
+    faultRng,
+    samples,
+    quota("old_carbon"),
+    (s) => clean(s) && s.material === "bulk sediment",
+    (s) => {
+      s.fault = "old_carbon";
+      s.oldCarbonYr = faultRng.uniform(500, 3000);
+    },
+  );
+  fillQuota(
+    faultRng,
+    samples,
+    quota("partial_bleaching"),
+    (s) => clean(s) && LUMINESCENCE_MATERIALS.has(s.material),
+    (s) => {
+      s.fault = "partial_bleaching";
+      s.bleachingResidualKa = faultRng.uniform(1, 5);
+    },
+  );
 
   // 3. Determinations simulated from the samples' true ages.
   const simRng = new Rng(deriveSeed(seed, "measurements"));
@@ -537,7 +785,11 @@ export function generateScenario(inputs: ScenarioInputs, options: ScenarioOption
   );
   for (const d of wrongDeltaR.slice(0, quota("wrong_delta_r"))) {
     d.truth.plantedFault = "wrong_delta_r";
-    const variant = faultRng.weighted([["older-curve", 0.45], ["no-curve", 0.3], ["none", 0.25]] as const);
+    const variant = faultRng.weighted([
+      ["older-curve", 0.45],
+      ["no-curve", 0.3],
+      ["none", 0.25],
+    ] as const);
     if (variant === "none") {
       d.deltaRYr = null;
       d.deltaRErrorYr = null;
@@ -604,7 +856,13 @@ function makePublications(rng: Rng, n: number): ScenarioPublication[] {
 function planSamples(rng: Rng, site: ScenarioSite, siteIndex: number, setting: SettingSpec): PlannedSample[] {
   const minUnits = setting.units.filter((u) => u.kind === "min");
   const maxUnits = setting.units.filter((u) => u.kind === "max");
-  const n = rng.weighted([[1, 0.2], [2, 0.32], [3, 0.26], [4, 0.14], [5, 0.08]] as const);
+  const n = rng.weighted([
+    [1, 0.2],
+    [2, 0.32],
+    [3, 0.26],
+    [4, 0.14],
+    [5, 0.08],
+  ] as const);
   // Unit thicknesses for this site, top down.
   const tops: number[] = [];
   const thick: number[] = [];
@@ -638,9 +896,7 @@ function planSamples(rng: Rng, site: ScenarioSite, siteIndex: number, setting: S
       // Luminescence samples come from at least a metre down, where the cosmic formula holds.
       if (lum && depthCm < 100) depthCm = 100 + rng.uniform(0, 50);
       const trueAge =
-        unit.kind === "min"
-          ? site.deglaciationCalBp - d.years
-          : Math.min(lum ? 80000 : 40000, site.deglaciationCalBp + d.years);
+        unit.kind === "min" ? site.deglaciationCalBp - d.years : Math.min(lum ? 80000 : 40000, site.deglaciationCalBp + d.years);
       out.push({
         siteIndex,
         fieldCode: "",
@@ -653,7 +909,11 @@ function planSamples(rng: Rng, site: ScenarioSite, siteIndex: number, setting: S
         trueAgeCalBp: round(trueAge, 1),
         fault: null,
         unit,
-        detCount: rng.weighted([[1, 0.85], [2, 0.11], [3, 0.04]] as const),
+        detCount: rng.weighted([
+          [1, 0.85],
+          [2, 0.11],
+          [3, 0.04],
+        ] as const),
         oldCarbonYr: 0,
         bleachingResidualKa: 0,
         tillDepthCm,

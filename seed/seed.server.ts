@@ -271,7 +271,9 @@ export function resetDemoData(db: Db) {
       sqlite.exec(`delete from ${table} where determination_id in ${demo}`);
     }
     db.delete(auditLog)
-      .where(sql`${auditLog.entity} = 'determination' and ${auditLog.entityId} in (select cast(determination_id as text) from scenario_truth)`)
+      .where(
+        sql`${auditLog.entity} = 'determination' and ${auditLog.entityId} in (select cast(determination_id as text) from scenario_truth)`,
+      )
       .run();
     sqlite.exec(`delete from determinations where id in ${demo}`);
     sqlite.exec(`delete from scenario_truth`);

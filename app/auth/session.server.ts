@@ -78,11 +78,7 @@ export async function requireRole(request: Request, ...allowed: Role[]): Promise
   return user;
 }
 
-
-export async function createSession(
-  userId: number,
-  request: Request,
-): Promise<{ id: string; cookie: string }> {
+export async function createSession(userId: number, request: Request): Promise<{ id: string; cookie: string }> {
   const id = crypto.randomBytes(32).toString("base64url");
   getDb()
     .insert(sessions)

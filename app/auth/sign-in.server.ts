@@ -244,8 +244,16 @@ export async function requestCode(
   const email = normalizeEmail(input.email);
   const ip = clientAddress(request);
   const factor = env().SIGN_IN_RATE_LIMIT_FACTOR;
-  const perClient = hit(`sign-in:client:${ip}`, Math.round(CODE_REQUESTS_PER_CLIENT.limit * factor), CODE_REQUESTS_PER_CLIENT.windowMs);
-  const perAddress = hit(`sign-in:address:${email}`, Math.round(CODE_REQUESTS_PER_ADDRESS.limit * factor), CODE_REQUESTS_PER_ADDRESS.windowMs);
+  const perClient = hit(
+    `sign-in:client:${ip}`,
+    Math.round(CODE_REQUESTS_PER_CLIENT.limit * factor),
+    CODE_REQUESTS_PER_CLIENT.windowMs,
+  );
+  const perAddress = hit(
+    `sign-in:address:${email}`,
+    Math.round(CODE_REQUESTS_PER_ADDRESS.limit * factor),
+    CODE_REQUESTS_PER_ADDRESS.windowMs,
+  );
   if (!perClient.allowed || !perAddress.allowed) {
     const wait = Math.max(perClient.retryAfterS, perAddress.retryAfterS);
     return { error: `Too many sign-in codes have been asked for. Try again ${retryWords(wait)}.`, status: 429 };

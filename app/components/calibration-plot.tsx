@@ -80,11 +80,16 @@ export function CalibrationPlot({
       // keep the window plus the one row beyond each end
       const next = all[i + 1];
       const prev = all[i - 1];
-      return (p.calBp >= window.to || (next && next.calBp >= window.to)) && (p.calBp <= window.from || (prev && prev.calBp <= window.from));
+      return (
+        (p.calBp >= window.to || (next && next.calBp >= window.to)) &&
+        (p.calBp <= window.from || (prev && prev.calBp <= window.from))
+      );
     })
     .map((p) => ({ calBp: p.calBp, c: p.c14 + deltaR, s: Math.sqrt(p.sigma * p.sigma + deltaRError * deltaRError) }));
 
-  const x = scaleLinear().domain([window.from, window.to]).range([M.left, W - M.right]);
+  const x = scaleLinear()
+    .domain([window.from, window.to])
+    .range([M.left, W - M.right]);
   const bottom = H - M.bottom;
   const top = M.top;
 
@@ -142,7 +147,8 @@ export function CalibrationPlot({
   const rangesText = (list: PlotRange[]) => list.map((r) => `${formatRange(r, scale)} (${formatProbability(r.p)})`).join("; ");
   const curveName = `${curve.displayName} (${curve.version})`;
   const measured = `${groupThousands(Math.round(mu))} ± ${groupThousands(Math.round(sd))} ¹⁴C yr BP`;
-  const offset = curve.kind === "marine" ? `, ΔR ${groupThousands(Math.round(deltaR))} ± ${groupThousands(Math.round(deltaRError))}` : "";
+  const offset =
+    curve.kind === "marine" ? `, ΔR ${groupThousands(Math.round(deltaR))} ± ${groupThousands(Math.round(deltaRError))}` : "";
   const label =
     `Calibration of ${heading ? `${heading}, ` : ""}${measured} on ${curveName}${offset}: median ` +
     `${formatCalAge(calibration.medianCalBp, scale)}; 95.4 % range ${rangesText(calibration.hpd95)}.`;
@@ -159,9 +165,9 @@ export function CalibrationPlot({
       >
         <title id={titleId}>{label}</title>
         <desc id={descId}>
-          The curve is drawn as a band of plus and minus one standard deviation; the measurement as a normal curve on
-          the radiocarbon axis; the calendar probability along the calendar axis with the 95.4 % range lightly and the
-          68.3 % range deeply shaded.
+          The curve is drawn as a band of plus and minus one standard deviation; the measurement as a normal curve on the
+          radiocarbon axis; the calendar probability along the calendar axis with the 95.4 % range lightly and the 68.3 % range
+          deeply shaded.
         </desc>
         <defs>
           <clipPath id={clipId}>
@@ -205,12 +211,7 @@ export function CalibrationPlot({
             </text>
           </g>
         ))}
-        <text
-          transform={`translate(16,${(top + bottom) / 2}) rotate(-90)`}
-          textAnchor="middle"
-          fontSize={13}
-          fill="#1c2a36"
-        >
+        <text transform={`translate(16,${(top + bottom) / 2}) rotate(-90)`} textAnchor="middle" fontSize={13} fill="#1c2a36">
           ¹⁴C yr BP
         </text>
         <text x={W - M.right - 6} y={top + 16} textAnchor="end" fontSize={12} fill="#1f4e72">
@@ -227,8 +228,8 @@ export function CalibrationPlot({
         <RangeList label="68.3 %" ranges={calibration.hpd68} scale={scale} tone="bg-ice-600" />
         <RangeList label="95.4 %" ranges={calibration.hpd95} scale={scale} tone="bg-ice-300" />
         <p className="text-muted">
-          Curve band: ±1σ of the curve{curve.kind === "marine" ? " with ΔR added and its error in quadrature" : ""}.
-          Curve: {curve.citation}
+          Curve band: ±1σ of the curve{curve.kind === "marine" ? " with ΔR added and its error in quadrature" : ""}. Curve:{" "}
+          {curve.citation}
           {curve.doi ? ` doi:${curve.doi}` : ""}
         </p>
       </figcaption>

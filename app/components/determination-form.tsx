@@ -192,10 +192,13 @@ export function DeterminationForm({
                 {filteredSites.more > 0 ? (
                   <p className="text-sm text-muted">{filteredSites.more} more; type part of the name to narrow the list.</p>
                 ) : null}
-                {options.sites.length === 0 ? <p className="text-sm text-muted">The registry has no sites yet; enter a new one.</p> : null}
+                {options.sites.length === 0 ? (
+                  <p className="text-sm text-muted">The registry has no sites yet; enter a new one.</p>
+                ) : null}
                 {chosenSite ? (
                   <p className="text-sm" data-testid="chosen-site">
-                    Chosen: <strong>{chosenSite.name}</strong>, {chosenSite.latitude.toFixed(4)}°, {chosenSite.longitude.toFixed(4)}°{" "}
+                    Chosen: <strong>{chosenSite.name}</strong>, {chosenSite.latitude.toFixed(4)}°,{" "}
+                    {chosenSite.longitude.toFixed(4)}°{" "}
                     <Link to={`/sites/${chosenSite.id}`} target="_blank" rel="noopener">
                       see the site
                     </Link>
@@ -256,8 +259,14 @@ export function DeterminationForm({
           <TextField field={f.strat_order!} column="strat_order" inputMode="numeric" />
           <div className="field sm:col-span-2">
             <label htmlFor={f.context!.id}>Context</label>
-            <textarea {...getTextareaProps(f.context!, { ariaDescribedBy: `${f.context!.id}-help` })} rows={2} className="input" />
-            <p id={`${f.context!.id}-help`} className="text-sm text-muted">{columnSpec("context")?.help}</p>
+            <textarea
+              {...getTextareaProps(f.context!, { ariaDescribedBy: `${f.context!.id}-help` })}
+              rows={2}
+              className="input"
+            />
+            <p id={`${f.context!.id}-help`} className="text-sm text-muted">
+              {columnSpec("context")?.help}
+            </p>
             <FieldError field={f.context!} />
           </div>
         </fieldset>
@@ -266,19 +275,35 @@ export function DeterminationForm({
         <fieldset className="card grid gap-4 sm:grid-cols-2">
           <legend className="px-1 text-lg font-semibold">Measurement</legend>
           <div className="field sm:col-span-2">
-            <span className="label" id="method-label">Method</span>
+            <span className="label" id="method-label">
+              Method
+            </span>
             <div role="radiogroup" aria-labelledby="method-label" className="flex flex-wrap gap-x-6 gap-y-2">
-              <Radio name="method" value="radiocarbon" checked={method === "radiocarbon"} onChange={chooseMethod} field={f.method}>
+              <Radio
+                name="method"
+                value="radiocarbon"
+                checked={method === "radiocarbon"}
+                onChange={chooseMethod}
+                field={f.method}
+              >
                 Radiocarbon
               </Radio>
-              <Radio name="method" value="luminescence" checked={method === "luminescence"} onChange={chooseMethod} field={f.method}>
+              <Radio
+                name="method"
+                value="luminescence"
+                checked={method === "luminescence"}
+                onChange={chooseMethod}
+                field={f.method}
+              >
                 Luminescence
               </Radio>
             </div>
             <FieldError field={f.method!} />
           </div>
           <div className="field sm:col-span-2">
-            <span className="label" id="kind-label">Constraint kind</span>
+            <span className="label" id="kind-label">
+              Constraint kind
+            </span>
             <div role="radiogroup" aria-labelledby="kind-label" className="grid gap-1">
               {(
                 [
@@ -327,7 +352,11 @@ export function DeterminationForm({
           data-testid="radiocarbon-fields"
         >
           <legend className="px-1 text-lg font-semibold">Radiocarbon</legend>
-          <div role="radiogroup" aria-label="How the lab reported the result" className="flex flex-wrap gap-x-6 gap-y-2 sm:col-span-2">
+          <div
+            role="radiogroup"
+            aria-label="How the lab reported the result"
+            className="flex flex-wrap gap-x-6 gap-y-2 sm:col-span-2"
+          >
             <Radio name="c14_input" value="age" checked={c14Input === "age"} onChange={setC14Input}>
               Conventional age (¹⁴C yr BP)
             </Radio>
@@ -350,7 +379,9 @@ export function DeterminationForm({
               <option value="yes">yes — a conventional age</option>
               <option value="no">no — normalise it with the δ13C given</option>
             </select>
-            <p id={`${f.age_normalised!.id}-help`} className="text-sm text-muted">An age is never normalised twice.</p>
+            <p id={`${f.age_normalised!.id}-help`} className="text-sm text-muted">
+              An age is never normalised twice.
+            </p>
             <FieldError field={f.age_normalised!} />
           </div>
           <div className="field sm:col-span-2">
@@ -381,7 +412,12 @@ export function DeterminationForm({
             </select>
             <FieldError field={f.curve!} />
           </div>
-          <fieldset disabled={!isMarine} hidden={!isMarine} className="grid gap-4 sm:col-span-2 sm:grid-cols-3" data-testid="delta-r-fields">
+          <fieldset
+            disabled={!isMarine}
+            hidden={!isMarine}
+            className="grid gap-4 sm:col-span-2 sm:grid-cols-3"
+            data-testid="delta-r-fields"
+          >
             <legend className="text-sm font-semibold text-muted">Local marine reservoir offset</legend>
             <TextField field={f.delta_r!} column="delta_r" inputMode="decimal" />
             <TextField field={f.delta_r_error!} column="delta_r_error" inputMode="decimal" label="ΔR ± 1σ" />
@@ -428,7 +464,12 @@ export function DeterminationForm({
           <TextField field={f.de_gy!} column="de_gy" inputMode="decimal" />
           <TextField field={f.de_error_gy!} column="de_error_gy" inputMode="decimal" label="De ± 1σ" />
           <TextField field={f.dose_rate_gy_per_ka!} column="dose_rate_gy_per_ka" inputMode="decimal" />
-          <TextField field={f.dose_rate_error_gy_per_ka!} column="dose_rate_error_gy_per_ka" inputMode="decimal" label="Dose rate ± 1σ" />
+          <TextField
+            field={f.dose_rate_error_gy_per_ka!}
+            column="dose_rate_error_gy_per_ka"
+            inputMode="decimal"
+            label="Dose rate ± 1σ"
+          />
           <fieldset className="grid gap-4 sm:col-span-2 sm:grid-cols-3">
             <legend className="text-sm font-semibold text-muted">
               Dose rate components — kept with the date, and used to compute the dose rate when it is left empty

@@ -39,9 +39,12 @@ export function recomputedDoseRate(f: LuminescenceFields): { breakdown: DoseRate
   if (f.kPercent == null || f.uPpm == null || f.thPpm == null) return null;
   const notes: string[] = [];
   const factors: ConversionFactorKey =
-    f.conversionFactors && f.conversionFactors in CONVERSION_FACTORS ? (f.conversionFactors as ConversionFactorKey) : "guerin2011";
+    f.conversionFactors && f.conversionFactors in CONVERSION_FACTORS
+      ? (f.conversionFactors as ConversionFactorKey)
+      : "guerin2011";
   const density = f.densityGPerCm3 ?? ASSUMED_DENSITY;
-  if (f.densityGPerCm3 == null) notes.push(`No bulk density recorded; ${ASSUMED_DENSITY} g/cm³ assumed for the cosmic dose rate.`);
+  if (f.densityGPerCm3 == null)
+    notes.push(`No bulk density recorded; ${ASSUMED_DENSITY} g/cm³ assumed for the cosmic dose rate.`);
   if (f.waterContentFraction == null) notes.push("No water content recorded; computed dry.");
   if (f.burialDepthM == null) notes.push("No burial depth recorded; the cosmic dose rate is left out.");
   try {
@@ -74,7 +77,10 @@ export function LuminescenceAge({ fields, scale = "bp" }: { fields: Luminescence
   if (f.deGy == null || f.doseRateGyPerKa == null || !(f.deGy > 0) || !(f.doseRateGyPerKa > 0)) {
     return <p className="text-muted">De and dose rate are needed for an age.</p>;
   }
-  const age = luminescenceAge({ value: f.deGy, error: f.deErrorGy ?? 0 }, { value: f.doseRateGyPerKa, error: f.doseRateErrorGyPerKa ?? 0 });
+  const age = luminescenceAge(
+    { value: f.deGy, error: f.deErrorGy ?? 0 },
+    { value: f.doseRateGyPerKa, error: f.doseRateErrorGyPerKa ?? 0 },
+  );
   const recomputed = recomputedDoseRate(f);
   const cal = f.measurementYear != null ? luminescenceAgeToCalBp(age.ageKa, age.errorKa, f.measurementYear) : null;
   const fmt = (calBp: number) => (scale === "bcad" ? formatCalendarYear(calBp) : `${groupThousands(Math.round(calBp))} cal BP`);
@@ -88,8 +94,7 @@ export function LuminescenceAge({ fields, scale = "bp" }: { fields: Luminescence
         </span>{" "}
         <span className="text-muted">
           = {num(f.deGy)} ± {num(f.deErrorGy ?? 0)} Gy ÷ {num(f.doseRateGyPerKa)} ± {num(f.doseRateErrorGyPerKa ?? 0)} Gy/ka
-          (relative errors in quadrature,{" "}
-          {(age.relativeError * 100).toFixed(1)} %)
+          (relative errors in quadrature, {(age.relativeError * 100).toFixed(1)} %)
         </span>
       </p>
       {cal ? (
@@ -130,7 +135,9 @@ function DoseRateTable({ result, stored }: { result: { breakdown: DoseRateBreakd
         <thead>
           <tr>
             <th scope="col">Component</th>
-            <th scope="col" className="text-right">Gy/ka</th>
+            <th scope="col" className="text-right">
+              Gy/ka
+            </th>
           </tr>
         </thead>
         <tbody>
@@ -141,7 +148,9 @@ function DoseRateTable({ result, stored }: { result: { breakdown: DoseRateBreakd
             </tr>
           ))}
           <tr>
-            <th scope="row" className="text-left">Total (recomputed)</th>
+            <th scope="row" className="text-left">
+              Total (recomputed)
+            </th>
             <td className="text-right font-semibold">{b.total.toFixed(3)}</td>
           </tr>
           <tr>
@@ -162,7 +171,17 @@ function DoseRateTable({ result, stored }: { result: { breakdown: DoseRateBreakd
   );
 }
 
-function NormalDensityPlot({ mean, sd, scale, measurementYear }: { mean: number; sd: number; scale: CalendarScale; measurementYear: number }) {
+function NormalDensityPlot({
+  mean,
+  sd,
+  scale,
+  measurementYear,
+}: {
+  mean: number;
+  sd: number;
+  scale: CalendarScale;
+  measurementYear: number;
+}) {
   const x = scaleLinear()
     .domain([mean + 4 * sd, Math.max(0, mean - 4 * sd)])
     .range([M.left, W - M.right]);

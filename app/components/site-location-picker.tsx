@@ -90,9 +90,9 @@ export function SiteLocationPicker({
         <PickerPlaceholder text="With JavaScript a map appears here to place the site; typed coordinates work as well." />
       )}
       <p id={helpId} className="text-sm text-muted">
-        Click the map to place the site, or type its coordinates; the marker follows them. Faint dots are sites already
-        in the registry (point at one for its name). On the keyboard: focus the map, move with the arrow keys, zoom with + and
-        −, and press Enter to place the site under the cross.
+        Click the map to place the site, or type its coordinates; the marker follows them. Faint dots are sites already in the
+        registry (point at one for its name). On the keyboard: focus the map, move with the arrow keys, zoom with + and −, and
+        press Enter to place the site under the cross.
       </p>
     </div>
   );

@@ -67,8 +67,8 @@ export function StratColumn({ units }: { units: ColumnUnit[] }) {
       >
         <title id="strat-title">Stratigraphic column with dates</title>
         <desc id="strat-desc">
-          Units from the uppermost down on the left; each date's median and 95.4 % range in cal BP on the right, older
-          to the right.
+          Units from the uppermost down on the left; each date's median and 95.4 % range in cal BP on the right, older to the
+          right.
         </desc>
         {/* age axis */}
         <line x1={PLOT_X0} x2={PLOT_X1} y1={AXIS_H - 6} y2={AXIS_H - 6} stroke="#5b6975" />
@@ -132,8 +132,8 @@ export function StratColumn({ units }: { units: ColumnUnit[] }) {
         ))}
       </svg>
       <figcaption className="mt-2 text-sm text-muted">
-        Dots mark medians (filled by grade, deep = secure, white = ungraded); bars the 95.4 % range. Luminescence ages
-        are placed at their measured age.
+        Dots mark medians (filled by grade, deep = secure, white = ungraded); bars the 95.4 % range. Luminescence ages are placed
+        at their measured age.
       </figcaption>
     </figure>
   );

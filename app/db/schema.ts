@@ -1,15 +1,6 @@
 import type { FeatureCollection } from "geojson";
 import { sql } from "drizzle-orm";
-import {
-  blob,
-  index,
-  integer,
-  primaryKey,
-  real,
-  sqliteTable,
-  text,
-  uniqueIndex,
-} from "drizzle-orm/sqlite-core";
+import { blob, index, integer, primaryKey, real, sqliteTable, text, uniqueIndex } from "drizzle-orm/sqlite-core";
 
 /*
  * The whole Thawline data model. Measurements are stored unrounded with their unit in the
@@ -96,8 +87,12 @@ export const users = sqliteTable("users", {
 export const userRoles = sqliteTable(
   "user_roles",
   {
-    userId: integer("user_id").notNull().references(() => users.id, { onDelete: "cascade" }),
-    role: text("role", { enum: ROLES }).notNull().references(() => roles.name),
+    userId: integer("user_id")
+      .notNull()
+      .references(() => users.id, { onDelete: "cascade" }),
+    role: text("role", { enum: ROLES })
+      .notNull()
+      .references(() => roles.name),
   },
   (t) => [primaryKey({ columns: [t.userId, t.role] })],
 );
@@ -106,7 +101,9 @@ export const sessions = sqliteTable(
   "sessions",
   {
     id: text("id").primaryKey(),
-    userId: integer("user_id").notNull().references(() => users.id, { onDelete: "cascade" }),
+    userId: integer("user_id")
+      .notNull()
+      .references(() => users.id, { onDelete: "cascade" }),
     expiresAt: integer("expires_at", { mode: "timestamp_ms" }).notNull(),
     createdAt: createdAt(),
     lastSeenAt: integer("last_seen_at", { mode: "timestamp_ms" }),
@@ -120,7 +117,9 @@ export const apiTokens = sqliteTable(
   "api_tokens",
   {
     id: integer("id").primaryKey({ autoIncrement: true }),
-    userId: integer("user_id").notNull().references(() => users.id, { onDelete: "cascade" }),
+    userId: integer("user_id")
+      .notNull()
+      .references(() => users.id, { onDelete: "cascade" }),
     label: text("label").notNull(),
     tokenHash: text("token_hash").notNull().unique(),
     prefix: text("prefix").notNull(), // first characters, shown so people can tell tokens apart
@@ -181,9 +180,13 @@ export const samples = sqliteTable(
   "samples",
   {
     id: integer("id").primaryKey({ autoIncrement: true }),
-    siteId: integer("site_id").notNull().references(() => sites.id),
+    siteId: integer("site_id")
+      .notNull()
+      .references(() => sites.id),
     fieldCode: text("field_code").notNull(),
-    material: text("material").notNull().references(() => materials.name),
+    material: text("material")
+      .notNull()
+      .references(() => materials.name),
     depthCm: real("depth_cm"),
     stratUnit: text("strat_unit"),
     /** Position of the unit in the site's column, 1 = uppermost; used by the stratigraphic-order check. */
@@ -191,18 +194,19 @@ export const samples = sqliteTable(
     context: text("context"),
     createdAt: createdAt(),
   },
-  (t) => [
-    index("samples_site_idx").on(t.siteId),
-    uniqueIndex("samples_site_code_idx").on(t.siteId, t.fieldCode),
-  ],
+  (t) => [index("samples_site_idx").on(t.siteId), uniqueIndex("samples_site_code_idx").on(t.siteId, t.fieldCode)],
 );
 
 export const determinations = sqliteTable(
   "determinations",
   {
     id: integer("id").primaryKey({ autoIncrement: true }),
-    sampleId: integer("sample_id").notNull().references(() => samples.id),
-    labId: integer("lab_id").notNull().references(() => labs.id),
+    sampleId: integer("sample_id")
+      .notNull()
+      .references(() => samples.id),
+    labId: integer("lab_id")
+      .notNull()
+      .references(() => labs.id),
     labCode: text("lab_code").notNull().unique(),
     method: text("method", { enum: METHODS }).notNull(),
     constraintKind: text("constraint_kind", { enum: CONSTRAINT_KINDS }).notNull(),
@@ -298,7 +302,9 @@ export const curves = sqliteTable(
 export const curvePoints = sqliteTable(
   "curve_points",
   {
-    curveId: integer("curve_id").notNull().references(() => curves.id, { onDelete: "cascade" }),
+    curveId: integer("curve_id")
+      .notNull()
+      .references(() => curves.id, { onDelete: "cascade" }),
     calBp: real("cal_bp").notNull(),
     c14AgeYr: real("c14_age_yr").notNull(),
     c14SigmaYr: real("c14_sigma_yr").notNull(),
@@ -354,9 +360,16 @@ export const reviews = sqliteTable(
     determinationId: integer("determination_id")
       .notNull()
       .references(() => determinations.id, { onDelete: "cascade" }),
-    reviewerId: integer("reviewer_id").notNull().references(() => users.id),
-    grade: integer("grade").notNull().references(() => grades.value),
-    flags: text("flags", { mode: "json" }).$type<Flag[]>().notNull().default(sql`'[]'`),
+    reviewerId: integer("reviewer_id")
+      .notNull()
+      .references(() => users.id),
+    grade: integer("grade")
+      .notNull()
+      .references(() => grades.value),
+    flags: text("flags", { mode: "json" })
+      .$type<Flag[]>()
+      .notNull()
+      .default(sql`'[]'`),
     comment: text("comment"),
     createdAt: createdAt(),
   },
@@ -371,7 +384,9 @@ export const reviewMessages = sqliteTable(
     determinationId: integer("determination_id")
       .notNull()
       .references(() => determinations.id, { onDelete: "cascade" }),
-    authorId: integer("author_id").notNull().references(() => users.id),
+    authorId: integer("author_id")
+      .notNull()
+      .references(() => users.id),
     body: text("body").notNull(),
     createdAt: createdAt(),
   },
@@ -405,7 +420,9 @@ export const uploadBatches = sqliteTable(
     id: integer("id").primaryKey({ autoIncrement: true }),
     /** Opaque public id used in URLs and the API. */
     publicId: text("public_id").notNull().unique(),
-    userId: integer("user_id").notNull().references(() => users.id),
+    userId: integer("user_id")
+      .notNull()
+      .references(() => users.id),
     labId: integer("lab_id").references(() => labs.id),
     fileName: text("file_name").notNull(),
     fileKind: text("file_kind", { enum: ["csv", "xlsx", "json"] }).notNull(),
@@ -434,7 +451,9 @@ export const constraintSets = sqliteTable(
   "constraint_sets",
   {
     id: integer("id").primaryKey({ autoIncrement: true }),
-    userId: integer("user_id").notNull().references(() => users.id, { onDelete: "cascade" }),
+    userId: integer("user_id")
+      .notNull()
+      .references(() => users.id, { onDelete: "cascade" }),
     name: text("name").notNull(),
     /** The filter as URL search parameters (the same names as the constraints API). */
     filter: text("filter").notNull(),
@@ -463,7 +482,9 @@ export const releases = sqliteTable(
     previousReleaseId: integer("previous_release_id"),
     /** The saved set definition it was published from, if any (the release keeps its own copy of the filter). */
     constraintSetId: integer("constraint_set_id").references(() => constraintSets.id, { onDelete: "set null" }),
-    createdBy: integer("created_by").notNull().references(() => users.id),
+    createdBy: integer("created_by")
+      .notNull()
+      .references(() => users.id),
     publishedAt: integer("published_at", { mode: "timestamp_ms" }).notNull(),
   },
   (t) => [uniqueIndex("releases_name_version_idx").on(t.name, t.version)],
@@ -472,8 +493,12 @@ export const releases = sqliteTable(
 export const releaseItems = sqliteTable(
   "release_items",
   {
-    releaseId: integer("release_id").notNull().references(() => releases.id),
-    determinationId: integer("determination_id").notNull().references(() => determinations.id),
+    releaseId: integer("release_id")
+      .notNull()
+      .references(() => releases.id),
+    determinationId: integer("determination_id")
+      .notNull()
+      .references(() => determinations.id),
     /** The row exactly as released (measurement, calibration summary, grade, flags); never updated. */
     frozen: text("frozen", { mode: "json" }).$type<Record<string, unknown>>().notNull(),
   },
@@ -497,7 +522,9 @@ export const modelRuns = sqliteTable(
   "model_runs",
   {
     id: integer("id").primaryKey({ autoIncrement: true }),
-    userId: integer("user_id").notNull().references(() => users.id),
+    userId: integer("user_id")
+      .notNull()
+      .references(() => users.id),
     releaseId: integer("release_id").references(() => releases.id),
     name: text("name").notNull(),
     ensemble: text("ensemble"),
@@ -516,8 +543,12 @@ export const modelRuns = sqliteTable(
 export const modelRunScores = sqliteTable(
   "model_run_scores",
   {
-    runId: integer("run_id").notNull().references(() => modelRuns.id, { onDelete: "cascade" }),
-    determinationId: integer("determination_id").notNull().references(() => determinations.id),
+    runId: integer("run_id")
+      .notNull()
+      .references(() => modelRuns.id, { onDelete: "cascade" }),
+    determinationId: integer("determination_id")
+      .notNull()
+      .references(() => determinations.id),
     score: real("score").notNull(),
     logLikelihood: real("log_likelihood").notNull(),
   },
@@ -529,7 +560,9 @@ export const modelRunScores = sqliteTable(
 export const jobs = sqliteTable("jobs", {
   id: integer("id").primaryKey({ autoIncrement: true }),
   kind: text("kind").notNull(), // e.g. recalibrate, score
-  status: text("status", { enum: ["queued", "running", "done", "failed"] }).notNull().default("queued"),
+  status: text("status", { enum: ["queued", "running", "done", "failed"] })
+    .notNull()
+    .default("queued"),
   progress: integer("progress").notNull().default(0),
   total: integer("total").notNull().default(0),
   message: text("message"),

@@ -7,12 +7,7 @@ export type Message = { subject: string; text: string; html: string };
 const SIGN_OFF = "Thawline — a registry of ice-free dates";
 
 function escapeHtml(value: string): string {
-  return value
-    .replace(/&/g, "&amp;")
-    .replace(/</g, "&lt;")
-    .replace(/>/g, "&gt;")
-    .replace(/"/g, "&quot;")
-    .replace(/'/g, "&#39;");
+  return value.replace(/&/g, "&amp;").replace(/</g, "&lt;").replace(/>/g, "&gt;").replace(/"/g, "&quot;").replace(/'/g, "&#39;");
 }
 
 function layout(title: string, body: string): string {
@@ -100,7 +95,12 @@ ${
 
 /** The code and links in a message's text version (for the dev outbox page and tests). */
 export function readMessageText(text: string): { code: string | null; links: string[] } {
-  const code = text.split("\n").find((l) => l.startsWith(CODE_LINE))?.slice(CODE_LINE.length).trim() ?? null;
+  const code =
+    text
+      .split("\n")
+      .find((l) => l.startsWith(CODE_LINE))
+      ?.slice(CODE_LINE.length)
+      .trim() ?? null;
   const links = text.match(/https?:\/\/[^\s<>"]+/g) ?? [];
   return { code: code || null, links };
 }

@@ -14,7 +14,8 @@ export function uploadReceiptMessage(input: {
 }): Message {
   const { fileName, committed, skipped, submissionsUrl, uploadUrl } = input;
   const dets = `${committed} determination${committed === 1 ? "" : "s"}`;
-  const skippedLine = skipped > 0 ? `${skipped} row${skipped === 1 ? " was" : "s were"} left out because of errors.` : "Every row was committed.";
+  const skippedLine =
+    skipped > 0 ? `${skipped} row${skipped === 1 ? " was" : "s were"} left out because of errors.` : "Every row was committed.";
   const text = [
     `Your upload “${fileName}” is in the registry: ${dets} submitted for review.`,
     skippedLine,

@@ -21,23 +21,28 @@ const finite = (what: string) =>
     .number({ error: (iss) => (iss.input === undefined ? `${what} is required.` : `${what} must be a number.`) })
     .refine(Number.isFinite, `${what} must be a finite number.`);
 
-export const calibrationItemSchema = z.object({
-  id: z
-    .union([z.string().max(200, "id must be at most 200 characters."), z.number()], {
-      error: "id must be a string or a number.",
-    })
-    .optional(),
-  c14_age: finite("c14_age"),
-  c14_error: finite("c14_error").refine((v) => v > 0, "c14_error must be positive."),
-  curve: z
-    .string({ error: "curve must be a curve name such as intcal20 or marine20." })
-    .trim()
-    .min(1, "curve must be a curve name such as intcal20 or marine20.")
-    .max(64)
-    .default("intcal20"),
-  delta_r: finite("delta_r").optional(),
-  delta_r_error: finite("delta_r_error").refine((v) => v >= 0, "delta_r_error must be zero or more.").optional(),
-}, { error: "Each determination must be an object such as {\"id\":\"a1\",\"c14_age\":10250,\"c14_error\":45}." });
+export const calibrationItemSchema = z.object(
+  {
+    id: z
+      .union([z.string().max(200, "id must be at most 200 characters."), z.number()], {
+        error: "id must be a string or a number.",
+      })
+      .optional(),
+    c14_age: finite("c14_age"),
+    c14_error: finite("c14_error").refine((v) => v > 0, "c14_error must be positive."),
+    curve: z
+      .string({ error: "curve must be a curve name such as intcal20 or marine20." })
+      .trim()
+      .min(1, "curve must be a curve name such as intcal20 or marine20.")
+      .max(64)
+      .default("intcal20"),
+    delta_r: finite("delta_r").optional(),
+    delta_r_error: finite("delta_r_error")
+      .refine((v) => v >= 0, "delta_r_error must be zero or more.")
+      .optional(),
+  },
+  { error: 'Each determination must be an object such as {"id":"a1","c14_age":10250,"c14_error":45}.' },
+);
 
 export type CalibrationRequest = { items: unknown[]; density: boolean };
 
@@ -106,7 +111,8 @@ export function calibrateItems(db: Db, items: unknown[], options: { density?: bo
     const item = parsed.data;
     const name = item.curve.toLowerCase();
     const curve = curveFor(name);
-    if (!curve) return { id, error: `Unknown curve "${item.curve}". Use one of the curves listed on /curves, e.g. intcal20 or marine20.` };
+    if (!curve)
+      return { id, error: `Unknown curve "${item.curve}". Use one of the curves listed on /curves, e.g. intcal20 or marine20.` };
     if (curve.kind !== "marine" && ((item.delta_r ?? 0) !== 0 || (item.delta_r_error ?? 0) !== 0)) {
       return { id, error: `delta_r applies to marine curves only; ${curve.displayName} is ${curve.kind}.` };
     }

@@ -3,12 +3,7 @@ import type { Db } from "#app/db/client.server.ts";
 import { calibrations, curves, determinations } from "#app/db/schema.ts";
 import { calendarOutcome, decodeDensity, interpretMeasurement, radiocarbonAgeFields } from "#app/models/calibrations.server.ts";
 import { curveWindow, type CurveRow } from "#app/models/curves.server.ts";
-import {
-  plotWindow,
-  type PlotCalibration,
-  type PlotCurve,
-  type PlotMeasurement,
-} from "#app/components/calibration-plot.tsx";
+import { plotWindow, type PlotCalibration, type PlotCurve, type PlotMeasurement } from "#app/components/calibration-plot.tsx";
 import type { CalendarDensity } from "#app/science/density.ts";
 import type { CalibrationItem } from "#app/utils/calibrate-input.ts";
 

@@ -226,9 +226,7 @@ export function calibrateAll(
   options: { onProgress?: (done: number, total: number) => void; where?: { curveName?: string } } = {},
 ): { calibrated: number; failed: number } {
   const query = db.select({ id: determinations.id }).from(determinations);
-  const rows = options.where?.curveName
-    ? query.where(eq(determinations.curveName, options.where.curveName)).all()
-    : query.all();
+  const rows = options.where?.curveName ? query.where(eq(determinations.curveName, options.where.curveName)).all() : query.all();
   const ids = rows.map((r) => r.id);
   let calibrated = 0;
   let failed = 0;

@@ -19,7 +19,12 @@ function summary(c: CurveRow) {
  * Validates and stores a curve file, makes it the active version of its name and audits it, all
  * in one transaction: a refused file leaves the registry exactly as it was.
  */
-export function addCurveVersion(db: Db, meta: CurveMeta, csvText: string, actor: Actor): { curve: CurveRow; replaced: CurveRow[] } {
+export function addCurveVersion(
+  db: Db,
+  meta: CurveMeta,
+  csvText: string,
+  actor: Actor,
+): { curve: CurveRow; replaced: CurveRow[] } {
   return db.transaction((tx) => {
     const result = importCurve(db, meta, csvText, actor.id);
     if (!result.created) {
@@ -53,9 +58,16 @@ export function activateCurveVersion(db: Db, curveId: number, actor: Actor): { c
   return db.transaction((tx) => {
     const curve = tx.select().from(curves).where(eq(curves.id, curveId)).get();
     if (!curve) return null;
-    const before = tx.select().from(curves).where(and(eq(curves.name, curve.name), eq(curves.active, true))).all();
+    const before = tx
+      .select()
+      .from(curves)
+      .where(and(eq(curves.name, curve.name), eq(curves.active, true)))
+      .all();
     if (curve.active && before.length === 1) return { curve, changed: false };
-    tx.update(curves).set({ active: false }).where(and(eq(curves.name, curve.name), ne(curves.id, curve.id))).run();
+    tx.update(curves)
+      .set({ active: false })
+      .where(and(eq(curves.name, curve.name), ne(curves.id, curve.id)))
+      .run();
     tx.update(curves).set({ active: true }).where(eq(curves.id, curve.id)).run();
     const after = tx.select().from(curves).where(eq(curves.id, curve.id)).get()!;
     audit(tx, {

@@ -35,10 +35,7 @@ export type AuditEntry = {
 /** Fields whose change is bookkeeping rather than content; left out of the diff. */
 const QUIET_FIELDS = new Set(["version", "updatedAt", "updated_at"]);
 
-export function diffRecords(
-  before: Record<string, unknown> | null,
-  after: Record<string, unknown> | null,
-): FieldChange[] {
+export function diffRecords(before: Record<string, unknown> | null, after: Record<string, unknown> | null): FieldChange[] {
   const keys = new Set([...Object.keys(before ?? {}), ...Object.keys(after ?? {})]);
   const changes: FieldChange[] = [];
   for (const field of keys) {
@@ -92,7 +89,12 @@ export function determinationDetail(db: Db, id: number) {
       .get() ?? null;
 
   const earlierCalibrations = db
-    .select({ id: calibrations.id, curveLabel: calibrations.curveLabel, medianCalBp: calibrations.medianCalBp, createdAt: calibrations.createdAt })
+    .select({
+      id: calibrations.id,
+      curveLabel: calibrations.curveLabel,
+      medianCalBp: calibrations.medianCalBp,
+      createdAt: calibrations.createdAt,
+    })
     .from(calibrations)
     .where(and(eq(calibrations.determinationId, id), eq(calibrations.isCurrent, false)))
     .orderBy(desc(calibrations.id))
@@ -151,9 +153,7 @@ export function determinationDetail(db: Db, id: number) {
       .orderBy(desc(reviews.createdAt), desc(reviews.id))
       .get() ?? null;
 
-  const reviewCount = db.$client
-    .prepare("select count(*) as n from reviews where determination_id = ?")
-    .get(id) as { n: number };
+  const reviewCount = db.$client.prepare("select count(*) as n from reviews where determination_id = ?").get(id) as { n: number };
 
   const checks = db
     .select({

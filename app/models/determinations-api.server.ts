@@ -102,7 +102,10 @@ function pageIds(db: Db, filters: ExploreFilters, perPage: number): { ids: numbe
 }
 
 /** A row as the query returns it: the API's own fields as they are, plus the ones toApi reshapes. */
-type Joined = Omit<ApiDetermination, "lab" | "site" | "age_normalised" | "greater_than" | "created_at" | "updated_at" | "calibration"> & {
+type Joined = Omit<
+  ApiDetermination,
+  "lab" | "site" | "age_normalised" | "greater_than" | "created_at" | "updated_at" | "calibration"
+> & {
   lab_id: number;
   lab_name: string;
   site_id: number;
@@ -153,7 +156,10 @@ export function apiDeterminations(db: Db, query: ApiQuery): ApiPage {
     page: query.filters.page,
     per_page: query.perPage,
     total,
-    determinations: ids.map((id) => byId.get(id)).filter((r): r is Joined => !!r).map(toApi),
+    determinations: ids
+      .map((id) => byId.get(id))
+      .filter((r): r is Joined => !!r)
+      .map(toApi),
   };
 }
 

@@ -19,8 +19,7 @@ export { EXPLORE_PAGE_SIZE };
  */
 
 const blankToUndefined = (v: unknown) => (typeof v === "string" && v.trim() === "" ? undefined : v);
-const text = (max: number) =>
-  z.preprocess(blankToUndefined, z.string().trim().max(max).optional());
+const text = (max: number) => z.preprocess(blankToUndefined, z.string().trim().max(max).optional());
 const years = z.preprocess(blankToUndefined, z.coerce.number().min(-100).max(10_000_000).optional());
 
 export const exploreFiltersSchema = z.object({
@@ -82,20 +81,20 @@ export type ExploreRow = {
   method: (typeof METHODS)[number];
   signal: string | null;
 } & ListedMeasurement & {
-  /** ¹⁴C years BP, or luminescence years before measurement; null when not measured. */
-  measuredAgeYr: number | null;
-  medianCalBp: number | null;
-  hpd95FromBp: number | null;
-  hpd95ToBp: number | null;
-  /** How many disjoint ranges make up the 95.4 % HPD (the span above covers them all). */
-  hpd95Parts: number;
-  curveLabel: string | null;
-  constraintKind: (typeof CONSTRAINT_KINDS)[number];
-  grade: number | null;
-  status: (typeof STATUSES)[number];
-  labName: string;
-  createdAt: number;
-};
+    /** ¹⁴C years BP, or luminescence years before measurement; null when not measured. */
+    measuredAgeYr: number | null;
+    medianCalBp: number | null;
+    hpd95FromBp: number | null;
+    hpd95ToBp: number | null;
+    /** How many disjoint ranges make up the 95.4 % HPD (the span above covers them all). */
+    hpd95Parts: number;
+    curveLabel: string | null;
+    constraintKind: (typeof CONSTRAINT_KINDS)[number];
+    grade: number | null;
+    status: (typeof STATUSES)[number];
+    labName: string;
+    createdAt: number;
+  };
 
 export type ExploreResult = {
   rows: ExploreRow[];

@@ -157,5 +157,7 @@ export function recentJobs(db: Db, kind: string, limit = 5): JobView[] {
     .orderBy(desc(jobs.id))
     .limit(limit)
     .all()
-    .map((row) => ((row.status === "queued" || row.status === "running") && !running.has(row.id) ? getJob(db, row.id)! : view(row)));
+    .map((row) =>
+      (row.status === "queued" || row.status === "running") && !running.has(row.id) ? getJob(db, row.id)! : view(row),
+    );
 }

@@ -32,9 +32,26 @@ export function mapSites(db: Db): MapSite[] {
        left join calibrations c on c.determination_id = d.id and c.is_current = 1
        where d.status != 'withdrawn'`,
     )
-    .all() as { siteId: number; name: string; lat: number; lon: number; grade: number | null; age: number | null; weak: number }[];
+    .all() as {
+    siteId: number;
+    name: string;
+    lat: number;
+    lon: number;
+    grade: number | null;
+    age: number | null;
+    weak: number;
+  }[];
 
-  type Acc = { id: number; name: string; lat: number; lon: number; n: number; grade: number | null; good: number[]; weak: number[] };
+  type Acc = {
+    id: number;
+    name: string;
+    lat: number;
+    lon: number;
+    n: number;
+    grade: number | null;
+    good: number[];
+    weak: number[];
+  };
   const bySite = new Map<number, Acc>();
   for (const r of rows) {
     let acc = bySite.get(r.siteId);
@@ -80,9 +97,7 @@ export function demoIsochrones(db: Db): Isochrones | null {
   } catch {
     return null;
   }
-  const features = (collection.features ?? []).filter(
-    (f) => f.geometry && Number.isFinite(Number(f.properties?.age_cal_bp)),
-  );
+  const features = (collection.features ?? []).filter((f) => f.geometry && Number.isFinite(Number(f.properties?.age_cal_bp)));
   const ages = [...new Set(features.map((f) => Number(f.properties!.age_cal_bp)))].sort((a, b) => a - b);
   return { id: row.id, name: row.name, features, ages };
 }

@@ -50,7 +50,14 @@ export function revokeSession(db: DbOrTx, userId: number, handle: string, curren
       .find((s) => sessionHandle(s.id) === handle);
     if (!target) return null;
     tx.delete(sessions).where(eq(sessions.id, target.id)).run();
-    audit(tx, { actorId: actor.actorId, action: "session.revoke", entity: "user", entityId: userId, after: { session: handle }, ip: actor.ip });
+    audit(tx, {
+      actorId: actor.actorId,
+      action: "session.revoke",
+      entity: "user",
+      entityId: userId,
+      after: { session: handle },
+      ip: actor.ip,
+    });
     return { wasCurrent: target.id === currentSessionId };
   });
 }
@@ -58,9 +65,19 @@ export function revokeSession(db: DbOrTx, userId: number, handle: string, curren
 /** Ends every session of the person except this one; returns how many ended. */
 export function revokeOtherSessions(db: DbOrTx, userId: number, currentSessionId: string, actor: Actor): number {
   return db.transaction((tx) => {
-    const ended = tx.delete(sessions).where(and(eq(sessions.userId, userId), ne(sessions.id, currentSessionId))).run().changes;
+    const ended = tx
+      .delete(sessions)
+      .where(and(eq(sessions.userId, userId), ne(sessions.id, currentSessionId)))
+      .run().changes;
     if (ended > 0) {
-      audit(tx, { actorId: actor.actorId, action: "session.revoke_others", entity: "user", entityId: userId, after: { ended }, ip: actor.ip });
+      audit(tx, {
+        actorId: actor.actorId,
+        action: "session.revoke_others",
+        entity: "user",
+        entityId: userId,
+        after: { ended },
+        ip: actor.ip,
+      });
     }
     return ended;
   });

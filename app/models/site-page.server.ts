@@ -22,11 +22,11 @@ export type SiteDeterminationRow = {
   status: string | null;
   grade: number | null;
 } & ListedMeasurement & {
-  measuredAgeYr: number | null;
-  medianCalBp: number | null;
-  hpd95FromBp: number | null;
-  hpd95ToBp: number | null;
-};
+    measuredAgeYr: number | null;
+    medianCalBp: number | null;
+    hpd95FromBp: number | null;
+    hpd95ToBp: number | null;
+  };
 
 export function siteDetail(db: Db, id: number) {
   const site = db.$client

@@ -5,16 +5,7 @@
 
 import { and, eq, sql } from "drizzle-orm";
 import type { Db } from "#app/db/client.server.ts";
-import {
-  determinations,
-  labs,
-  materials,
-  publications,
-  samples,
-  sites,
-  type Method,
-  type Status,
-} from "#app/db/schema.ts";
+import { determinations, labs, materials, publications, samples, sites, type Method, type Status } from "#app/db/schema.ts";
 import { audit } from "#app/models/audit.server.ts";
 import { calendarOutcome, calibrateDeterminations, interpretMeasurement } from "#app/models/calibrations.server.ts";
 import { activeCurve, listCurves, type CurveRow } from "#app/models/curves.server.ts";
@@ -31,13 +22,7 @@ import {
   type DeterminationRow as StoredDetermination,
 } from "#app/models/determinations.server.ts";
 import { DEFAULT_CONVERSION_FACTORS, luminescenceAge } from "#app/science/luminescence.ts";
-import {
-  checkRow,
-  isBlankCell,
-  type DeterminationRow,
-  type RowContext,
-  type RowIssue,
-} from "#app/utils/determination-input.ts";
+import { checkRow, isBlankCell, type DeterminationRow, type RowContext, type RowIssue } from "#app/utils/determination-input.ts";
 import {
   clientRowContext,
   makeSubmissionSchema,
@@ -91,7 +76,11 @@ export function formOptions(db: Db): FormOptions {
 }
 
 /** The server's validation context: the browser's, plus duplicate lab codes and the calendar-age check. */
-export function serverRowContext(db: Db, options: Pick<FormOptions, "materials" | "curves">, excludeDeterminationId?: number): RowContext {
+export function serverRowContext(
+  db: Db,
+  options: Pick<FormOptions, "materials" | "curves">,
+  excludeDeterminationId?: number,
+): RowContext {
   const lookup = db.$client.prepare("select id from determinations where lower(lab_code) = lower(?) and id != ?").pluck();
   return {
     ...clientRowContext(options),
@@ -124,7 +113,11 @@ type SitePlan = { site: SiteRef } | { create: true } | { issue: RowIssue };
 /** The chosen site; or, for a new one, a site of the same name within about 100 m (as uploads do). */
 function planSite(db: Db, value: SubmissionValue): SitePlan {
   if (value.siteChoice === "existing") {
-    const site = db.select({ id: sites.id, name: sites.name }).from(sites).where(eq(sites.id, value.siteId ?? -1)).get();
+    const site = db
+      .select({ id: sites.id, name: sites.name })
+      .from(sites)
+      .where(eq(sites.id, value.siteId ?? -1))
+      .get();
     return site ? { site } : { issue: { column: "site_id", message: "That site is no longer in the registry; choose another." } };
   }
   const { site_name, latitude, longitude } = value.row;
@@ -161,10 +154,17 @@ function planSample(db: Db, row: DeterminationRow, siteId: number | null, editin
   const target =
     siteId == null
       ? undefined
-      : db.select().from(samples).where(and(eq(samples.siteId, siteId), eq(samples.fieldCode, row.sample_code))).get();
+      : db
+          .select()
+          .from(samples)
+          .where(and(eq(samples.siteId, siteId), eq(samples.fieldCode, row.sample_code)))
+          .get();
   const current = editing ? db.select().from(samples).where(eq(samples.id, editing.sampleId)).get() : undefined;
   const othersOnCurrent = current
-    ? (db.$client.prepare("select count(*) from determinations where sample_id = ? and id != ?").pluck().get(current.id, editing!.id) as number)
+    ? (db.$client
+        .prepare("select count(*) from determinations where sample_id = ? and id != ?")
+        .pluck()
+        .get(current.id, editing!.id) as number)
     : 0;
   const wanted = sampleValues(row);
 
@@ -209,7 +209,10 @@ function labByName(db: Db, name: string) {
 export function submissionChecks(db: Db, value: SubmissionValue, editing: StoredDetermination | null): RowIssue[] {
   const issues: RowIssue[] = [];
   if (!labByName(db, value.row.lab_name ?? "")) {
-    issues.push({ column: "lab_name", message: `There is no laboratory named "${value.row.lab_name}" in the registry; choose one from the list.` });
+    issues.push({
+      column: "lab_name",
+      message: `There is no laboratory named "${value.row.lab_name}" in the registry; choose one from the list.`,
+    });
   }
   const site = planSite(db, value);
   if ("issue" in site) issues.push(site.issue);
@@ -219,15 +222,24 @@ export function submissionChecks(db: Db, value: SubmissionValue, editing: Stored
 }
 
 /** The form's schema as the server runs it (duplicates, curve range, labs and samples checked). */
-export function serverSubmissionSchema(db: Db, options: Pick<FormOptions, "materials" | "curves">, editing: StoredDetermination | null = null) {
+export function serverSubmissionSchema(
+  db: Db,
+  options: Pick<FormOptions, "materials" | "curves">,
+  editing: StoredDetermination | null = null,
+) {
   return makeSubmissionSchema(serverRowContext(db, options, editing?.id), (value) => submissionChecks(db, value, editing));
 }
 
 function publicationFor(db: Db, doi: string | undefined): number | null {
   if (!doi) return null;
-  const found = db.$client.prepare("select id from publications where lower(doi) = lower(?)").pluck().get(doi) as number | undefined;
+  const found = db.$client.prepare("select id from publications where lower(doi) = lower(?)").pluck().get(doi) as
+    number | undefined;
   if (found != null) return found;
-  return db.insert(publications).values({ citation: `DOI ${doi}`, doi }).returning({ id: publications.id }).get().id;
+  return db
+    .insert(publications)
+    .values({ citation: `DOI ${doi}`, doi })
+    .returning({ id: publications.id })
+    .get().id;
 }
 
 /** Site, sample, lab and publication for a row, created where needed; call inside the write's transaction. */
@@ -252,10 +264,17 @@ function placeRow(db: Db, value: SubmissionValue, editing: StoredDetermination |
     sampleId = samplePlan.reuse.id;
     joinedSample = samplePlan.reuse.id !== editing?.sampleId;
   } else if ("updateInPlace" in samplePlan) {
-    db.update(samples).set({ siteId, ...sampleValues(row) }).where(eq(samples.id, samplePlan.updateInPlace.id)).run();
+    db.update(samples)
+      .set({ siteId, ...sampleValues(row) })
+      .where(eq(samples.id, samplePlan.updateInPlace.id))
+      .run();
     sampleId = samplePlan.updateInPlace.id;
   } else {
-    sampleId = db.insert(samples).values({ siteId, ...sampleValues(row) }).returning({ id: samples.id }).get().id;
+    sampleId = db
+      .insert(samples)
+      .values({ siteId, ...sampleValues(row) })
+      .returning({ id: samples.id })
+      .get().id;
   }
   return { labId: lab.id, siteId, createdSite, sampleId, joinedSample, publicationId: publicationFor(db, row.doi) };
 }
@@ -357,7 +376,8 @@ export function updateSubmission(db: Db, id: number, value: SubmissionValue, act
     }
     const placeAfter = placeSnapshot(db, placed.sampleId);
     const fieldChanged = Object.entries(next).some(
-      ([k, v]) => !UNTRACKED.has(k) && JSON.stringify((before as Record<string, unknown>)[k] ?? null) !== JSON.stringify(v ?? null),
+      ([k, v]) =>
+        !UNTRACKED.has(k) && JSON.stringify((before as Record<string, unknown>)[k] ?? null) !== JSON.stringify(v ?? null),
     );
     if (!fieldChanged && JSON.stringify(placeBefore) === JSON.stringify(placeAfter)) {
       return { changed: false, version: before.version };
@@ -502,7 +522,11 @@ export function formDefaults(db: Db, det: StoredDetermination): Record<string, s
  * same calendarOutcome the registry stores. Only the measurement's own fields matter here, so
  * the rest of the row is filled with placeholders.
  */
-export function previewCalendarAge(db: Db, raw: Record<string, unknown>, options: Pick<FormOptions, "materials" | "curves">): PreviewResult {
+export function previewCalendarAge(
+  db: Db,
+  raw: Record<string, unknown>,
+  options: Pick<FormOptions, "materials" | "curves">,
+): PreviewResult {
   const method = typeof raw.method === "string" ? raw.method.trim().toLowerCase() : "";
   if (method !== "radiocarbon" && method !== "luminescence") {
     return { state: "empty", message: "Choose the method to see the calendar age." };
@@ -551,7 +575,13 @@ export function previewCalendarAge(db: Db, raw: Record<string, unknown>, options
   if (row.method === "luminescence") {
     const rate = rowDoseRate(row)!;
     const age = luminescenceAge({ value: row.de_gy!, error: row.de_error_gy ?? 0 }, { value: rate.value, error: rate.error });
-    result.luminescence = { ageKa: age.ageKa, errorKa: age.errorKa, doseRate: rate.value, doseRateError: rate.error, computed: rate.computed };
+    result.luminescence = {
+      ageKa: age.ageKa,
+      errorKa: age.errorKa,
+      doseRate: rate.value,
+      doseRateError: rate.error,
+      computed: rate.computed,
+    };
   }
   return result;
 }
@@ -575,12 +605,12 @@ export type SubmissionListRow = {
   fieldCode: string;
   material: string;
 } & ListedMeasurement & {
-  medianCalBp: number | null;
-  calibrationError: string | null;
-  reviewed: boolean;
-  createdAt: number;
-  updatedAt: number;
-};
+    medianCalBp: number | null;
+    calibrationError: string | null;
+    reviewed: boolean;
+    createdAt: number;
+    updatedAt: number;
+  };
 
 function escapeLike(s: string): string {
   return s.replace(/[\\%_]/g, (m) => `\\${m}`);
@@ -608,7 +638,10 @@ export function listSubmissions(db: Db, userId: number, filters: SubmissionFilte
     join sites t on t.id = s.site_id
     left join calibrations c on c.determination_id = d.id and c.is_current = 1
     where ${where.join(" and ")}`;
-  const total = db.$client.prepare(`select count(*) ${from}`).pluck().get(...params) as number;
+  const total = db.$client
+    .prepare(`select count(*) ${from}`)
+    .pluck()
+    .get(...params) as number;
   const pageCount = Math.max(1, Math.ceil(total / SUBMISSIONS_PAGE_SIZE));
   const page = Math.min(Math.max(1, filters.page), pageCount);
   const rows = db.$client
@@ -621,7 +654,10 @@ export function listSubmissions(db: Db, userId: number, filters: SubmissionFilte
          d.created_at as createdAt, d.updated_at as updatedAt
        ${from} order by d.created_at desc, d.id desc limit ? offset ?`,
     )
-    .all(...params, SUBMISSIONS_PAGE_SIZE, (page - 1) * SUBMISSIONS_PAGE_SIZE) as (Omit<SubmissionListRow, "isLimit" | "reviewed"> & {
+    .all(...params, SUBMISSIONS_PAGE_SIZE, (page - 1) * SUBMISSIONS_PAGE_SIZE) as (Omit<
+    SubmissionListRow,
+    "isLimit" | "reviewed"
+  > & {
     isLimit: number;
     reviewed: number;
   })[];

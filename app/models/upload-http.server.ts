@@ -14,16 +14,16 @@ export async function fileFromRequest(request: Request): Promise<{ name: string;
   if (declared > env().UPLOAD_MAX_BYTES + ENVELOPE_BYTES) checkFileSize(declared - ENVELOPE_BYTES);
   const type = request.headers.get("Content-Type") ?? "";
   if (!type.toLowerCase().startsWith("multipart/form-data")) {
-    throw new UploadError("Send the file as multipart/form-data in a field named \"file\".", 415);
+    throw new UploadError('Send the file as multipart/form-data in a field named "file".', 415);
   }
   let form: FormData;
   try {
     form = await request.formData();
   } catch {
-    throw new UploadError("The upload could not be read; send the file as multipart/form-data in a field named \"file\".");
+    throw new UploadError('The upload could not be read; send the file as multipart/form-data in a field named "file".');
   }
   const file = form.get("file");
-  if (!file || typeof file === "string") throw new UploadError("Choose a file to upload (field \"file\").");
+  if (!file || typeof file === "string") throw new UploadError('Choose a file to upload (field "file").');
   checkFileSize(file.size);
   if (file.size === 0) throw new UploadError("The file is empty.");
   return { name: file.name || "upload", bytes: Buffer.from(await file.arrayBuffer()) };

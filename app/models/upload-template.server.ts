@@ -4,14 +4,25 @@ import ExcelJS from "exceljs";
 import { COLUMNS, EXAMPLE_ROWS } from "#app/utils/determination-input.ts";
 import { toCsv } from "#app/utils/csv.ts";
 
-const REQUIRED = new Set(["site_name", "latitude", "longitude", "sample_code", "material", "method", "lab_code", "constraint_kind"]);
+const REQUIRED = new Set([
+  "site_name",
+  "latitude",
+  "longitude",
+  "sample_code",
+  "material",
+  "method",
+  "lab_code",
+  "constraint_kind",
+]);
 
 function requirement(name: string): string {
   if (REQUIRED.has(name)) return "always";
   if (["c14_age", "c14_error", "f14c", "f14c_error"].includes(name)) return "radiocarbon: age ± error or F14C ± error";
   if (["de_gy", "de_error_gy", "measurement_year"].includes(name)) return "luminescence";
-  if (["dose_rate_gy_per_ka", "dose_rate_error_gy_per_ka"].includes(name)) return "luminescence: dose rate ± error, or K, U, Th, water, burial depth and density";
-  if (["k_percent", "u_ppm", "th_ppm", "water_content", "burial_depth_m", "density_g_cm3"].includes(name)) return "luminescence without a dose rate";
+  if (["dose_rate_gy_per_ka", "dose_rate_error_gy_per_ka"].includes(name))
+    return "luminescence: dose rate ± error, or K, U, Th, water, burial depth and density";
+  if (["k_percent", "u_ppm", "th_ppm", "water_content", "burial_depth_m", "density_g_cm3"].includes(name))
+    return "luminescence without a dose rate";
   if (name === "curve") return "radiocarbon (empty: intcal20; marine material: marine20)";
   return "optional";
 }

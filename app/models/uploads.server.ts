@@ -123,17 +123,24 @@ export async function readUpload(file: Buffer, fileName: string): Promise<Parsed
   if (known) throw new UploadError(`This is not a spreadsheet: it looks like ${known.what}. Upload a CSV or .xlsx file.`);
   const isZip = startsWith(file, [0x50, 0x4b, 0x03, 0x04]);
   if (isZip) return readXlsx(file);
-  if (/\.xlsx$/i.test(fileName)) throw new UploadError("This file is named .xlsx but is not an Excel workbook. Save it again as .xlsx or CSV.");
+  if (/\.xlsx$/i.test(fileName))
+    throw new UploadError("This file is named .xlsx but is not an Excel workbook. Save it again as .xlsx or CSV.");
   return readCsv(file);
 }
 
 function decodeText(file: Buffer): { text: string; notices: string[] } {
   if (startsWith(file, [0xef, 0xbb, 0xbf])) return { text: file.subarray(3).toString("utf8"), notices: [] };
   if (startsWith(file, [0xff, 0xfe])) {
-    return { text: new TextDecoder("utf-16le").decode(file.subarray(2)), notices: ["The file is in UTF-16; it was read as such."] };
+    return {
+      text: new TextDecoder("utf-16le").decode(file.subarray(2)),
+      notices: ["The file is in UTF-16; it was read as such."],
+    };
   }
   if (startsWith(file, [0xfe, 0xff])) {
-    return { text: new TextDecoder("utf-16be").decode(file.subarray(2)), notices: ["The file is in UTF-16; it was read as such."] };
+    return {
+      text: new TextDecoder("utf-16be").decode(file.subarray(2)),
+      notices: ["The file is in UTF-16; it was read as such."],
+    };
   }
   try {
     return { text: new TextDecoder("utf-8", { fatal: true }).decode(file), notices: [] };
@@ -160,13 +167,17 @@ function looksBinary(text: string): boolean {
 
 function readCsv(file: Buffer): ParsedSheet {
   const { text, notices } = decodeText(file);
-  if (looksBinary(text)) throw new UploadError("This is not a spreadsheet: the file holds binary data. Upload a CSV or .xlsx file.");
+  if (looksBinary(text))
+    throw new UploadError("This is not a spreadsheet: the file holds binary data. Upload a CSV or .xlsx file.");
   let data: string[][];
   try {
     const result = Papa.parse<string[]>(text, { skipEmptyLines: false, delimitersToGuess: [",", ";", "\t", "|"] });
     data = result.data;
     const fatal = result.errors.find((e) => e.type === "Quotes");
-    if (fatal) notices.push(`Row ${fatal.row != null ? fatal.row + 1 : "?"}: a quotation mark is not closed; the rest of the file may have been read as one cell.`);
+    if (fatal)
+      notices.push(
+        `Row ${fatal.row != null ? fatal.row + 1 : "?"}: a quotation mark is not closed; the rest of the file may have been read as one cell.`,
+      );
   } catch (e) {
     throw new UploadError(`The CSV file could not be read (${e instanceof Error ? e.message : "unknown problem"}).`);
   }
@@ -183,7 +194,8 @@ function finishSheet(kind: "csv" | "xlsx", all: StoredRow[], notices: string[]):
   if (!head) throw new UploadError("The file has no rows. The first row must hold the column names.");
   const rows = nonBlank.slice(1);
   if (rows.length === 0) throw new UploadError("The file has a header row but no data rows.");
-  if (rows.length > MAX_ROWS) throw new UploadError(`The file has ${rows.length} rows; at most ${MAX_ROWS} are read at once. Split it.`, 413);
+  if (rows.length > MAX_ROWS)
+    throw new UploadError(`The file has ${rows.length} rows; at most ${MAX_ROWS} are read at once. Split it.`, 413);
   const seen = new Map<string, number>();
   const headers = head.cells.map((c, i) => {
     let h = typeof c === "string" ? c.trim() : typeof c === "number" || typeof c === "boolean" ? String(c) : "";
@@ -263,13 +275,18 @@ function unzipEntry(zip: Buffer, wanted: (name: string) => boolean): Map<string,
 }
 
 function findFormulaCells(file: Buffer): Set<string> {
-  const entries = unzipEntry(file, (n) => n === "xl/workbook.xml" || n === "xl/_rels/workbook.xml.rels" || n.startsWith("xl/worksheets/sheet"));
+  const entries = unzipEntry(
+    file,
+    (n) => n === "xl/workbook.xml" || n === "xl/_rels/workbook.xml.rels" || n.startsWith("xl/worksheets/sheet"),
+  );
   const workbook = entries.get("xl/workbook.xml")?.toString("utf8") ?? "";
   const rels = entries.get("xl/_rels/workbook.xml.rels")?.toString("utf8") ?? "";
   const firstSheetRel = /<sheet\b[^>]*\br:id="([^"]+)"/.exec(workbook)?.[1];
   let target = "xl/worksheets/sheet1.xml";
   if (firstSheetRel) {
-    const rel = new RegExp(`<Relationship\\b[^>]*Id="${firstSheetRel}"[^>]*Target="([^"]+)"|<Relationship\\b[^>]*Target="([^"]+)"[^>]*Id="${firstSheetRel}"`).exec(rels);
+    const rel = new RegExp(
+      `<Relationship\\b[^>]*Id="${firstSheetRel}"[^>]*Target="([^"]+)"|<Relationship\\b[^>]*Target="([^"]+)"[^>]*Id="${firstSheetRel}"`,
+    ).exec(rels);
     const t = rel?.[1] ?? rel?.[2];
     if (t) target = t.startsWith("/") ? t.slice(1) : `xl/${t}`;
   }
@@ -417,7 +434,10 @@ function calendarProblem(db: Db, row: DeterminationRow, curveFor: (n: string) =>
   }
   if (fields.deGy == null || fields.doseRateGyPerKa == null) return null;
   try {
-    luminescenceAge({ value: fields.deGy, error: fields.deErrorGy ?? 0 }, { value: fields.doseRateGyPerKa, error: fields.doseRateErrorGyPerKa ?? 0 });
+    luminescenceAge(
+      { value: fields.deGy, error: fields.deErrorGy ?? 0 },
+      { value: fields.doseRateGyPerKa, error: fields.doseRateErrorGyPerKa ?? 0 },
+    );
   } catch (e) {
     return { column: "de_gy", message: e instanceof Error ? e.message : String(e) };
   }
@@ -450,7 +470,11 @@ function loadSitesByName(db: Db, names: string[]): Map<string, SiteRef[]> {
 }
 
 /** The first of the same-named candidates within about 100 m of a row's coordinates: the same site (uploads and the form). */
-export function findSite<T extends { latitude: number; longitude: number }>(candidates: T[] | undefined, lat: number, lon: number): T | undefined {
+export function findSite<T extends { latitude: number; longitude: number }>(
+  candidates: T[] | undefined,
+  lat: number,
+  lon: number,
+): T | undefined {
   return candidates?.find((s) => distanceM(s.latitude, s.longitude, lat, lon) <= SITE_MATCH_M);
 }
 
@@ -508,11 +532,23 @@ export function validateRows(
   const labCodes =
     labCodeAt === undefined
       ? []
-      : sheet.rows.map((r) => r.cells[labCodeAt]).filter((c): c is string | number => typeof c === "string" || typeof c === "number").map((c) => String(c).trim());
+      : sheet.rows
+          .map((r) => r.cells[labCodeAt])
+          .filter((c): c is string | number => typeof c === "string" || typeof c === "number")
+          .map((c) => String(c).trim());
   const registry = loadRegistry(db, labCodes);
   const notices: string[] = [];
   const mapped = new Set(index.map(([, c]) => c));
-  for (const required of ["site_name", "latitude", "longitude", "sample_code", "material", "method", "lab_code", "constraint_kind"]) {
+  for (const required of [
+    "site_name",
+    "latitude",
+    "longitude",
+    "sample_code",
+    "material",
+    "method",
+    "lab_code",
+    "constraint_kind",
+  ]) {
     if (!mapped.has(required)) notices.push(`No column is mapped to ${required}; every row needs it.`);
   }
   const seenCodes = new Map<string, number>();
@@ -523,7 +559,10 @@ export function validateRows(
     for (const [i, col] of index) {
       const cell = r.cells[i];
       if (cell && typeof cell === "object" && "formula" in cell) {
-        formulaIssues.push({ column: col, message: "Formula cells are not accepted; paste values instead (Paste Special → Values)." });
+        formulaIssues.push({
+          column: col,
+          message: "Formula cells are not accepted; paste values instead (Paste Special → Values).",
+        });
       } else raw[col] = cellFor(cell);
     }
     if (Object.values(raw).every(isBlankCell) && formulaIssues.length === 0) continue;
@@ -532,7 +571,8 @@ export function validateRows(
     const code = typeof raw.lab_code === "string" || typeof raw.lab_code === "number" ? String(raw.lab_code).trim() : "";
     if (code) {
       const first = seenCodes.get(code.toLowerCase());
-      if (first !== undefined) issues.push({ column: "lab_code", message: `Lab code ${code} also appears in row ${first} of this file.` });
+      if (first !== undefined)
+        issues.push({ column: "lab_code", message: `Lab code ${code} also appears in row ${first} of this file.` });
       else seenCodes.set(code.toLowerCase(), r.n);
     }
     let value: DeterminationRow | undefined;
@@ -551,13 +591,21 @@ export function validateRows(
     errors,
     warnings,
     validCount: valid.length,
-    preview: previewOf(db, valid.map((r) => r.value!), registry, options.userLabId ?? null),
+    preview: previewOf(
+      db,
+      valid.map((r) => r.value!),
+      registry,
+      options.userLabId ?? null,
+    ),
     notices,
   };
 }
 
 function previewOf(db: Db, rows: DeterminationRow[], registry: Registry, userLabId: number | null): UploadPreview {
-  const existing = loadSitesByName(db, rows.map((r) => r.site_name));
+  const existing = loadSitesByName(
+    db,
+    rows.map((r) => r.site_name),
+  );
   const newSiteKeys: { name: string; lat: number; lon: number }[] = [];
   const newSitesByName = new Map<string, number[]>();
   const existingSiteIds = new Set<number>();
@@ -683,7 +731,12 @@ export function remapUpload(db: Db, batch: BatchRow, mapping: ColumnMapping): Va
   const labId = batch.labId ?? userLab(db, batch.userId);
   const validation = validateRows(db, { headers, rows }, clean, { userLabId: labId });
   const readerNotices = head.notices.filter((n) => !n.startsWith("No column is mapped"));
-  const newHead: PayloadHead = { ...head, notices: [...readerNotices, ...validation.notices], warnings: validation.warnings, preview: validation.preview };
+  const newHead: PayloadHead = {
+    ...head,
+    notices: [...readerNotices, ...validation.notices],
+    warnings: validation.warnings,
+    preview: validation.preview,
+  };
   db.transaction((tx) => {
     tx.update(uploadBatches)
       .set({
@@ -768,7 +821,12 @@ export type CommitOptions = {
   ip?: string | null;
 };
 
-export type CommitResult = { committed: number; determinationIds: number[]; createdSiteIds: number[]; createdSampleIds: number[] };
+export type CommitResult = {
+  committed: number;
+  determinationIds: number[];
+  createdSiteIds: number[];
+  createdSampleIds: number[];
+};
 
 /**
  * Writes valid rows to the registry; the caller holds the transaction (better-sqlite3 runs the
@@ -785,7 +843,10 @@ function writeRows(
   const t0 = performance.now();
   const labRows = db.select({ id: labs.id, name: labs.name, codePrefix: labs.codePrefix }).from(labs).all();
   const registry = { labs: labRows } as Registry;
-  const existingSites = loadSitesByName(db, rows.map((r) => r.site_name));
+  const existingSites = loadSitesByName(
+    db,
+    rows.map((r) => r.site_name),
+  );
   const createdSites = new Map<string, SiteRef[]>();
   const sampleCache = new Map<string, number>();
   const pubCache = new Map<string, number>();
@@ -808,11 +869,19 @@ function writeRows(
       for (let k = 2; used.has(prefix.toLowerCase()); k++) prefix = `${lab.create.codePrefix}${k}`;
       const created = db.insert(labs).values({ name: lab.create.name, codePrefix: prefix }).returning().get();
       registry.labs.push({ id: created.id, name: created.name, codePrefix: created.codePrefix });
-      audit(db, { actorId: ctx.userId, action: "lab.create", entity: "lab", entityId: created.id, after: { name: created.name, codePrefix: prefix }, ip: options.ip });
+      audit(db, {
+        actorId: ctx.userId,
+        action: "lab.create",
+        entity: "lab",
+        entityId: created.id,
+        after: { name: created.name, codePrefix: prefix },
+        ip: options.ip,
+      });
       labId = created.id;
     }
     // Site: same name and within ~100 m
-    let site = findSite(existingSites.get(row.site_name), row.latitude, row.longitude) ??
+    let site =
+      findSite(existingSites.get(row.site_name), row.latitude, row.longitude) ??
       findSite(createdSites.get(row.site_name), row.latitude, row.longitude);
     if (!site) {
       const created = db.insert(sites).values(siteValues(row, ctx.userId)).returning({ id: sites.id }).get();
@@ -838,7 +907,11 @@ function writeRows(
       const key = row.doi.toLowerCase();
       publicationId = pubCache.get(key) ?? (pubLookup.get(row.doi) as number | undefined) ?? null;
       if (publicationId == null) {
-        publicationId = db.insert(publications).values({ citation: `DOI ${row.doi}`, doi: row.doi }).returning({ id: publications.id }).get().id;
+        publicationId = db
+          .insert(publications)
+          .values({ citation: `DOI ${row.doi}`, doi: row.doi })
+          .returning({ id: publications.id })
+          .get().id;
       }
       pubCache.set(key, publicationId);
     }
@@ -872,7 +945,13 @@ function writeRows(
  * Commits a parsed batch. The rows are validated again first (the registry may have changed
  * since the upload): mode "all" with any error is refused (409) and writes nothing.
  */
-export function commitUpload(db: Db, batch: BatchRow, mode: CommitMode, actor: { userId: number }, options: CommitOptions = {}): CommitResult {
+export function commitUpload(
+  db: Db,
+  batch: BatchRow,
+  mode: CommitMode,
+  actor: { userId: number },
+  options: CommitOptions = {},
+): CommitResult {
   if (batch.userId !== actor.userId) throw new CommitRefused("Not found.", 404);
   if (batch.status !== "parsed") throw new CommitRefused(`This upload is ${batch.status}; it cannot be committed again.`);
   const { headers, rows } = sheetOf(batch);
@@ -986,7 +1065,12 @@ export function submitJsonRows(
       action: "upload.commit",
       entity: "upload_batch",
       entityId: batch.publicId,
-      after: { mode: "api", committed: result.committed, createdSiteIds: result.createdSiteIds, createdSampleIds: result.createdSampleIds },
+      after: {
+        mode: "api",
+        committed: result.committed,
+        createdSiteIds: result.createdSiteIds,
+        createdSampleIds: result.createdSampleIds,
+      },
       ip: options.ip,
     });
     return { ok: true as const, determinationIds: result.determinationIds };
@@ -1002,13 +1086,19 @@ export function submitJsonRows(
  */
 export function undoUpload(db: Db, batch: BatchRow, actor: { userId: number; ip?: string | null }): { removed: number } {
   if (batch.userId !== actor.userId) throw new CommitRefused("Not found.", 404);
-  if (batch.status !== "committed") throw new CommitRefused(`This upload is ${batch.status}; only a committed upload can be undone.`);
+  if (batch.status !== "committed")
+    throw new CommitRefused(`This upload is ${batch.status}; only a committed upload can be undone.`);
   return db.transaction((tx) => {
     const dets = tx.select().from(determinations).where(eq(determinations.uploadBatchId, batch.id)).all();
     const ids = dets.map((d) => d.id);
     const blocked = (table: typeof reviews | typeof releaseItems | typeof modelRunScores, what: string) => {
       for (let i = 0; i < ids.length; i += 500) {
-        const hit = tx.select({ id: table.determinationId }).from(table).where(inArray(table.determinationId, ids.slice(i, i + 500))).limit(1).get();
+        const hit = tx
+          .select({ id: table.determinationId })
+          .from(table)
+          .where(inArray(table.determinationId, ids.slice(i, i + 500)))
+          .limit(1)
+          .get();
         if (hit) throw new CommitRefused(`This upload cannot be undone: ${what}.`);
       }
     };
@@ -1076,7 +1166,14 @@ export function undoUpload(db: Db, batch: BatchRow, actor: { userId: number; ip?
 
 // ---------------------------------------------------------------- bench
 
-export type UploadBench = { rows: number; parseMs: number; validateMs: number; insertMs: number; calibrateMs: number; totalMs: number };
+export type UploadBench = {
+  rows: number;
+  parseMs: number;
+  validateMs: number;
+  insertMs: number;
+  calibrateMs: number;
+  totalMs: number;
+};
 
 /**
  * Times one file through the whole path — read, validate (with the mapping guessed), write and

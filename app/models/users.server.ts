@@ -45,13 +45,21 @@ export function findActiveUserByEmail(db: DbOrTx, email: string) {
 
 function rolesOfUser(db: DbOrTx, userId: number): Role[] {
   return sortRoles(
-    db.select({ role: userRoles.role }).from(userRoles).where(eq(userRoles.userId, userId)).all().map((r) => r.role),
+    db
+      .select({ role: userRoles.role })
+      .from(userRoles)
+      .where(eq(userRoles.userId, userId))
+      .all()
+      .map((r) => r.role),
   );
 }
 
 function replaceRoles(db: DbOrTx, userId: number, roles: Role[]) {
   db.delete(userRoles).where(eq(userRoles.userId, userId)).run();
-  if (roles.length > 0) db.insert(userRoles).values(roles.map((role) => ({ userId, role }))).run();
+  if (roles.length > 0)
+    db.insert(userRoles)
+      .values(roles.map((role) => ({ userId, role })))
+      .run();
 }
 
 /**
@@ -77,7 +85,10 @@ export function createUser(db: DbOrTx, input: { email: string; name?: string; ro
 }
 
 function defaultName(email: string): string {
-  return email.split("@")[0]!.replace(/[._-]+/g, " ").replace(/\b\w/g, (c) => c.toUpperCase());
+  return email
+    .split("@")[0]!
+    .replace(/[._-]+/g, " ")
+    .replace(/\b\w/g, (c) => c.toUpperCase());
 }
 
 /** Everyone with their roles, active people first; one query. */
@@ -127,11 +138,7 @@ export function getPerson(db: DbOrTx, userId: number): Person | null {
 type Actor = { actorId: number | null; ip?: string | null };
 
 /** An editor (or the create-user command) invites a new person; audited. */
-export function inviteUser(
-  db: DbOrTx,
-  input: { email: string; name: string; roles: readonly Role[] },
-  actor: Actor,
-): number {
+export function inviteUser(db: DbOrTx, input: { email: string; name: string; roles: readonly Role[] }, actor: Actor): number {
   return db.transaction((tx) => {
     const id = createUser(tx, input);
     audit(tx, {
@@ -194,7 +201,9 @@ export function recordSignIn(db: DbOrTx, userId: number, details: { method: "cod
   db.transaction((tx) => {
     tx.update(users).set({ lastSignInAt: new Date() }).where(eq(users.id, userId)).run();
     // Housekeeping: the person's expired sessions go when they next sign in.
-    tx.delete(sessions).where(and(eq(sessions.userId, userId), lt(sessions.expiresAt, new Date()))).run();
+    tx.delete(sessions)
+      .where(and(eq(sessions.userId, userId), lt(sessions.expiresAt, new Date())))
+      .run();
     audit(tx, {
       actorId: userId,
       action: "auth.sign_in",

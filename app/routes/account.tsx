@@ -7,12 +7,7 @@ import type { Route } from "./+types/account";
 import { ErrorView } from "#app/components/error-view.tsx";
 import { getDb } from "#app/db/client.server.ts";
 import { clientAddress, destroySession, requireUser } from "#app/auth/session.server.ts";
-import {
-  describeUserAgent,
-  listActiveSessions,
-  revokeOtherSessions,
-  revokeSession,
-} from "#app/models/sessions.server.ts";
+import { describeUserAgent, listActiveSessions, revokeOtherSessions, revokeSession } from "#app/models/sessions.server.ts";
 import { createToken, listTokens, revokeToken } from "#app/models/tokens.server.ts";
 import { env } from "#app/utils/env.server.ts";
 import { redirectWithFlash } from "#app/utils/flash.server.ts";
@@ -91,14 +86,19 @@ export async function action({ request }: Route.ActionArgs) {
       const outcome = revokeSession(db, user.id, handle, user.sessionId, actor);
       if (!outcome) return data({ intent, result: undefined, newToken: null, error: "No such session." }, { status: 404 });
       if (outcome.wasCurrent) {
-        return redirectWithFlash("/", { kind: "info", message: "You are signed out." }, {
-          headers: { "Set-Cookie": await destroySession(request) },
-        });
+        return redirectWithFlash(
+          "/",
+          { kind: "info", message: "You are signed out." },
+          {
+            headers: { "Set-Cookie": await destroySession(request) },
+          },
+        );
       }
       return redirectWithFlash("/account", { kind: "success", message: "That session is ended." });
     }
     case "revoke-other-sessions": {
-      if (!user.sessionId) return data({ intent, result: undefined, newToken: null, error: "No current session." }, { status: 400 });
+      if (!user.sessionId)
+        return data({ intent, result: undefined, newToken: null, error: "No current session." }, { status: 400 });
       const ended = revokeOtherSessions(db, user.id, user.sessionId, actor);
       return redirectWithFlash("/account", {
         kind: "success",
@@ -176,10 +176,12 @@ export default function Account({ loaderData, actionData }: Route.ComponentProps
         <h2 id="tokens-heading">API tokens</h2>
         <p className="max-w-3xl text-muted">
           A personal token lets your scripts use the Thawline API as you, with your roles. Send it as{" "}
-          <code className="font-mono text-sm">Authorization: Bearer &lt;token&gt;</code>. Revoke a token as soon as
-          you no longer need it.
+          <code className="font-mono text-sm">Authorization: Bearer &lt;token&gt;</code>. Revoke a token as soon as you no longer
+          need it.
         </p>
-        {actionData?.newToken ? <NewToken token={actionData.newToken.token} label={actionData.newToken.label} apiBase={apiBase} /> : null}
+        {actionData?.newToken ? (
+          <NewToken token={actionData.newToken.token} label={actionData.newToken.label} apiBase={apiBase} />
+        ) : null}
         <CreateTokenForm lastResult={actionData?.intent === "create-token" ? actionData.result : undefined} />
         {liveTokens.length === 0 ? (
           <p className="rounded border border-dashed border-rule px-4 py-6 text-center text-muted">You have no API tokens.</p>

@@ -38,20 +38,20 @@ const ENDPOINTS = [
 
 function filterParameters(perPage: { default: number; max: number }): [string, string][] {
   return [
-  ["method", "radiocarbon, luminescence or exposure"],
-  ["material", "a material from the registry's list, e.g. marine shell"],
-  ["lab", "a laboratory's id"],
-  ["site", "part of a site name"],
-  ["kind", "constraint kind: minimum, maximum or direct"],
-  ["status", "submitted, in_review, graded, withdrawn or all (left out: everything but withdrawn)"],
-  ["grade", "minimum grade 3, 2, 1 or 0, or ungraded"],
-  ["ageFrom, ageTo", "window on the measured age in years (¹⁴C yr BP, or luminescence years before measurement)"],
-  ["calFrom, calTo", "window on the calibrated median, cal BP"],
-  ["q", "part of a lab code or site name"],
-  ["sort", "labCode, site, age, cal, grade or created (default: created)"],
-  ["dir", "asc or desc"],
-  ["page", "page number from 1"],
-  ["per_page", `rows per page, 1 to ${perPage.max} (default ${perPage.default})`],
+    ["method", "radiocarbon, luminescence or exposure"],
+    ["material", "a material from the registry's list, e.g. marine shell"],
+    ["lab", "a laboratory's id"],
+    ["site", "part of a site name"],
+    ["kind", "constraint kind: minimum, maximum or direct"],
+    ["status", "submitted, in_review, graded, withdrawn or all (left out: everything but withdrawn)"],
+    ["grade", "minimum grade 3, 2, 1 or 0, or ungraded"],
+    ["ageFrom, ageTo", "window on the measured age in years (¹⁴C yr BP, or luminescence years before measurement)"],
+    ["calFrom, calTo", "window on the calibrated median, cal BP"],
+    ["q", "part of a lab code or site name"],
+    ["sort", "labCode, site, age, cal, grade or created (default: created)"],
+    ["dir", "asc or desc"],
+    ["page", "page number from 1"],
+    ["per_page", `rows per page, 1 to ${perPage.max} (default ${perPage.default})`],
   ];
 }
 
@@ -68,21 +68,21 @@ export default function ApiDocs({ loaderData }: Route.ComponentProps) {
         <h1 className="mt-1">The Thawline API</h1>
         <p className="mt-2 text-muted">
           JSON over HTTPS at <code>{base}/api/v1/…</code>. Field names are the upload template's column names throughout;
-          measurements come back unrounded. Results are for research use; calibrated ages depend on the curve and its
-          version, marine ages on ΔR, and grades are expert judgements, not measurements.
+          measurements come back unrounded. Results are for research use; calibrated ages depend on the curve and its version,
+          marine ages on ΔR, and grades are expert judgements, not measurements.
         </p>
       </header>
 
       <section className="card grid gap-3" aria-labelledby="auth-heading">
         <h2 id="auth-heading">Tokens</h2>
         <p>
-          Every endpoint except calibration needs a personal API token, made on <Link to="/account">your account page</Link>{" "}
-          and sent as a header. A token acts with your roles; revoke it there when you no longer need it.
+          Every endpoint except calibration needs a personal API token, made on <Link to="/account">your account page</Link> and
+          sent as a header. A token acts with your roles; revoke it there when you no longer need it.
         </p>
         <Code>{`curl -H "Authorization: Bearer <token>" ${base}/api/v1/me`}</Code>
         <p>
-          Without a valid token the answer is <code>401</code> <code>{`{"error": "…"}`}</code>; with a token whose owner
-          lacks the role, <code>403</code>. A wrong method is <code>405</code> with an <code>Allow</code> header.
+          Without a valid token the answer is <code>401</code> <code>{`{"error": "…"}`}</code>; with a token whose owner lacks the
+          role, <code>403</code>. A wrong method is <code>405</code> with an <code>Allow</code> header.
         </p>
         <table className="data-table">
           <thead>
@@ -108,21 +108,26 @@ export default function ApiDocs({ loaderData }: Route.ComponentProps) {
         </table>
       </section>
 
-      <Endpoint id="calibrate" method="POST" path="/api/v1/calibrate" who="Anyone; no token. Rate-limited per address (429 with Retry-After).">
+      <Endpoint
+        id="calibrate"
+        method="POST"
+        path="/api/v1/calibrate"
+        who="Anyone; no token. Rate-limited per address (429 with Retry-After)."
+      >
         <p>
           Calibrates ¹⁴C ages that need not be in the registry. Each item has an <code>id</code>, <code>c14_age</code> and{" "}
-          <code>c14_error</code> (¹⁴C yr BP, 1σ), a <code>curve</code> (<code>intcal20</code> when left out) and, for a
-          marine curve, <code>delta_r</code> and <code>delta_r_error</code>. <code>"density": true</code> adds each calendar
-          density (<code>start_cal_bp</code> is its youngest year, one value per year). At most{" "}
+          <code>c14_error</code> (¹⁴C yr BP, 1σ), a <code>curve</code> (<code>intcal20</code> when left out) and, for a marine
+          curve, <code>delta_r</code> and <code>delta_r_error</code>. <code>"density": true</code> adds each calendar density (
+          <code>start_cal_bp</code> is its youngest year, one value per year). At most{" "}
           {MAX_CALIBRATION_ITEMS.toLocaleString("en")} items per request.
         </p>
         <Code>{`curl -s -X POST ${base}/api/v1/calibrate -H 'Content-Type: application/json' \\
   -d '{"determinations":[{"id":"a1","c14_age":10250,"c14_error":45,"curve":"intcal20"}]}'`}</Code>
         <Code label="200">{calibrateExample}</Code>
         <p>
-          Ranges run from the oldest: <code>from</code> is the older bound, <code>to</code> the younger, in cal BP, with
-          their probability <code>p</code>. An item that cannot be calibrated comes back as <code>{`{"id": …, "error": "…"}`}</code>{" "}
-          in its place; a malformed request is <code>400</code> <code>{`{"error": "…"}`}</code>.
+          Ranges run from the oldest: <code>from</code> is the older bound, <code>to</code> the younger, in cal BP, with their
+          probability <code>p</code>. An item that cannot be calibrated comes back as <code>{`{"id": …, "error": "…"}`}</code> in
+          its place; a malformed request is <code>400</code> <code>{`{"error": "…"}`}</code>.
         </p>
       </Endpoint>
 
@@ -133,8 +138,8 @@ export default function ApiDocs({ loaderData }: Route.ComponentProps) {
 
       <Endpoint id="determinations-get" method="GET" path="/api/v1/determinations" who="Any valid token.">
         <p>
-          The registry's determinations with their current calibration, filtered exactly as on{" "}
-          <Link to="/explore">Explore</Link>, in the same order. All parameters are optional:
+          The registry's determinations with their current calibration, filtered exactly as on <Link to="/explore">Explore</Link>,
+          in the same order. All parameters are optional:
         </p>
         <table className="data-table">
           <thead>
@@ -187,19 +192,19 @@ export default function ApiDocs({ loaderData }: Route.ComponentProps) {
   ]
 }`}</Code>
         <p>
-          <code>calibration</code> is <code>null</code> before a determination is calibrated; a “greater than” age or a
-          post-bomb sample has a calibration with <code>median_cal_bp</code> <code>null</code> and the reason in{" "}
-          <code>error</code>. Luminescence ages have <code>"curve": "luminescence (normal)"</code>. A page past the end has
-          an empty list. A malformed parameter is <code>400</code> <code>{`{"errors": ["per_page: …"]}`}</code>. Pages are
-          read from Explore's pages of {EXPLORE_PAGE_SIZE}, so a large <code>per_page</code> costs a little more.
+          <code>calibration</code> is <code>null</code> before a determination is calibrated; a “greater than” age or a post-bomb
+          sample has a calibration with <code>median_cal_bp</code> <code>null</code> and the reason in <code>error</code>.
+          Luminescence ages have <code>"curve": "luminescence (normal)"</code>. A page past the end has an empty list. A malformed
+          parameter is <code>400</code> <code>{`{"errors": ["per_page: …"]}`}</code>. Pages are read from Explore's pages of{" "}
+          {EXPLORE_PAGE_SIZE}, so a large <code>per_page</code> costs a little more.
         </p>
       </Endpoint>
 
       <Endpoint id="determinations-post" method="POST" path="/api/v1/determinations" who="A contributor's token.">
         <p>
-          Submits determinations as a JSON array of rows whose keys are the template's column names (below), with the
-          same checks as an upload. Either every row is valid and all are stored as one batch, or nothing is written. At
-          most 10,000 rows and 16 MB per request.
+          Submits determinations as a JSON array of rows whose keys are the template's column names (below), with the same checks
+          as an upload. Either every row is valid and all are stored as one batch, or nothing is written. At most 10,000 rows and
+          16 MB per request.
         </p>
         <Code>{`curl -s -X POST ${base}/api/v1/determinations -H "Authorization: Bearer <token>" \\
   -H 'Content-Type: application/json' -d '[{
@@ -217,11 +222,10 @@ export default function ApiDocs({ loaderData }: Route.ComponentProps) {
 
       <Endpoint id="uploads" method="POST" path="/api/v1/uploads" who="A contributor's token.">
         <p>
-          Sends a spreadsheet (CSV or XLSX, up to {uploadMaxMb} MB, header row = the template's column names) as the
-          multipart field <code>file</code>. It is read and checked; nothing reaches the registry until it is committed.
-          Rows are numbered as a spreadsheet shows them (the header is row 1). The{" "}
-          <a href="/uploads/template.csv">CSV template</a> and <a href="/uploads/template.xlsx">XLSX template</a> list the
-          columns with an example row each.
+          Sends a spreadsheet (CSV or XLSX, up to {uploadMaxMb} MB, header row = the template's column names) as the multipart
+          field <code>file</code>. It is read and checked; nothing reaches the registry until it is committed. Rows are numbered
+          as a spreadsheet shows them (the header is row 1). The <a href="/uploads/template.csv">CSV template</a> and{" "}
+          <a href="/uploads/template.xlsx">XLSX template</a> list the columns with an example row each.
         </p>
         <Code>{`curl -s -X POST ${base}/api/v1/uploads -H "Authorization: Bearer <token>" -F "file=@dates.csv"`}</Code>
         <Code label="200">{`{"upload_id": "q3V9…", "rows": 120, "valid": 118,
@@ -232,17 +236,22 @@ export default function ApiDocs({ loaderData }: Route.ComponentProps) {
         </p>
       </Endpoint>
 
-      <Endpoint id="uploads-commit" method="POST" path="/api/v1/uploads/{upload_id}/commit" who="A contributor's token; only your own uploads.">
+      <Endpoint
+        id="uploads-commit"
+        method="POST"
+        path="/api/v1/uploads/{upload_id}/commit"
+        who="A contributor's token; only your own uploads."
+      >
         <p>
-          Commits a checked upload in one transaction, with calibration: <code>{`{"mode": "all"}`}</code> only when every
-          row is valid, <code>{`{"mode": "valid_only"}`}</code> to store the valid rows and leave the others out.
+          Commits a checked upload in one transaction, with calibration: <code>{`{"mode": "all"}`}</code> only when every row is
+          valid, <code>{`{"mode": "valid_only"}`}</code> to store the valid rows and leave the others out.
         </p>
         <Code>{`curl -s -X POST ${base}/api/v1/uploads/q3V9…/commit -H "Authorization: Bearer <token>" \\
   -H 'Content-Type: application/json' -d '{"mode":"valid_only"}'`}</Code>
         <Code label="200">{`{"committed": 118, "determination_ids": [901, 902, …]}`}</Code>
         <p>
-          Mode <code>all</code> with any error, or an upload already committed, is <code>409</code> and writes nothing;
-          someone else's upload is <code>404</code>; a body without a valid mode is <code>400</code>.
+          Mode <code>all</code> with any error, or an upload already committed, is <code>409</code> and writes nothing; someone
+          else's upload is <code>404</code>; a body without a valid mode is <code>400</code>.
         </p>
       </Endpoint>
 
@@ -276,7 +285,19 @@ export default function ApiDocs({ loaderData }: Route.ComponentProps) {
   );
 }
 
-function Endpoint({ id, method, path, who, children }: { id: string; method: string; path: string; who: string; children: React.ReactNode }) {
+function Endpoint({
+  id,
+  method,
+  path,
+  who,
+  children,
+}: {
+  id: string;
+  method: string;
+  path: string;
+  who: string;
+  children: React.ReactNode;
+}) {
   return (
     <section id={id} className="card grid gap-3" aria-labelledby={`${id}-heading`}>
       <h2 id={`${id}-heading`} className="font-mono text-lg">

@@ -3,7 +3,14 @@ import { useEffect, useMemo, useRef, useState } from "react";
 import { data, useFetcher, type ShouldRevalidateFunctionArgs } from "react-router";
 import type { Route } from "./+types/calibrate";
 import { clientAddress } from "#app/auth/session.server.ts";
-import { CalibrationPlot, formatCalAge, formatRange, plotWindow, type CalendarScale, type PlotCurve } from "#app/components/calibration-plot.tsx";
+import {
+  CalibrationPlot,
+  formatCalAge,
+  formatRange,
+  plotWindow,
+  type CalendarScale,
+  type PlotCurve,
+} from "#app/components/calibration-plot.tsx";
 import { ErrorView } from "#app/components/error-view.tsx";
 import { getDb } from "#app/db/client.server.ts";
 import { calibrateItems } from "#app/models/calibrate-items.server.ts";
@@ -47,7 +54,14 @@ export async function action({ request }: Route.ActionArgs) {
   const scale: CalendarScale = form.get("scale") === "bcad" ? "bcad" : "bp";
   if (!limited.allowed) {
     return data(
-      { input, scale, rows: [] as TableRow[], curves: {} as ApiResponse["curves"], plot: null as CalibrationPlotData | null, message: `Too many requests; try again in ${limited.retryAfterS} s.` },
+      {
+        input,
+        scale,
+        rows: [] as TableRow[],
+        curves: {} as ApiResponse["curves"],
+        plot: null as CalibrationPlotData | null,
+        message: `Too many requests; try again in ${limited.retryAfterS} s.`,
+      },
       { status: 429, headers: { "Retry-After": String(limited.retryAfterS) } },
     );
   }
@@ -56,7 +70,14 @@ export async function action({ request }: Route.ActionArgs) {
   const entries = entriesFromPageInput(input, marine);
   if (entries.length > MAX_CALIBRATION_ITEMS) {
     return data(
-      { input, scale, rows: [] as TableRow[], curves: {} as ApiResponse["curves"], plot: null as CalibrationPlotData | null, message: `At most ${groupThousands(MAX_CALIBRATION_ITEMS)} ages at a time.` },
+      {
+        input,
+        scale,
+        rows: [] as TableRow[],
+        curves: {} as ApiResponse["curves"],
+        plot: null as CalibrationPlotData | null,
+        message: `At most ${groupThousands(MAX_CALIBRATION_ITEMS)} ages at a time.`,
+      },
       { status: 400 },
     );
   }
@@ -79,7 +100,11 @@ const EMPTY_INPUT: PageInput = { mode: "one", age: "", error: "", curve: "intcal
 const DENSITY_WITH_RESULTS = 25;
 const DEBOUNCE_MS = 300;
 
-type WindowResponse = { curve: Omit<PlotCurve, "points"> & { name: string }; window: { from: number; to: number }; points: PlotCurve["points"] };
+type WindowResponse = {
+  curve: Omit<PlotCurve, "points"> & { name: string };
+  window: { from: number; to: number };
+  points: PlotCurve["points"];
+};
 
 export default function CalibratePage({ loaderData, actionData }: Route.ComponentProps) {
   const { curves } = loaderData;
@@ -150,21 +175,18 @@ export default function CalibratePage({ loaderData, actionData }: Route.Componen
     // eslint-disable-next-line react-hooks/exhaustive-deps
   }, [targetKey, Boolean(target?.result?.density)]);
   const singleResult = single.data && "results" in single.data ? single.data.results[0] : undefined;
-  const targetResult =
-    target?.result?.density
-      ? target.result
-      : singleResult && isCalibrated(singleResult) && singleResult.density && String(singleResult.id) === String(target?.item?.id)
-        ? singleResult
-        : undefined;
+  const targetResult = target?.result?.density
+    ? target.result
+    : singleResult && isCalibrated(singleResult) && singleResult.density && String(singleResult.id) === String(target?.item?.id)
+      ? singleResult
+      : undefined;
 
   const windowFetcher = useFetcher<WindowResponse>();
   const win = targetResult?.density
     ? plotWindow({ startCalBp: targetResult.density.start_cal_bp, values: targetResult.density.values })
     : null;
   const windowUrl =
-    win && target?.item
-      ? `/api/curve-window?curve=${encodeURIComponent(target.item.curve)}&from=${win.from}&to=${win.to}`
-      : null;
+    win && target?.item ? `/api/curve-window?curve=${encodeURIComponent(target.item.curve)}&from=${win.from}&to=${win.to}` : null;
   useEffect(() => {
     if (windowUrl) void windowFetcher.load(windowUrl);
     // eslint-disable-next-line react-hooks/exhaustive-deps
@@ -172,7 +194,15 @@ export default function CalibratePage({ loaderData, actionData }: Route.Componen
 
   let livePlot: CalibrationPlotData | null = null;
   const w = windowFetcher.data;
-  if (targetResult?.density && target?.item && w && win && w.window.from === win.from && w.window.to === win.to && w.curve.name === target.item.curve) {
+  if (
+    targetResult?.density &&
+    target?.item &&
+    w &&
+    win &&
+    w.window.from === win.from &&
+    w.window.to === win.to &&
+    w.curve.name === target.item.curve
+  ) {
     livePlot = {
       curve: { ...w.curve, points: w.points },
       measurement: {
@@ -199,26 +229,44 @@ export default function CalibratePage({ loaderData, actionData }: Route.Componen
       <header className="max-w-3xl">
         <h1>Calibrate radiocarbon ages</h1>
         <p className="mt-3 text-lg">
-          Type a conventional radiocarbon age and its 1σ error, or paste a list, and read off the calendar age on the
-          current curves. Nothing you type here is stored in the registry.
+          Type a conventional radiocarbon age and its 1σ error, or paste a list, and read off the calendar age on the current
+          curves. Nothing you type here is stored in the registry.
         </p>
       </header>
 
-      <form method="post" className="card group space-y-5" onSubmit={(e) => {
-        const submitter = (e.nativeEvent as SubmitEvent).submitter;
-        // The CSV download is a plain form post to its own route; let the browser handle it.
-        if (submitter?.getAttribute("formaction")) return;
-        e.preventDefault();
-        submitNow.current();
-      }}>
+      <form
+        method="post"
+        className="card group space-y-5"
+        onSubmit={(e) => {
+          const submitter = (e.nativeEvent as SubmitEvent).submitter;
+          // The CSV download is a plain form post to its own route; let the browser handle it.
+          if (submitter?.getAttribute("formaction")) return;
+          e.preventDefault();
+          submitNow.current();
+        }}
+      >
         <fieldset className="flex flex-wrap gap-x-6 gap-y-2">
           <legend className="label mb-2">What to calibrate</legend>
           <label className="flex items-center gap-2">
-            <input type="radio" name="mode" value="one" id="mode-one" checked={input.mode === "one"} onChange={() => set({ mode: "one" })} />
+            <input
+              type="radio"
+              name="mode"
+              value="one"
+              id="mode-one"
+              checked={input.mode === "one"}
+              onChange={() => set({ mode: "one" })}
+            />
             One age
           </label>
           <label className="flex items-center gap-2">
-            <input type="radio" name="mode" value="list" id="mode-list" checked={input.mode === "list"} onChange={() => set({ mode: "list" })} />
+            <input
+              type="radio"
+              name="mode"
+              value="list"
+              id="mode-list"
+              checked={input.mode === "list"}
+              onChange={() => set({ mode: "list" })}
+            />
             A list of ages
           </label>
         </fieldset>
@@ -226,25 +274,49 @@ export default function CalibratePage({ loaderData, actionData }: Route.Componen
         <div className="grid gap-4 sm:grid-cols-[repeat(auto-fill,minmax(11rem,1fr))] group-has-[#mode-list:checked]:hidden">
           <div className="field">
             <label htmlFor="age">¹⁴C age (yr BP)</label>
-            <input id="age" name="age" className="input" inputMode="decimal" autoComplete="off" placeholder="10250"
-              value={input.age} onChange={(e) => set({ age: e.target.value })} />
+            <input
+              id="age"
+              name="age"
+              className="input"
+              inputMode="decimal"
+              autoComplete="off"
+              placeholder="10250"
+              value={input.age}
+              onChange={(e) => set({ age: e.target.value })}
+            />
           </div>
           <div className="field">
             <label htmlFor="error">± 1σ error (yr)</label>
-            <input id="error" name="error" className="input" inputMode="decimal" autoComplete="off" placeholder="45"
-              value={input.error} onChange={(e) => set({ error: e.target.value })} />
+            <input
+              id="error"
+              name="error"
+              className="input"
+              inputMode="decimal"
+              autoComplete="off"
+              placeholder="45"
+              value={input.error}
+              onChange={(e) => set({ error: e.target.value })}
+            />
           </div>
         </div>
 
         <div className="hidden group-has-[#mode-list:checked]:block">
           <div className="field">
             <label htmlFor="list">Ages, one per line</label>
-            <textarea id="list" name="list" rows={8} className="input font-mono text-sm" spellCheck={false}
+            <textarea
+              id="list"
+              name="list"
+              rows={8}
+              className="input font-mono text-sm"
+              spellCheck={false}
               placeholder={"a1, 10250, 45\nm1, 9500, 70, marine20, 50, 40\n8120 ± 35"}
-              aria-describedby="list-help" value={input.list} onChange={(e) => set({ list: e.target.value })} />
+              aria-describedby="list-help"
+              value={input.list}
+              onChange={(e) => set({ list: e.target.value })}
+            />
             <p id="list-help" className="text-sm text-muted">
-              <code>id, age, error[, curve, ΔR, ΔR error]</code> or just <code>age ± error</code>. Lines without a curve use
-              the curve chosen below (and its ΔR). At most {groupThousands(MAX_CALIBRATION_ITEMS)} lines.
+              <code>id, age, error[, curve, ΔR, ΔR error]</code> or just <code>age ± error</code>. Lines without a curve use the
+              curve chosen below (and its ΔR). At most {groupThousands(MAX_CALIBRATION_ITEMS)} lines.
             </p>
           </div>
         </div>
@@ -252,7 +324,13 @@ export default function CalibratePage({ loaderData, actionData }: Route.Componen
         <div className="grid gap-4 sm:grid-cols-[repeat(auto-fill,minmax(11rem,1fr))]">
           <div className="field">
             <label htmlFor="curve">Curve</label>
-            <select id="curve" name="curve" className="input" value={input.curve} onChange={(e) => set({ curve: e.target.value })}>
+            <select
+              id="curve"
+              name="curve"
+              className="input"
+              value={input.curve}
+              onChange={(e) => set({ curve: e.target.value })}
+            >
               {curves.map((c) => (
                 <option key={c.name} value={c.name} className={c.kind === "marine" ? "marine-option" : undefined}>
                   {c.displayName} ({c.version}){c.kind === "marine" ? " — marine" : ""}
@@ -262,19 +340,35 @@ export default function CalibratePage({ loaderData, actionData }: Route.Componen
           </div>
           <div className="field hidden group-has-[.marine-option:checked]:flex">
             <label htmlFor="delta_r">ΔR (¹⁴C yr)</label>
-            <input id="delta_r" name="delta_r" className="input" inputMode="decimal" autoComplete="off" placeholder="0"
-              value={input.deltaR} onChange={(e) => set({ deltaR: e.target.value })} />
+            <input
+              id="delta_r"
+              name="delta_r"
+              className="input"
+              inputMode="decimal"
+              autoComplete="off"
+              placeholder="0"
+              value={input.deltaR}
+              onChange={(e) => set({ deltaR: e.target.value })}
+            />
           </div>
           <div className="field hidden group-has-[.marine-option:checked]:flex">
             <label htmlFor="delta_r_error">ΔR ± 1σ (¹⁴C yr)</label>
-            <input id="delta_r_error" name="delta_r_error" className="input" inputMode="decimal" autoComplete="off" placeholder="0"
-              value={input.deltaRError} onChange={(e) => set({ deltaRError: e.target.value })} />
+            <input
+              id="delta_r_error"
+              name="delta_r_error"
+              className="input"
+              inputMode="decimal"
+              autoComplete="off"
+              placeholder="0"
+              value={input.deltaRError}
+              onChange={(e) => set({ deltaRError: e.target.value })}
+            />
           </div>
         </div>
         {chosen?.kind === "marine" ? (
           <p className="rounded border border-caution bg-caution-bg px-3 py-2 text-sm text-caution">
-            {chosen.displayName} is a global average for the non-polar ocean; add a local ΔR worked out against this curve.
-            Its authors advise great caution for polar samples.
+            {chosen.displayName} is a global average for the non-polar ocean; add a local ΔR worked out against this curve. Its
+            authors advise great caution for polar samples.
           </p>
         ) : null}
 
@@ -290,7 +384,9 @@ export default function CalibratePage({ loaderData, actionData }: Route.Componen
             </label>
           </fieldset>
           <div className="ml-auto flex gap-3">
-            <button type="submit" className="btn">Calibrate</button>
+            <button type="submit" className="btn">
+              Calibrate
+            </button>
             <button type="submit" formAction="/calibrate/results.csv" className="btn-quiet" data-testid="download-csv">
               Download CSV
             </button>
@@ -302,7 +398,13 @@ export default function CalibratePage({ loaderData, actionData }: Route.Componen
         <div className="flex items-baseline gap-4">
           <h2 id="results-heading">Results</h2>
           <p role="status" aria-live="polite" className="text-sm text-muted">
-            {busy ? "Calibrating…" : apiError ? "" : rows.length ? `${rows.filter((r) => r.result).length} of ${rows.length} calibrated` : ""}
+            {busy
+              ? "Calibrating…"
+              : apiError
+                ? ""
+                : rows.length
+                  ? `${rows.filter((r) => r.result).length} of ${rows.length} calibrated`
+                  : ""}
           </p>
         </div>
         {apiError || actionData?.message ? (
@@ -313,7 +415,13 @@ export default function CalibratePage({ loaderData, actionData }: Route.Componen
         {rows.length === 0 ? (
           <p className="text-muted">Type an age and its error above to see its calendar age.</p>
         ) : (
-          <ResultsTable rows={rows} scale={scale} selected={target} onSelect={(row) => setSelected(plottable.indexOf(row))} canSelect={hydrated} />
+          <ResultsTable
+            rows={rows}
+            scale={scale}
+            selected={target}
+            onSelect={(row) => setSelected(plottable.indexOf(row))}
+            canSelect={hydrated}
+          />
         )}
         {Object.keys(usedCurves).length ? (
           <ul className="text-sm text-muted">
@@ -373,7 +481,11 @@ function ResultsTable({
             <th scope="col">Median {scale === "bcad" ? "(BC/AD)" : "(cal BP)"}</th>
             <th scope="col">68.3 % range</th>
             <th scope="col">95.4 % range</th>
-            {canSelect ? <th scope="col"><span className="sr-only">Plot</span></th> : null}
+            {canSelect ? (
+              <th scope="col">
+                <span className="sr-only">Plot</span>
+              </th>
+            ) : null}
           </tr>
         </thead>
         <tbody>
@@ -381,7 +493,9 @@ function ResultsTable({
             <tr key={`${row.line}-${row.id}`} className={row === selected ? "bg-ice-50" : undefined}>
               <td>{row.id}</td>
               <td className="whitespace-nowrap">
-                {row.item ? `${groupThousands(Math.round(row.item.c14_age))} ± ${groupThousands(Math.round(row.item.c14_error))}` : "—"}
+                {row.item
+                  ? `${groupThousands(Math.round(row.item.c14_age))} ± ${groupThousands(Math.round(row.item.c14_error))}`
+                  : "—"}
               </td>
               <td className="whitespace-nowrap">
                 {row.item ? row.item.curve : "—"}
@@ -396,7 +510,12 @@ function ResultsTable({
                   <td>{ranges(row.result.hpd95)}</td>
                   {canSelect ? (
                     <td>
-                      <button type="button" className="btn-quiet px-2 py-0.5 text-sm" aria-pressed={row === selected} onClick={() => onSelect(row)}>
+                      <button
+                        type="button"
+                        className="btn-quiet px-2 py-0.5 text-sm"
+                        aria-pressed={row === selected}
+                        onClick={() => onSelect(row)}
+                      >
                         Plot
                       </button>
                     </td>
@@ -421,11 +540,11 @@ function ApiHelp() {
       <h2 id="api-heading">From a script</h2>
       <p>
         <code>POST /api/v1/calibrate</code> takes JSON and needs no sign-in. Each item has an <code>id</code>,{" "}
-        <code>c14_age</code> and <code>c14_error</code> (¹⁴C yr BP, 1σ), a <code>curve</code> (<code>intcal20</code> when
-        left out) and, for marine curves, <code>delta_r</code> and <code>delta_r_error</code>. Add{" "}
-        <code>"density": true</code> for each calendar density (<code>start_cal_bp</code> is its youngest year, one value
-        per year). Ranges run from the oldest; <code>from</code> is the older bound, <code>to</code> the younger, in cal BP.
-        At most {groupThousands(MAX_CALIBRATION_ITEMS)} items per request; requests are rate-limited per address.
+        <code>c14_age</code> and <code>c14_error</code> (¹⁴C yr BP, 1σ), a <code>curve</code> (<code>intcal20</code> when left
+        out) and, for marine curves, <code>delta_r</code> and <code>delta_r_error</code>. Add <code>"density": true</code> for
+        each calendar density (<code>start_cal_bp</code> is its youngest year, one value per year). Ranges run from the oldest;{" "}
+        <code>from</code> is the older bound, <code>to</code> the younger, in cal BP. At most{" "}
+        {groupThousands(MAX_CALIBRATION_ITEMS)} items per request; requests are rate-limited per address.
       </p>
       <pre className="overflow-x-auto rounded bg-ice-50 p-3 text-xs">{`curl -s -X POST https://<this server>/api/v1/calibrate \\
   -H 'Content-Type: application/json' \\
@@ -438,8 +557,7 @@ function ApiHelp() {
             {"id":"m1", …}]}`}</pre>
       <p>
         An item that cannot be calibrated (a negative error, an unknown curve, an age beyond the curve) comes back as{" "}
-        <code>{`{"id": …, "error": "…"}`}</code> in its place; a malformed request is a 400 with{" "}
-        <code>{`{"error": "…"}`}</code>.
+        <code>{`{"id": …, "error": "…"}`}</code> in its place; a malformed request is a 400 with <code>{`{"error": "…"}`}</code>.
       </p>
     </section>
   );

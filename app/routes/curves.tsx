@@ -105,12 +105,21 @@ export async function action({ request }: Route.ActionArgs) {
       try {
         text = new TextDecoder("utf-8", { fatal: true }).decode(await v.file.arrayBuffer());
       } catch {
-        return data({ result: submission.reply({ fieldErrors: { file: ["The file is not UTF-8 text; save it as UTF-8 CSV."] } }) }, { status: 400 });
+        return data(
+          { result: submission.reply({ fieldErrors: { file: ["The file is not UTF-8 text; save it as UTF-8 CSV."] } }) },
+          { status: 400 },
+        );
       }
       const existing = listCurves(db).find((c) => c.name === v.name && c.version === v.version);
       if (existing) {
         return data(
-          { result: submission.reply({ fieldErrors: { version: [`${existing.displayName} version ${v.version} is already stored; give this file another version.`] } }) },
+          {
+            result: submission.reply({
+              fieldErrors: {
+                version: [`${existing.displayName} version ${v.version} is already stored; give this file another version.`],
+              },
+            }),
+          },
           { status: 400 },
         );
       }
@@ -118,7 +127,15 @@ export async function action({ request }: Route.ActionArgs) {
       try {
         added = addCurveVersion(
           db,
-          { name: v.name, displayName: v.displayName, kind: v.kind, version: v.version, citation: v.citation, doi: v.doi, maxStep: v.maxStep },
+          {
+            name: v.name,
+            displayName: v.displayName,
+            kind: v.kind,
+            version: v.version,
+            citation: v.citation,
+            doi: v.doi,
+            maxStep: v.maxStep,
+          },
           text,
           actor,
         );
@@ -150,7 +167,10 @@ export async function action({ request }: Route.ActionArgs) {
       const result = activateCurveVersion(db, curveId, actor);
       if (!result) notFound("No such curve version.");
       if (!result.changed) {
-        return redirectWithFlash("/curves", { kind: "info", message: `${result.curve.displayName} ${result.curve.version} is already the active version.` });
+        return redirectWithFlash("/curves", {
+          kind: "info",
+          message: `${result.curve.displayName} ${result.curve.version} is already the active version.`,
+        });
       }
       const job = startRecalibration(db, {
         curveName: result.curve.name,
@@ -191,9 +211,9 @@ export default function CurvesPage({ loaderData, actionData }: Route.ComponentPr
       <header className="max-w-3xl">
         <h1>Calibration curves</h1>
         <p className="mt-3 text-lg">
-          Every radiocarbon determination is calibrated on the active version of its curve. Adding a version or choosing
-          another recalibrates the determinations on that curve; their earlier results are kept, labelled with the curve
-          version they came from.
+          Every radiocarbon determination is calibrated on the active version of its curve. Adding a version or choosing another
+          recalibrates the determinations on that curve; their earlier results are kept, labelled with the curve version they came
+          from.
         </p>
       </header>
 
@@ -219,7 +239,9 @@ export default function CurvesPage({ loaderData, actionData }: Route.ComponentPr
                 <th scope="col">Curve</th>
                 <th scope="col">Kind</th>
                 <th scope="col">Version</th>
-                <th scope="col" className="text-right">Rows</th>
+                <th scope="col" className="text-right">
+                  Rows
+                </th>
                 <th scope="col">Range (cal BP)</th>
                 <th scope="col">Citation</th>
                 <th scope="col">Active</th>
@@ -272,10 +294,10 @@ export default function CurvesPage({ loaderData, actionData }: Route.ComponentPr
       <section aria-labelledby="add-heading" className="max-w-3xl space-y-3">
         <h2 id="add-heading">Add a curve or a new version</h2>
         <p className="text-muted">
-          A CSV file with a header naming <code>cal_bp</code>, <code>c14_age</code> and <code>c14_sigma</code> (other
-          columns are ignored), the layout of the bundled curves. The file must have rising calendar ages, positive
-          errors and no gap larger than the step you give; a file under the name of a bundled curve must reproduce its
-          published values. Up to {formatBytes(maxBytes)}.
+          A CSV file with a header naming <code>cal_bp</code>, <code>c14_age</code> and <code>c14_sigma</code> (other columns are
+          ignored), the layout of the bundled curves. The file must have rising calendar ages, positive errors and no gap larger
+          than the step you give; a file under the name of a bundled curve must reproduce its published values. Up to{" "}
+          {formatBytes(maxBytes)}.
         </p>
         <Form method="post" encType="multipart/form-data" className="card space-y-4" {...getFormProps(form)}>
           <input type="hidden" name="intent" value="import" />
@@ -288,11 +310,31 @@ export default function CurvesPage({ loaderData, actionData }: Route.ComponentPr
             <input {...getInputProps(fields.file, { type: "file" })} accept=".csv,text/csv" className="input" />
           </Field>
           <div className="grid gap-4 sm:grid-cols-2">
-            <Field label="Short name (used in uploads and the API)" id={fields.name.id} errors={fields.name.errors} errorId={fields.name.errorId}>
-              <input {...getInputProps(fields.name, { type: "text" })} className="input" placeholder="shcal20" autoComplete="off" />
+            <Field
+              label="Short name (used in uploads and the API)"
+              id={fields.name.id}
+              errors={fields.name.errors}
+              errorId={fields.name.errorId}
+            >
+              <input
+                {...getInputProps(fields.name, { type: "text" })}
+                className="input"
+                placeholder="shcal20"
+                autoComplete="off"
+              />
             </Field>
-            <Field label="Display name" id={fields.displayName.id} errors={fields.displayName.errors} errorId={fields.displayName.errorId}>
-              <input {...getInputProps(fields.displayName, { type: "text" })} className="input" placeholder="SHCal20" autoComplete="off" />
+            <Field
+              label="Display name"
+              id={fields.displayName.id}
+              errors={fields.displayName.errors}
+              errorId={fields.displayName.errorId}
+            >
+              <input
+                {...getInputProps(fields.displayName, { type: "text" })}
+                className="input"
+                placeholder="SHCal20"
+                autoComplete="off"
+              />
             </Field>
             <Field label="Kind" id={fields.kind.id} errors={fields.kind.errors} errorId={fields.kind.errorId}>
               <select {...getSelectProps(fields.kind)} className="input">
@@ -301,13 +343,28 @@ export default function CurvesPage({ loaderData, actionData }: Route.ComponentPr
               </select>
             </Field>
             <Field label="Version" id={fields.version.id} errors={fields.version.errors} errorId={fields.version.errorId}>
-              <input {...getInputProps(fields.version, { type: "text" })} className="input" placeholder="2020" autoComplete="off" />
+              <input
+                {...getInputProps(fields.version, { type: "text" })}
+                className="input"
+                placeholder="2020"
+                autoComplete="off"
+              />
             </Field>
-            <Field label="Largest step between rows, years" id={fields.maxStep.id} errors={fields.maxStep.errors} errorId={fields.maxStep.errorId}>
+            <Field
+              label="Largest step between rows, years"
+              id={fields.maxStep.id}
+              errors={fields.maxStep.errors}
+              errorId={fields.maxStep.errorId}
+            >
               <input {...getInputProps(fields.maxStep, { type: "number" })} className="input" />
             </Field>
             <Field label="DOI (optional)" id={fields.doi.id} errors={fields.doi.errors} errorId={fields.doi.errorId}>
-              <input {...getInputProps(fields.doi, { type: "text" })} className="input" placeholder="10.99999/curve.1" autoComplete="off" />
+              <input
+                {...getInputProps(fields.doi, { type: "text" })}
+                className="input"
+                placeholder="10.99999/curve.1"
+                autoComplete="off"
+              />
             </Field>
           </div>
           <Field label="Citation" id={fields.citation.id} errors={fields.citation.errors} errorId={fields.citation.errorId}>
@@ -365,7 +422,11 @@ function JobProgress({ job }: { job: JobView }) {
     // eslint-disable-next-line react-hooks/exhaustive-deps
   }, [finished, job.id]);
   useEffect(() => {
-    if (fetcher.data?.id === job.id && (fetcher.data.status === "done" || fetcher.data.status === "failed") && job.status !== fetcher.data.status) {
+    if (
+      fetcher.data?.id === job.id &&
+      (fetcher.data.status === "done" || fetcher.data.status === "failed") &&
+      job.status !== fetcher.data.status
+    ) {
       void revalidator.revalidate();
     }
     // eslint-disable-next-line react-hooks/exhaustive-deps

@@ -36,20 +36,20 @@ export default function DeterminationPage({ loaderData }: Route.ComponentProps) 
     <article>
       <nav aria-label="Breadcrumb" className="text-sm text-muted">
         <Link to="/explore">Explore</Link> <span aria-hidden="true">/</span>{" "}
-        <Link to={`/sites/${detail.site.id}`}>{detail.site.name}</Link> <span aria-hidden="true">/</span>{" "}
-        <span>{d.labCode}</span>
+        <Link to={`/sites/${detail.site.id}`}>{detail.site.name}</Link> <span aria-hidden="true">/</span> <span>{d.labCode}</span>
       </nav>
       <header className="mt-2 flex flex-wrap items-baseline gap-x-6 gap-y-2">
         <h1>{d.labCode}</h1>
-        <p className="text-xl" data-testid="measured-age">{formatMeasuredAge(d)}</p>
+        <p className="text-xl" data-testid="measured-age">
+          {formatMeasuredAge(d)}
+        </p>
         <GradeBadge grade={d.grade} />
         <span className="rounded border border-rule px-2 text-sm">{STATUS_LABELS[d.status]}</span>
       </header>
       <p className="mt-1 text-muted">
         {d.method}
         {d.signal ? ` (${d.signal})` : ""} on {detail.sample.material} from{" "}
-        <Link to={`/sites/${detail.site.id}`}>{detail.site.name}</Link>, {CONSTRAINT_KIND_LABELS[d.constraintKind]}{" "}
-        constraint
+        <Link to={`/sites/${detail.site.id}`}>{detail.site.name}</Link>, {CONSTRAINT_KIND_LABELS[d.constraintKind]} constraint
       </p>
 
       <div className="mt-8 grid gap-6 lg:grid-cols-2">
@@ -147,7 +147,10 @@ function MeasurementFields({ d }: { d: Detail["determination"] }) {
         items={[
           ...common,
           ["Age", formatMeasuredAge(d)],
-          ["¹⁴C age as stored", d.isLimit ? `> ${showNumber(d.c14AgeYr, "¹⁴C yr BP") ?? "—"}` : showWithError(d.c14AgeYr, d.c14ErrorYr, "¹⁴C yr BP")],
+          [
+            "¹⁴C age as stored",
+            d.isLimit ? `> ${showNumber(d.c14AgeYr, "¹⁴C yr BP") ?? "—"}` : showWithError(d.c14AgeYr, d.c14ErrorYr, "¹⁴C yr BP"),
+          ],
           ["F¹⁴C", showWithError(d.f14c, d.f14cError)],
           ["δ¹³C", showNumber(d.d13cPermil, "‰")],
           ["δ¹³C-normalised", d.ageNormalised ? "yes (conventional age)" : "no (normalised on calibration)"],
@@ -186,9 +189,7 @@ function MeasurementFields({ d }: { d: Detail["determination"] }) {
     );
   }
   return (
-    <DetailList
-      items={[...common, ["¹⁰Be concentration", showWithError(d.be10AtomsPerG, d.be10ErrorAtomsPerG, "atoms/g")]]}
-    />
+    <DetailList items={[...common, ["¹⁰Be concentration", showWithError(d.be10AtomsPerG, d.be10ErrorAtomsPerG, "atoms/g")]]} />
   );
 }
 
@@ -350,8 +351,12 @@ function SiblingTable({ rows, caption }: { rows: Detail["sameSample"]; caption: 
           <th scope="col">Lab code</th>
           <th scope="col">Sample</th>
           <th scope="col">Material</th>
-          <th scope="col" className="text-right">Measured age</th>
-          <th scope="col" className="text-right">Median (cal BP)</th>
+          <th scope="col" className="text-right">
+            Measured age
+          </th>
+          <th scope="col" className="text-right">
+            Median (cal BP)
+          </th>
           <th scope="col">Grade</th>
         </tr>
       </thead>
@@ -442,7 +447,9 @@ function HistorySection({ history }: { history: DeterminationDetail["history"] }
                         <td className="pr-2">
                           <del className="text-muted">{showValue(c.before)}</del>
                         </td>
-                        <td aria-hidden="true" className="pr-2 text-muted">→</td>
+                        <td aria-hidden="true" className="pr-2 text-muted">
+                          →
+                        </td>
                         <td>
                           <ins className="no-underline">{showValue(c.after)}</ins>
                         </td>

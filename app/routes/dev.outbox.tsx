@@ -4,7 +4,10 @@ import { readFakeOutbox } from "#app/mail/outbox.server.ts";
 import { usesMailFake } from "#app/utils/env.server.ts";
 import { notFound } from "#app/utils/http.server.ts";
 
-export const meta: Route.MetaFunction = () => [{ title: "Development outbox — Thawline" }, { name: "robots", content: "noindex" }];
+export const meta: Route.MetaFunction = () => [
+  { title: "Development outbox — Thawline" },
+  { name: "robots", content: "noindex" },
+];
 
 export async function loader(_: Route.LoaderArgs) {
   // Exists only while mail goes to the local fake (development, demo, tests); with a real mail
@@ -28,8 +31,8 @@ export default function DevOutbox({ loaderData }: Route.ComponentProps) {
         <p className="text-sm tracking-widest text-muted uppercase">Development only</p>
         <h1 className="mt-1">Outbox</h1>
         <p className="mt-2 max-w-3xl text-muted">
-          This installation does not deliver mail: every message is kept by the local mail fake and listed here,
-          newest first. This page disappears once a real mail service is configured.
+          This installation does not deliver mail: every message is kept by the local mail fake and listed here, newest first.
+          This page disappears once a real mail service is configured.
         </p>
       </header>
       {problem ? (
@@ -54,7 +57,10 @@ export default function DevOutbox({ loaderData }: Route.ComponentProps) {
             <p className="text-sm text-muted">To: {m.to.join(", ")}</p>
             {m.code ? (
               <p className="mt-3">
-                Code: <span className="font-mono text-2xl font-bold tracking-[0.2em]" data-testid="outbox-code">{m.code}</span>
+                Code:{" "}
+                <span className="font-mono text-2xl font-bold tracking-[0.2em]" data-testid="outbox-code">
+                  {m.code}
+                </span>
               </p>
             ) : null}
             {m.links.length ? (
@@ -69,7 +75,9 @@ export default function DevOutbox({ loaderData }: Route.ComponentProps) {
             <details className="mt-3" open={i === 0}>
               <summary className="cursor-pointer text-sm font-semibold text-muted">Text and HTML versions</summary>
               <div className="mt-3 grid gap-4 lg:grid-cols-2">
-                <pre className="overflow-x-auto rounded bg-ice-50 p-3 text-sm whitespace-pre-wrap">{m.text ?? "(no text version)"}</pre>
+                <pre className="overflow-x-auto rounded bg-ice-50 p-3 text-sm whitespace-pre-wrap">
+                  {m.text ?? "(no text version)"}
+                </pre>
                 {m.html ? (
                   <iframe
                     title={`HTML version of “${m.subject}”`}

@@ -5,12 +5,7 @@ import { requireUser } from "#app/auth/session.server.ts";
 import { ErrorView } from "#app/components/error-view.tsx";
 import { GradeBadge } from "#app/components/grade-badge.tsx";
 import { getDb } from "#app/db/client.server.ts";
-import {
-  exploreDeterminations,
-  exploreFilterOptions,
-  parseExploreFilters,
-  type ExploreRow,
-} from "#app/models/explore.server.ts";
+import { exploreDeterminations, exploreFilterOptions, parseExploreFilters, type ExploreRow } from "#app/models/explore.server.ts";
 import { formatCal, formatCalRange, formatMeasuredAge } from "#app/utils/age-format.ts";
 import { defaultDirection, exploreSearch, type ExploreSort } from "#app/utils/explore-filters.ts";
 import { CONSTRAINT_KIND_LABELS, STATUS_LABELS } from "#app/utils/labels.ts";
@@ -68,17 +63,31 @@ export default function Explore({ loaderData }: Route.ComponentProps) {
               </caption>
               <thead>
                 <tr>
-                  <SortHeader filters={filters} sort="labCode">Lab code</SortHeader>
-                  <SortHeader filters={filters} sort="site">Site</SortHeader>
+                  <SortHeader filters={filters} sort="labCode">
+                    Lab code
+                  </SortHeader>
+                  <SortHeader filters={filters} sort="site">
+                    Site
+                  </SortHeader>
                   <th scope="col">Material</th>
                   <th scope="col">Method</th>
-                  <SortHeader filters={filters} sort="age" numeric>Measured age</SortHeader>
-                  <SortHeader filters={filters} sort="cal" numeric>Median (cal BP)</SortHeader>
-                  <th scope="col" className="text-right">95.4 % range (cal BP)</th>
+                  <SortHeader filters={filters} sort="age" numeric>
+                    Measured age
+                  </SortHeader>
+                  <SortHeader filters={filters} sort="cal" numeric>
+                    Median (cal BP)
+                  </SortHeader>
+                  <th scope="col" className="text-right">
+                    95.4 % range (cal BP)
+                  </th>
                   <th scope="col">Constraint</th>
-                  <SortHeader filters={filters} sort="grade">Grade</SortHeader>
+                  <SortHeader filters={filters} sort="grade">
+                    Grade
+                  </SortHeader>
                   <th scope="col">Status</th>
-                  <SortHeader filters={filters} sort="created">Added</SortHeader>
+                  <SortHeader filters={filters} sort="created">
+                    Added
+                  </SortHeader>
                 </tr>
               </thead>
               <tbody>
@@ -171,7 +180,8 @@ function SortHeader({
           {active ? (dir === "asc" ? "▲" : "▼") : "↕"}
         </span>
         <span className="sr-only">
-          {active ? `, sorted ${dir === "asc" ? "ascending" : "descending"}; ` : ", "}sort {nextDir === "asc" ? "ascending" : "descending"}
+          {active ? `, sorted ${dir === "asc" ? "ascending" : "descending"}; ` : ", "}sort{" "}
+          {nextDir === "asc" ? "ascending" : "descending"}
         </span>
       </Link>
     </th>
@@ -217,7 +227,11 @@ function Pagination({ filters, page, pageCount }: { filters: Filters; page: numb
                   {p}
                 </span>
               ) : (
-                <Link to={link(p)} className="inline-block min-w-9 rounded px-2 py-1 text-center hover:bg-ice-50" aria-label={`Page ${p}`}>
+                <Link
+                  to={link(p)}
+                  className="inline-block min-w-9 rounded px-2 py-1 text-center hover:bg-ice-50"
+                  aria-label={`Page ${p}`}
+                >
                   {p}
                 </Link>
               )}
@@ -281,7 +295,14 @@ function FilterForm({
     >
       <div className="field sm:col-span-2">
         <label htmlFor="f-q">Lab code or site name</label>
-        <input id="f-q" name="q" type="search" className="input" defaultValue={str(filters.q)} placeholder="part of a lab code or site name" />
+        <input
+          id="f-q"
+          name="q"
+          type="search"
+          className="input"
+          defaultValue={str(filters.q)}
+          placeholder="part of a lab code or site name"
+        />
       </div>
       <div className="field">
         <label htmlFor="f-method">Method</label>
@@ -355,21 +376,61 @@ function FilterForm({
       <fieldset className="sm:col-span-1 lg:col-span-2">
         <legend className="label">Measured age, years (¹⁴C BP or luminescence)</legend>
         <div className="mt-1 flex items-center gap-2">
-          <label htmlFor="f-age-from" className="sr-only">Measured age from</label>
-          <input id="f-age-from" name="ageFrom" type="number" inputMode="numeric" className="input w-full" defaultValue={str(filters.ageFrom)} placeholder="from" />
+          <label htmlFor="f-age-from" className="sr-only">
+            Measured age from
+          </label>
+          <input
+            id="f-age-from"
+            name="ageFrom"
+            type="number"
+            inputMode="numeric"
+            className="input w-full"
+            defaultValue={str(filters.ageFrom)}
+            placeholder="from"
+          />
           <span aria-hidden="true">–</span>
-          <label htmlFor="f-age-to" className="sr-only">Measured age to</label>
-          <input id="f-age-to" name="ageTo" type="number" inputMode="numeric" className="input w-full" defaultValue={str(filters.ageTo)} placeholder="to" />
+          <label htmlFor="f-age-to" className="sr-only">
+            Measured age to
+          </label>
+          <input
+            id="f-age-to"
+            name="ageTo"
+            type="number"
+            inputMode="numeric"
+            className="input w-full"
+            defaultValue={str(filters.ageTo)}
+            placeholder="to"
+          />
         </div>
       </fieldset>
       <fieldset className="sm:col-span-1 lg:col-span-2">
         <legend className="label">Calibrated median, cal BP</legend>
         <div className="mt-1 flex items-center gap-2">
-          <label htmlFor="f-cal-from" className="sr-only">Calibrated median from (cal BP)</label>
-          <input id="f-cal-from" name="calFrom" type="number" inputMode="numeric" className="input w-full" defaultValue={str(filters.calFrom)} placeholder="from" />
+          <label htmlFor="f-cal-from" className="sr-only">
+            Calibrated median from (cal BP)
+          </label>
+          <input
+            id="f-cal-from"
+            name="calFrom"
+            type="number"
+            inputMode="numeric"
+            className="input w-full"
+            defaultValue={str(filters.calFrom)}
+            placeholder="from"
+          />
           <span aria-hidden="true">–</span>
-          <label htmlFor="f-cal-to" className="sr-only">Calibrated median to (cal BP)</label>
-          <input id="f-cal-to" name="calTo" type="number" inputMode="numeric" className="input w-full" defaultValue={str(filters.calTo)} placeholder="to" />
+          <label htmlFor="f-cal-to" className="sr-only">
+            Calibrated median to (cal BP)
+          </label>
+          <input
+            id="f-cal-to"
+            name="calTo"
+            type="number"
+            inputMode="numeric"
+            className="input w-full"
+            defaultValue={str(filters.calTo)}
+            placeholder="to"
+          />
         </div>
       </fieldset>
       {/* Keep the chosen order when filters change; the page starts again at 1. */}

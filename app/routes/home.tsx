@@ -16,22 +16,26 @@ export default function Home({ loaderData }: Route.ComponentProps) {
     <div className="grid gap-12 lg:grid-cols-[3fr_2fr]">
       <section>
         <p className="text-sm tracking-widest text-muted uppercase">A registry of ice-free dates</p>
-        <h1 className="mt-3 text-4xl leading-tight">
-          Where and when the land came out from under the ice.
-        </h1>
+        <h1 className="mt-3 text-4xl leading-tight">Where and when the land came out from under the ice.</h1>
         <p className="mt-6 max-w-2xl text-lg">
-          Thawline gathers radiocarbon and luminescence ages that constrain past ice sheets, calibrates
-          them on the current curves, checks them against one another, and lets expert reviewers grade
-          their reliability. Modellers take away filtered, versioned, citable sets of constraints.
+          Thawline gathers radiocarbon and luminescence ages that constrain past ice sheets, calibrates them on the current
+          curves, checks them against one another, and lets expert reviewers grade their reliability. Modellers take away
+          filtered, versioned, citable sets of constraints.
         </p>
         <div className="mt-8 flex flex-wrap gap-3">
           {signedIn ? (
             <>
-              <Link to="/explore" className="btn">Explore determinations</Link>
-              <Link to="/map" className="btn-quiet">Open the map</Link>
+              <Link to="/explore" className="btn">
+                Explore determinations
+              </Link>
+              <Link to="/map" className="btn-quiet">
+                Open the map
+              </Link>
             </>
           ) : (
-            <Link to="/sign-in" className="btn">Sign in</Link>
+            <Link to="/sign-in" className="btn">
+              Sign in
+            </Link>
           )}
         </div>
       </section>

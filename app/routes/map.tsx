@@ -43,7 +43,10 @@ export default function MapPage({ loaderData }: Route.ComponentProps) {
   const ageDomain = useMemo<[number, number]>(() => {
     const siteAges = (sites ?? []).flatMap((s) => (s.med != null ? [s.med] : [])).sort((a, b) => a - b);
     const trimmed = siteAges.length
-      ? [siteAges[Math.floor(siteAges.length * 0.02)]!, siteAges[Math.min(siteAges.length - 1, Math.floor(siteAges.length * 0.98))]!]
+      ? [
+          siteAges[Math.floor(siteAges.length * 0.02)]!,
+          siteAges[Math.min(siteAges.length - 1, Math.floor(siteAges.length * 0.98))]!,
+        ]
       : [];
     const ages = [...trimmed, ...(reconstruction?.ages ?? [])];
     if (ages.length === 0) return [0, 15000];
@@ -113,11 +116,23 @@ export default function MapPage({ loaderData }: Route.ComponentProps) {
             <legend className="label px-1">Colour sites by</legend>
             <div className="mt-1 space-y-1">
               <label className="flex items-center gap-2">
-                <input type="radio" name="colourBy" value="age" checked={colourBy === "age"} onChange={() => setColourBy("age")} />
+                <input
+                  type="radio"
+                  name="colourBy"
+                  value="age"
+                  checked={colourBy === "age"}
+                  onChange={() => setColourBy("age")}
+                />
                 Deglaciation age (median of minimum-limiting and direct dates)
               </label>
               <label className="flex items-center gap-2">
-                <input type="radio" name="colourBy" value="grade" checked={colourBy === "grade"} onChange={() => setColourBy("grade")} />
+                <input
+                  type="radio"
+                  name="colourBy"
+                  value="grade"
+                  checked={colourBy === "grade"}
+                  onChange={() => setColourBy("grade")}
+                />
                 Best reliability grade
               </label>
             </div>
@@ -126,7 +141,10 @@ export default function MapPage({ loaderData }: Route.ComponentProps) {
 
           <div className="card space-y-3">
             <label htmlFor="time-slider" className="label block">
-              Time: <output htmlFor="time-slider" className="font-semibold text-ink">{formatYears(sliderTime)} cal BP</output>
+              Time:{" "}
+              <output htmlFor="time-slider" className="font-semibold text-ink">
+                {formatYears(sliderTime)} cal BP
+              </output>
             </label>
             <input
               id="time-slider"
@@ -147,8 +165,8 @@ export default function MapPage({ loaderData }: Route.ComponentProps) {
             <p className="text-sm">
               {sites ? (
                 <>
-                  <strong>{iceFreeCount.toLocaleString("en")}</strong> of {sites.length.toLocaleString("en")} sites dated ice-free by
-                  then (filled); the rest still under ice (hollow).
+                  <strong>{iceFreeCount.toLocaleString("en")}</strong> of {sites.length.toLocaleString("en")} sites dated ice-free
+                  by then (filled); the rest still under ice (hollow).
                 </>
               ) : null}
             </p>
@@ -168,8 +186,11 @@ export default function MapPage({ loaderData }: Route.ComponentProps) {
                 </label>
                 <p className="mt-1 text-sm text-muted">
                   Demo reconstruction “{reconstruction.name}”: {reconstruction.ages.length} margins from{" "}
-                  {formatYears(reconstruction.ages[reconstruction.ages.length - 1] ?? 0)} to {formatYears(reconstruction.ages[0] ?? 0)} cal BP.
-                  {highlightAge != null ? ` Highlighted: the margin at ${formatYears(highlightAge)} cal BP.` : " Move the time slider to highlight a margin."}
+                  {formatYears(reconstruction.ages[reconstruction.ages.length - 1] ?? 0)} to{" "}
+                  {formatYears(reconstruction.ages[0] ?? 0)} cal BP.
+                  {highlightAge != null
+                    ? ` Highlighted: the margin at ${formatYears(highlightAge)} cal BP.`
+                    : " Move the time slider to highlight a margin."}
                 </p>
               </>
             ) : (

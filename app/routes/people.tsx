@@ -89,7 +89,10 @@ export async function action({ request }: Route.ActionArgs) {
           message: `${name} is invited, but the invitation could not be sent (${error instanceof Error ? error.message : "mail failed"}). They can still sign in at /sign-in.`,
         });
       }
-      return redirectWithFlash("/people", { kind: "success", message: `${name} is invited; an invitation is on its way to ${email}.` });
+      return redirectWithFlash("/people", {
+        kind: "success",
+        message: `${name} is invited; an invitation is on its way to ${email}.`,
+      });
     }
     case "set-roles": {
       const submission = parseWithZod(formData, { schema: RolesSchema });
@@ -99,14 +102,20 @@ export async function action({ request }: Route.ActionArgs) {
       if (!person) return data({ intent, result: undefined, rowError: { userId, message: "No such person." } }, { status: 404 });
       if (userId === me.id && !roles.includes("editor")) {
         return data(
-          { intent, result: undefined, rowError: { userId, message: "You cannot remove your own editor role; ask another editor." } },
+          {
+            intent,
+            result: undefined,
+            rowError: { userId, message: "You cannot remove your own editor role; ask another editor." },
+          },
           { status: 400 },
         );
       }
       const changed = setRoles(db, userId, roles, actor);
       return redirectWithFlash("/people", {
         kind: "success",
-        message: changed ? `${person.name}'s roles are now: ${roles.length ? roles.join(", ") : "none"}.` : `${person.name}'s roles are unchanged.`,
+        message: changed
+          ? `${person.name}'s roles are now: ${roles.length ? roles.join(", ") : "none"}.`
+          : `${person.name}'s roles are unchanged.`,
       });
     }
     case "deactivate":
@@ -117,7 +126,10 @@ export async function action({ request }: Route.ActionArgs) {
       const person = getPerson(db, userId);
       if (!person) return data({ intent, result: undefined, rowError: { userId, message: "No such person." } }, { status: 404 });
       if (userId === me.id) {
-        return data({ intent, result: undefined, rowError: { userId, message: "You cannot deactivate yourself." } }, { status: 400 });
+        return data(
+          { intent, result: undefined, rowError: { userId, message: "You cannot deactivate yourself." } },
+          { status: 400 },
+        );
       }
       const active = intent === "reactivate";
       setActive(db, userId, active, actor);
@@ -142,8 +154,8 @@ export default function People({ loaderData, actionData }: Route.ComponentProps)
       <header>
         <h1>People</h1>
         <p className="mt-2 max-w-3xl text-muted">
-          Everyone who may sign in, with their roles. {active} active, {people.length - active} deactivated. A
-          deactivated person's sessions end at once and their API tokens stop working.
+          Everyone who may sign in, with their roles. {active} active, {people.length - active} deactivated. A deactivated
+          person's sessions end at once and their API tokens stop working.
         </p>
       </header>
 

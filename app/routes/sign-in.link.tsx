@@ -52,8 +52,8 @@ export default function FinishSignIn({ loaderData, actionData }: Route.Component
         </>
       ) : (
         <p className="mt-3">
-          This link works only in the browser where the code was asked for, and only for ten minutes. Open it
-          there, type the code from the message instead, or <Link to="/sign-in">ask for a new code</Link>.
+          This link works only in the browser where the code was asked for, and only for ten minutes. Open it there, type the code
+          from the message instead, or <Link to="/sign-in">ask for a new code</Link>.
         </p>
       )}
     </section>

@@ -5,14 +5,7 @@ import { z } from "zod";
 import type { Route } from "./+types/sign-in";
 import { ErrorView } from "#app/components/error-view.tsx";
 import { getOptionalUser } from "#app/auth/session.server.ts";
-import {
-  CODE_MINUTES,
-  completeSignIn,
-  requestCode,
-  restartSignIn,
-  safeRedirect,
-  signInState,
-} from "#app/auth/sign-in.server.ts";
+import { CODE_MINUTES, completeSignIn, requestCode, restartSignIn, safeRedirect, signInState } from "#app/auth/sign-in.server.ts";
 import { usesMailFake } from "#app/utils/env.server.ts";
 import { FieldErrors } from "#app/components/ui/field-errors.tsx";
 
@@ -85,7 +78,12 @@ export default function SignIn({ loaderData, actionData }: Route.ComponentProps)
   return (
     <div className="mx-auto max-w-md">
       {pendingEmail ? (
-        <CodeStep email={pendingEmail} minutes={codeMinutes} error={error} lastResult={actionData?.intent === "verify" ? actionData.result : undefined} />
+        <CodeStep
+          email={pendingEmail}
+          minutes={codeMinutes}
+          error={error}
+          lastResult={actionData?.intent === "verify" ? actionData.result : undefined}
+        />
       ) : (
         <EmailStep
           redirectTo={redirectTo}
@@ -96,8 +94,7 @@ export default function SignIn({ loaderData, actionData }: Route.ComponentProps)
       )}
       {showOutbox ? (
         <p className="mt-6 rounded border border-ice-200 bg-ice-50 px-4 py-3 text-sm">
-          This installation does not deliver mail: messages are kept in the{" "}
-          <a href="/dev/outbox">development outbox</a>.
+          This installation does not deliver mail: messages are kept in the <a href="/dev/outbox">development outbox</a>.
         </p>
       ) : null}
     </div>
@@ -129,8 +126,8 @@ function EmailStep(props: { redirectTo: string; suggestedEmail: string; error: s
     <section className="card">
       <h1>Sign in</h1>
       <p className="mt-3 text-muted">
-        Thawline has no passwords. Enter your address and we will e-mail you a one-time code and a link. Only
-        invited people can sign in.
+        Thawline has no passwords. Enter your address and we will e-mail you a one-time code and a link. Only invited people can
+        sign in.
       </p>
       <ErrorNote message={props.error} />
       <Form method="post" {...getFormProps(form)} className="mt-6 grid gap-4">
@@ -138,13 +135,7 @@ function EmailStep(props: { redirectTo: string; suggestedEmail: string; error: s
         <input type="hidden" name="redirectTo" value={props.redirectTo} />
         <div className="field">
           <label htmlFor={fields.email.id}>E-mail address</label>
-          <input
-            {...getInputProps(fields.email, { type: "email" })}
-            className="input"
-            autoComplete="email"
-            autoFocus
-            required
-          />
+          <input {...getInputProps(fields.email, { type: "email" })} className="input" autoComplete="email" autoFocus required />
           <FieldErrors id={fields.email.errorId} errors={fields.email.errors} />
         </div>
         {/* Honeypot: hidden from people and assistive technology; robots fill it in. */}
@@ -175,8 +166,8 @@ function CodeStep(props: { email: string; minutes: number; error: string | null;
     <section className="card">
       <h1>Check your mail</h1>
       <p className="mt-3">
-        If <strong>{props.email}</strong> belongs to someone invited to Thawline, a message with a sign-in code
-        and a link is on its way. Both work for {props.minutes} minutes, in this browser.
+        If <strong>{props.email}</strong> belongs to someone invited to Thawline, a message with a sign-in code and a link is on
+        its way. Both work for {props.minutes} minutes, in this browser.
       </p>
       <ErrorNote message={props.error} />
       <Form method="post" {...getFormProps(form)} className="mt-6 grid gap-4">

@@ -121,12 +121,20 @@ export default function SitePage({ loaderData }: Route.ComponentProps) {
                 <tr>
                   <th scope="col">Sample</th>
                   <th scope="col">Unit</th>
-                  <th scope="col" className="text-right">Depth (cm)</th>
+                  <th scope="col" className="text-right">
+                    Depth (cm)
+                  </th>
                   <th scope="col">Material</th>
                   <th scope="col">Lab code</th>
-                  <th scope="col" className="text-right">Measured age</th>
-                  <th scope="col" className="text-right">Median (cal BP)</th>
-                  <th scope="col" className="text-right">95.4 % range</th>
+                  <th scope="col" className="text-right">
+                    Measured age
+                  </th>
+                  <th scope="col" className="text-right">
+                    Median (cal BP)
+                  </th>
+                  <th scope="col" className="text-right">
+                    95.4 % range
+                  </th>
                   <th scope="col">Constraint</th>
                   <th scope="col">Grade</th>
                   <th scope="col">Status</th>
@@ -163,7 +171,9 @@ export default function SitePage({ loaderData }: Route.ComponentProps) {
                           <td className="text-right whitespace-nowrap">{formatMeasuredAge({ ...r, method: r.method ?? "" })}</td>
                           <td className="text-right">{formatCal(r.medianCalBp)}</td>
                           <td className="text-right whitespace-nowrap">{formatCalRange(r.hpd95FromBp, r.hpd95ToBp)}</td>
-                          <td className="whitespace-nowrap">{r.constraintKind ? CONSTRAINT_KIND_LABELS[r.constraintKind] : ""}</td>
+                          <td className="whitespace-nowrap">
+                            {r.constraintKind ? CONSTRAINT_KIND_LABELS[r.constraintKind] : ""}
+                          </td>
                           <td>
                             <GradeBadge grade={r.grade} />
                           </td>

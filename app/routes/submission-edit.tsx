@@ -69,13 +69,22 @@ export async function action({ request, params }: Route.ActionArgs) {
           return redirectWithFlash(
             `/determinations/${id}`,
             outcome.changed
-              ? { kind: "success", message: `${submission.value.row.lab_code} is saved as version ${outcome.version} and calibrated again.` }
+              ? {
+                  kind: "success",
+                  message: `${submission.value.row.lab_code} is saved as version ${outcome.version} and calibrated again.`,
+                }
               : { kind: "info", message: "Nothing was changed." },
           );
         } catch (e) {
           if (isDuplicateLabCode(e)) {
             return data(
-              { result: submission.reply({ fieldErrors: { lab_code: [`Lab code ${submission.value.row.lab_code} was stored by someone else a moment ago; check it.`] } }) },
+              {
+                result: submission.reply({
+                  fieldErrors: {
+                    lab_code: [`Lab code ${submission.value.row.lab_code} was stored by someone else a moment ago; check it.`],
+                  },
+                }),
+              },
               { status: 409 },
             );
           }

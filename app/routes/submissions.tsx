@@ -6,12 +6,7 @@ import { ErrorView } from "#app/components/error-view.tsx";
 import { GradeBadge } from "#app/components/grade-badge.tsx";
 import { getDb } from "#app/db/client.server.ts";
 import { STATUSES } from "#app/db/schema.ts";
-import {
-  listRowEditable,
-  listSubmissions,
-  SubmissionRefused,
-  withdrawSubmission,
-} from "#app/models/submissions.server.ts";
+import { listRowEditable, listSubmissions, SubmissionRefused, withdrawSubmission } from "#app/models/submissions.server.ts";
 import { formatCal, formatMeasuredAge } from "#app/utils/age-format.ts";
 import { redirectWithFlash } from "#app/utils/flash.server.ts";
 import { METHOD_LABELS, STATUS_LABELS } from "#app/utils/labels.ts";
@@ -124,7 +119,14 @@ export default function Submissions({ loaderData, actionData }: Route.ComponentP
       <Form method="get" className="card flex flex-wrap items-end gap-4" aria-label="Filter my submissions">
         <div className="field">
           <label htmlFor="q">Lab code or site</label>
-          <input id="q" name="q" type="search" defaultValue={filters.q ?? ""} className="input" placeholder="e.g. part of a lab code" />
+          <input
+            id="q"
+            name="q"
+            type="search"
+            defaultValue={filters.q ?? ""}
+            className="input"
+            placeholder="e.g. part of a lab code"
+          />
         </div>
         <div className="field">
           <label htmlFor="status">Status</label>
@@ -172,15 +174,21 @@ export default function Submissions({ loaderData, actionData }: Route.ComponentP
           </p>
           <div className={`overflow-x-auto ${busy ? "opacity-60" : ""}`} aria-busy={busy}>
             <table className="data-table" data-testid="submissions-table">
-              <caption className="sr-only">My determinations, page {result.page} of {result.pageCount}</caption>
+              <caption className="sr-only">
+                My determinations, page {result.page} of {result.pageCount}
+              </caption>
               <thead>
                 <tr>
                   <th scope="col">Lab code</th>
                   <th scope="col">Site</th>
                   <th scope="col">Sample</th>
                   <th scope="col">Method</th>
-                  <th scope="col" className="text-right">Measured age</th>
-                  <th scope="col" className="text-right">Median (cal BP)</th>
+                  <th scope="col" className="text-right">
+                    Measured age
+                  </th>
+                  <th scope="col" className="text-right">
+                    Median (cal BP)
+                  </th>
                   <th scope="col">Grade</th>
                   <th scope="col">Status</th>
                   <th scope="col">
@@ -203,7 +211,9 @@ export default function Submissions({ loaderData, actionData }: Route.ComponentP
                       <br />
                       <span className="text-sm text-muted">{row.material}</span>
                     </td>
-                    <td>{row.method === "luminescence" && row.signal ? `luminescence (${row.signal})` : METHOD_LABELS[row.method]}</td>
+                    <td>
+                      {row.method === "luminescence" && row.signal ? `luminescence (${row.signal})` : METHOD_LABELS[row.method]}
+                    </td>
                     <td className="text-right whitespace-nowrap">{formatMeasuredAge(row)}</td>
                     <td className="text-right whitespace-nowrap" title={row.calibrationError ?? undefined}>
                       {row.medianCalBp != null ? formatCal(row.medianCalBp) : <span className="text-muted">—</span>}

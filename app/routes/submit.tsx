@@ -47,9 +47,19 @@ export async function action({ request }: Route.ActionArgs) {
     });
   } catch (e) {
     if (isDuplicateLabCode(e)) {
-      return data({ result: submission.reply({ fieldErrors: { lab_code: [`Lab code ${submission.value.row.lab_code} was stored by someone else a moment ago; check it.`] } }) }, { status: 409 });
+      return data(
+        {
+          result: submission.reply({
+            fieldErrors: {
+              lab_code: [`Lab code ${submission.value.row.lab_code} was stored by someone else a moment ago; check it.`],
+            },
+          }),
+        },
+        { status: 409 },
+      );
     }
-    if (e instanceof SubmissionRefused) return data({ result: submission.reply({ formErrors: [e.message] }) }, { status: e.status });
+    if (e instanceof SubmissionRefused)
+      return data({ result: submission.reply({ formErrors: [e.message] }) }, { status: e.status });
     throw e;
   }
 }
@@ -67,8 +77,8 @@ export default function Submit({ loaderData, actionData }: Route.ComponentProps)
         <p className="text-sm tracking-widest text-muted uppercase">Contribute</p>
         <h1 className="mt-1">Submit a determination</h1>
         <p className="mt-2 max-w-3xl text-muted">
-          One laboratory measurement with its sample and site. It is checked and calibrated as you type; a reviewer grades
-          it later. For many at once, <Link to="/uploads">upload a spreadsheet</Link>. Everything you sent is under{" "}
+          One laboratory measurement with its sample and site. It is checked and calibrated as you type; a reviewer grades it
+          later. For many at once, <Link to="/uploads">upload a spreadsheet</Link>. Everything you sent is under{" "}
           <Link to="/submissions">My submissions</Link>.
         </p>
       </header>

@@ -18,9 +18,7 @@ import { env } from "#app/utils/env.server.ts";
 import { redirectWithFlash } from "#app/utils/flash.server.ts";
 import { badRequest, notFound } from "#app/utils/http.server.ts";
 
-export const meta: Route.MetaFunction = ({ data }) => [
-  { title: `${data?.batch.fileName ?? "Upload"} · Thawline` },
-];
+export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data?.batch.fileName ?? "Upload"} · Thawline` }];
 
 /** Errors shown on the page; all of them are in the CSV download. */
 const SHOWN_ERRORS = 200;
@@ -117,7 +115,8 @@ export async function action({ request, params }: Route.ActionArgs) {
 }
 
 export default function Upload({ loaderData }: Route.ComponentProps) {
-  const { batch, headers, mapping, notices, preview, errors, errorCount, errorRows, warnings, warningCount, columns } = loaderData;
+  const { batch, headers, mapping, notices, preview, errors, errorCount, errorRows, warnings, warningCount, columns } =
+    loaderData;
   const navigation = useNavigation();
   const busy = navigation.state === "submitting";
   const parsed = batch.status === "parsed";
@@ -159,8 +158,16 @@ export default function Upload({ loaderData }: Route.ComponentProps) {
           <h2 id="preview-h">What a commit creates</h2>
           <dl className="mt-4 grid max-w-3xl grid-cols-2 gap-4 sm:grid-cols-4" data-testid="upload-preview">
             <Stat label="determinations" value={preview.determinations} />
-            <Stat label="new sites" value={preview.newSites} note={preview.existingSites ? `${preview.existingSites} existing reused` : undefined} />
-            <Stat label="new samples" value={preview.newSamples} note={preview.existingSamples ? `${preview.existingSamples} existing reused` : undefined} />
+            <Stat
+              label="new sites"
+              value={preview.newSites}
+              note={preview.existingSites ? `${preview.existingSites} existing reused` : undefined}
+            />
+            <Stat
+              label="new samples"
+              value={preview.newSamples}
+              note={preview.existingSamples ? `${preview.existingSamples} existing reused` : undefined}
+            />
             <Stat label="new labs" value={preview.newLabs.length} note={preview.newLabs.join(", ") || undefined} />
           </dl>
           <p className="mt-2 text-sm text-muted">
@@ -216,7 +223,9 @@ export default function Upload({ loaderData }: Route.ComponentProps) {
             <table className="data-table" data-testid="upload-errors">
               <thead>
                 <tr>
-                  <th scope="col" className="text-right">Row</th>
+                  <th scope="col" className="text-right">
+                    Row
+                  </th>
                   <th scope="col">Column</th>
                   <th scope="col">Problem</th>
                 </tr>
@@ -225,8 +234,12 @@ export default function Upload({ loaderData }: Route.ComponentProps) {
                 {errors.map((e, i) => (
                   <tr key={i}>
                     <td className="text-right tabular-nums">{e.row}</td>
-                    <td><code>{e.column}</code></td>
-                    <td><ErrorMessage text={e.message} /></td>
+                    <td>
+                      <code>{e.column}</code>
+                    </td>
+                    <td>
+                      <ErrorMessage text={e.message} />
+                    </td>
                   </tr>
                 ))}
               </tbody>
@@ -234,13 +247,18 @@ export default function Upload({ loaderData }: Route.ComponentProps) {
           </div>
         </section>
       ) : parsed ? (
-        <p className="card" data-testid="upload-no-errors">No errors: every row is valid.</p>
+        <p className="card" data-testid="upload-no-errors">
+          No errors: every row is valid.
+        </p>
       ) : null}
 
       {warningCount > 0 ? (
         <section aria-labelledby="warnings-h">
           <h2 id="warnings-h">Cautions</h2>
-          <p className="mt-1 text-muted">These do not stop a commit, but reviewers will see them.{warningCount > warnings.length ? ` First ${warnings.length} of ${warningCount}.` : ""}</p>
+          <p className="mt-1 text-muted">
+            These do not stop a commit, but reviewers will see them.
+            {warningCount > warnings.length ? ` First ${warnings.length} of ${warningCount}.` : ""}
+          </p>
           <ul className="mt-3 space-y-1">
             {warnings.map((w, i) => (
               <li key={i}>
@@ -268,7 +286,8 @@ export default function Upload({ loaderData }: Route.ComponentProps) {
                     <option value="">— not used —</option>
                     {columns.map((c) => (
                       <option key={c.name} value={c.name}>
-                        {c.name} ({c.label}{c.unit ? `, ${c.unit}` : ""})
+                        {c.name} ({c.label}
+                        {c.unit ? `, ${c.unit}` : ""})
                       </option>
                     ))}
                   </select>

@@ -61,12 +61,19 @@ export default function Uploads({ loaderData }: Route.ComponentProps) {
       <header>
         <h1>Upload determinations</h1>
         <p className="mt-2 max-w-3xl text-muted">
-          Send a spreadsheet of determinations (CSV or .xlsx). Every row is checked first; nothing enters the registry
-          until you commit, and you choose whether to commit everything or only the valid rows.
+          Send a spreadsheet of determinations (CSV or .xlsx). Every row is checked first; nothing enters the registry until you
+          commit, and you choose whether to commit everything or only the valid rows.
         </p>
         <p className="mt-3">
-          Start from the template: <a href="/uploads/template.xlsx" download>template (.xlsx)</a>, with a sheet explaining
-          every column, or <a href="/uploads/template.csv" download>template (CSV)</a>.
+          Start from the template:{" "}
+          <a href="/uploads/template.xlsx" download>
+            template (.xlsx)
+          </a>
+          , with a sheet explaining every column, or{" "}
+          <a href="/uploads/template.csv" download>
+            template (CSV)
+          </a>
+          .
         </p>
       </header>
       <UploadForm maxBytes={maxBytes} />
@@ -84,19 +91,25 @@ export default function Uploads({ loaderData }: Route.ComponentProps) {
                   <th scope="col">File</th>
                   <th scope="col">By</th>
                   <th scope="col">Uploaded</th>
-                  <th scope="col" className="text-right">Rows</th>
-                  <th scope="col" className="text-right">Valid</th>
-                  <th scope="col" className="text-right">Committed</th>
+                  <th scope="col" className="text-right">
+                    Rows
+                  </th>
+                  <th scope="col" className="text-right">
+                    Valid
+                  </th>
+                  <th scope="col" className="text-right">
+                    Committed
+                  </th>
                   <th scope="col">Status</th>
-                  <th scope="col"><span className="sr-only">Actions</span></th>
+                  <th scope="col">
+                    <span className="sr-only">Actions</span>
+                  </th>
                 </tr>
               </thead>
               <tbody>
                 {batches.map((b) => (
                   <tr key={b.id}>
-                    <td>
-                      {b.fileKind === "json" ? b.fileName : <Link to={`/uploads/${b.publicId}`}>{b.fileName}</Link>}
-                    </td>
+                    <td>{b.fileKind === "json" ? b.fileName : <Link to={`/uploads/${b.publicId}`}>{b.fileName}</Link>}</td>
                     <td>{b.userName}</td>
                     <td>{formatWhen(b.createdAt)}</td>
                     <td className="text-right tabular-nums">{b.rowCount.toLocaleString("en")}</td>
@@ -143,7 +156,10 @@ function UploadForm({ maxBytes }: { maxBytes: number }) {
     const file = inputRef.current?.files?.[0];
     setError(null);
     if (!file) return setError("Choose a CSV or .xlsx file first.");
-    if (file.size > maxBytes) return setError(`The file is ${(file.size / 1024 / 1024).toFixed(1)} MB; the limit is ${limitMb} MB. Split it into several files.`);
+    if (file.size > maxBytes)
+      return setError(
+        `The file is ${(file.size / 1024 / 1024).toFixed(1)} MB; the limit is ${limitMb} MB. Split it into several files.`,
+      );
     const body = new FormData();
     body.append("file", file);
     const xhr = new XMLHttpRequest();
@@ -179,7 +195,14 @@ function UploadForm({ maxBytes }: { maxBytes: number }) {
 
   const busy = phase !== "idle";
   return (
-    <form method="post" action="/uploads/file" encType="multipart/form-data" onSubmit={onSubmit} className="card max-w-2xl" aria-busy={busy}>
+    <form
+      method="post"
+      action="/uploads/file"
+      encType="multipart/form-data"
+      onSubmit={onSubmit}
+      className="card max-w-2xl"
+      aria-busy={busy}
+    >
       <div className="field">
         <label htmlFor="upload-file">Spreadsheet (CSV or .xlsx, up to {limitMb} MB)</label>
         <input

@@ -6,13 +6,7 @@ import { SUPER_BLOCK, type PreparedCurve } from "./curve.ts";
 import { expNonPositive } from "./fastexp.ts";
 import { finishAndSummarise, type CalendarDensity, type DensitySummary } from "./density.ts";
 
-export {
-  normalDensity,
-  summariseDensity,
-  type CalendarDensity,
-  type DensitySummary,
-  type Range,
-} from "./density.ts";
+export { normalDensity, summariseDensity, type CalendarDensity, type DensitySummary, type Range } from "./density.ts";
 
 export interface CalibrationInput {
   /** Conventional radiocarbon age, 14C yr BP. */
@@ -227,7 +221,10 @@ function likelihoodInF14c(prepared: PreparedCurve, input: CalibrationInput): Lik
     if (v > max) max = v;
   }
   if (!(max > 0)) {
-    throw new CalibrationError(`F14C ${f.toPrecision(3)} matches no part of ${input.curveLabel ?? prepared.name}.`, "beyond-curve");
+    throw new CalibrationError(
+      `F14C ${f.toPrecision(3)} matches no part of ${input.curveLabel ?? prepared.name}.`,
+      "beyond-curve",
+    );
   }
   return { work, from: 0, to: length, start: prepared.startCalBp, max };
 }
@@ -245,11 +242,16 @@ function finish(prepared: PreparedCurve, input: CalibrationInput, l: Likelihood,
     if (r.from >= curveLast || r.to <= curveFirst) r.atCurveLimit = true;
   }
   if (last >= curveLast) {
-    notes.push(`The probability reaches the old end of ${name} (${fmt(curveLast)} cal BP) and is cut there: the date may be older than the ranges say.`);
+    notes.push(
+      `The probability reaches the old end of ${name} (${fmt(curveLast)} cal BP) and is cut there: the date may be older than the ranges say.`,
+    );
   }
   if (first <= curveFirst) {
-    notes.push(`The probability reaches the young end of ${name} (${fmt(curveFirst)} cal BP) and is cut there: the date may be younger than the ranges say.`);
+    notes.push(
+      `The probability reaches the young end of ${name} (${fmt(curveFirst)} cal BP) and is cut there: the date may be younger than the ranges say.`,
+    );
   }
-  if (inF14cSpace) notes.push("Near background: the likelihood was computed in F14C, where the measurement's error is symmetric.");
+  if (inF14cSpace)
+    notes.push("Near background: the likelihood was computed in F14C, where the measurement's error is symmetric.");
   return { ...summary, curveName: prepared.name, density, atCurveLimit, inF14cSpace, notes };
 }

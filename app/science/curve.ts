@@ -34,9 +34,7 @@ export interface CurveIssue {
   message: string;
 }
 
-export type CurveParseResult =
-  | { ok: true; curve: Curve; issues: CurveIssue[] }
-  | { ok: false; issues: CurveIssue[] };
+export type CurveParseResult = { ok: true; curve: Curve; issues: CurveIssue[] } | { ok: false; issues: CurveIssue[] };
 
 export interface CurveValidationOptions {
   /** Largest allowed gap between consecutive calendar ages, in years. */
@@ -49,7 +47,12 @@ export const DEFAULT_MAX_STEP = 20;
 const REQUIRED_COLUMNS = ["cal_bp", "c14_age", "c14_sigma"] as const;
 
 function splitCsvLine(line: string): string[] {
-  return line.split(",").map((cell) => cell.trim().replace(/^"(.*)"$/, "$1").trim());
+  return line.split(",").map((cell) =>
+    cell
+      .trim()
+      .replace(/^"(.*)"$/, "$1")
+      .trim(),
+  );
 }
 
 /**
@@ -58,11 +61,7 @@ function splitCsvLine(line: string): string[] {
  * problem is reported with its line so an editor can fix the file, and nothing is returned
  * as a curve unless the whole file is valid.
  */
-export function parseCurveCsv(
-  text: string,
-  name: string,
-  options: CurveValidationOptions = {},
-): CurveParseResult {
+export function parseCurveCsv(text: string, name: string, options: CurveValidationOptions = {}): CurveParseResult {
   const issues: CurveIssue[] = [];
   const lines = text.replace(/^\uFEFF/, "").split(/\r\n|\n|\r/);
   const headerIndex = lines.findIndex((l) => l.trim() !== "");

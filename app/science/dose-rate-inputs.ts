@@ -15,18 +15,7 @@ export interface Resolved {
 }
 
 export type SourceKey =
-  | "k"
-  | "u"
-  | "th"
-  | "rb"
-  | "water"
-  | "aValue"
-  | "internalK"
-  | "internalRb"
-  | "depth"
-  | "density"
-  | "labCosmic"
-  | "cosmicFormula";
+  "k" | "u" | "th" | "rb" | "water" | "aValue" | "internalK" | "internalRb" | "depth" | "density" | "labCosmic" | "cosmicFormula";
 
 export interface AssumedError {
   /** Relative (fraction of the value) or absolute (in the input's unit). */

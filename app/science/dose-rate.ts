@@ -123,7 +123,12 @@ export function fullDoseRate(s: DoseRateSample): FullDoseRate {
   const rbEstimated = s.rb == null;
   const rbRatio = RB_PPM_PER_K_PERCENT;
   const Rb = rbEstimated
-    ? { value: K.value * rbRatio.value, error: K.value * rbRatio.error, assumed: true, assumption: `estimated from K (${rbRatio.source})` }
+    ? {
+        value: K.value * rbRatio.value,
+        error: K.value * rbRatio.error,
+        assumed: true,
+        assumption: `estimated from K (${rbRatio.source})`,
+      }
     : resolve(s.rb!, ASSUMED_ERRORS.rb);
   checkNonNegative("Rb", "rb", Rb);
 
@@ -138,7 +143,12 @@ export function fullDoseRate(s: DoseRateSample): FullDoseRate {
   const wa = waterFactor("alpha", W.value);
   const wb = waterFactor("beta", W.value);
   const wg = waterFactor("gamma", W.value);
-  const betaPer = { k: f.k.beta * att.k * wb, u: f.u.beta * att.u * wb, th: f.th.beta * att.th * wb, rb: RB_BETA_GY_PER_KA_PER_PPM * att.rb * wb };
+  const betaPer = {
+    k: f.k.beta * att.k * wb,
+    u: f.u.beta * att.u * wb,
+    th: f.th.beta * att.th * wb,
+    rb: RB_BETA_GY_PER_KA_PER_PPM * att.rb * wb,
+  };
   const gammaPer = { k: f.k.gamma * wg, u: f.u.gamma * wg, th: f.th.gamma * wg };
 
   let A: Resolved | null = null;
@@ -165,7 +175,10 @@ export function fullDoseRate(s: DoseRateSample): FullDoseRate {
     RbInt = s.internalRb == null ? fromPublished(FELDSPAR_INTERNAL_RB) : resolve(s.internalRb, ASSUMED_ERRORS.internalRb);
     checkNonNegative("Internal K", "internal_k", Kint);
     checkNonNegative("Internal Rb", "internal_rb", RbInt);
-    intPer = { k: f.k.beta * (1 - betaAbsorbedFraction("k", d)), rb: RB_BETA_GY_PER_KA_PER_PPM * (1 - betaAbsorbedFraction("th", d)) };
+    intPer = {
+      k: f.k.beta * (1 - betaAbsorbedFraction("k", d)),
+      rb: RB_BETA_GY_PER_KA_PER_PPM * (1 - betaAbsorbedFraction("th", d)),
+    };
     internal = intPer.k * Kint.value + intPer.rb * RbInt.value;
   }
 
@@ -179,16 +192,28 @@ export function fullDoseRate(s: DoseRateSample): FullDoseRate {
     checkNonNegative("The lab's cosmic dose rate", "cosmic", labCosmic);
     cosmic = labCosmic.value;
   } else {
-    if (!(depth.value >= 0) || !(depth.error >= 0)) throw new DoseRateInputError("Depth and its error must be zero or more.", "burial_depth");
-    if (!(density.value > 0) || !(density.error >= 0)) throw new DoseRateInputError("Density must be positive, its error zero or more.", "density");
-    cosmicResult = cosmicAtDepth({ depthM: depth.value, depthError: depth.error, density: density.value, densityError: density.error, site: s.site });
+    if (!(depth.value >= 0) || !(depth.error >= 0))
+      throw new DoseRateInputError("Depth and its error must be zero or more.", "burial_depth");
+    if (!(density.value > 0) || !(density.error >= 0))
+      throw new DoseRateInputError("Density must be positive, its error zero or more.", "density");
+    cosmicResult = cosmicAtDepth({
+      depthM: depth.value,
+      depthError: depth.error,
+      density: density.value,
+      densityError: density.error,
+      site: s.site,
+    });
     cosmic = cosmicResult.doseRate;
     if (cosmicResult.caution) cautions.push(cosmicResult.caution);
   }
-  if (!s.site && !labCosmic) cautions.push("No site position: the cosmic dose rate is the sea-level value at 55° geomagnetic latitude.");
+  if (!s.site && !labCosmic)
+    cautions.push("No site position: the cosmic dose rate is the sea-level value at 55° geomagnetic latitude.");
 
   const total = alpha + beta + gamma + cosmic + internal;
-  const dW = -(WATER_H.beta * beta) / (1 + WATER_H.beta * W.value) - (WATER_H.gamma * gamma) / (1 + WATER_H.gamma * W.value) - (WATER_H.alpha * alpha) / (1 + WATER_H.alpha * W.value);
+  const dW =
+    -(WATER_H.beta * beta) / (1 + WATER_H.beta * W.value) -
+    (WATER_H.gamma * gamma) / (1 + WATER_H.gamma * W.value) -
+    (WATER_H.alpha * alpha) / (1 + WATER_H.alpha * W.value);
   const terms: Omit<ErrorSource, "contribution" | "varianceShare">[] = [
     src("k", "K", K, betaPer.k + gammaPer.k + (rbEstimated ? betaPer.rb * rbRatio.value : 0)),
     src("u", "U", U, betaPer.u + gammaPer.u + alphaPer.u),
@@ -206,7 +231,15 @@ export function fullDoseRate(s: DoseRateSample): FullDoseRate {
   else if (cosmicResult) {
     terms.push(src("depth", "Burial depth", depth, cosmicResult.dDepth));
     terms.push(src("density", "Density", density, cosmicResult.dDensity));
-    terms.push({ key: "cosmicFormula", label: "Cosmic formula allowance", value: cosmic, error: cosmicResult.formulaError, assumed: true, assumption: "10 % of the cosmic dose rate (common practice)", sensitivity: 1 });
+    terms.push({
+      key: "cosmicFormula",
+      label: "Cosmic formula allowance",
+      value: cosmic,
+      error: cosmicResult.formulaError,
+      assumed: true,
+      assumption: "10 % of the cosmic dose rate (common practice)",
+      sensitivity: 1,
+    });
   }
   const withContribution = terms.map((t) => ({ ...t, contribution: Math.abs(t.sensitivity) * t.error }));
   const variance = withContribution.reduce((a, t) => a + t.contribution ** 2, 0);
@@ -227,8 +260,10 @@ export function fullDoseRate(s: DoseRateSample): FullDoseRate {
   ];
   if (labCosmic) citations.push({ role: "cosmic", source: "the lab's own value" });
   else citations.push({ role: "cosmic", source: "Prescott & Hutton 1994" });
-  if (Kint) citations.push({ role: "internal K and Rb", source: `${FELDSPAR_INTERNAL_K.source}; ${FELDSPAR_INTERNAL_RB.source}` });
-  if (total > 0 && Math.sqrt(variance) / total < 0.03) cautions.push("The dose-rate error is below 3 %, which is implausible for a field sample.");
+  if (Kint)
+    citations.push({ role: "internal K and Rb", source: `${FELDSPAR_INTERNAL_K.source}; ${FELDSPAR_INTERNAL_RB.source}` });
+  if (total > 0 && Math.sqrt(variance) / total < 0.03)
+    cautions.push("The dose-rate error is below 3 %, which is implausible for a field sample.");
   return {
     total,
     totalError: Math.sqrt(variance),
@@ -246,6 +281,11 @@ function fromPublished(p: { value: number; error: number; source: string }): Res
   return { value: p.value, error: p.error, assumed: true, assumption: `published value (${p.source})` };
 }
 
-function src(key: SourceKey, label: string, v: Resolved, sensitivity: number): Omit<ErrorSource, "contribution" | "varianceShare"> {
+function src(
+  key: SourceKey,
+  label: string,
+  v: Resolved,
+  sensitivity: number,
+): Omit<ErrorSource, "contribution" | "varianceShare"> {
   return { key, label, value: v.value, error: v.error, assumed: v.assumed, assumption: v.assumption, sensitivity };
 }

@@ -85,8 +85,7 @@ export function normaliseAge(age: number, d13c: number, form: NormalisationForm 
 }
 
 export type RadiocarbonMeasurementInput =
-  | { f14c: number; error: number; age?: undefined }
-  | { age: number; error: number; f14c?: undefined };
+  { f14c: number; error: number; age?: undefined } | { age: number; error: number; f14c?: undefined };
 
 export interface NormalisationInput {
   /** Either F14C ± error or a radiocarbon age ± error (years BP). */
@@ -165,10 +164,7 @@ export function normaliseMeasurement(input: NormalisationInput): NormalisedMeasu
   } else if (!input.alreadyNormalised) {
     const d13c = input.d13c;
     if (d13c === undefined || d13c === null || !Number.isFinite(d13c)) {
-      throw new RadiocarbonInputError(
-        "δ13C is needed to normalise a measurement that is not already conventional.",
-        "d13c",
-      );
+      throw new RadiocarbonInputError("δ13C is needed to normalise a measurement that is not already conventional.", "d13c");
     }
     if (d13c <= -1000) {
       throw new RadiocarbonInputError("δ13C must be greater than −1000 ‰.", "d13c");

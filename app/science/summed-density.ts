@@ -58,15 +58,10 @@ export function sumDensities(
 ): SummedDensity {
   const step = options.step ?? 10;
   if (!(Number.isInteger(step) && step >= 1)) throw new Error("The bin width must be a whole number of years ≥ 1.");
-  const span = options.range
-    ? { young: Math.min(...options.range), old: Math.max(...options.range) }
-    : densitySpan(items);
+  const span = options.range ? { young: Math.min(...options.range), old: Math.max(...options.range) } : densitySpan(items);
   const start = span ? Math.floor(span.young / step) * step : 0;
   const bins = span ? Math.floor((span.old - start) / step) + 1 : 0;
-  const byGrade = Object.fromEntries(GRADE_KEYS.map((k) => [k, new Array<number>(bins).fill(0)])) as Record<
-    GradeKey,
-    number[]
-  >;
+  const byGrade = Object.fromEntries(GRADE_KEYS.map((k) => [k, new Array<number>(bins).fill(0)])) as Record<GradeKey, number[]>;
   const countByGrade = Object.fromEntries(GRADE_KEYS.map((k) => [k, 0])) as Record<GradeKey, number>;
   let count = 0;
   for (const { density, grade } of items) {

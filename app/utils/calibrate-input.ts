@@ -84,13 +84,21 @@ export function parseCalibrationInput(text: string, defaults: InputDefaults): In
         id = String(counter);
         [age, error] = fields;
       } else if (fields.length === 1) {
-        entries.push({ line: lineNo, id: String(counter), error: `Line ${lineNo}: give an age and its error, e.g. "10250 ± 45".` });
+        entries.push({
+          line: lineNo,
+          id: String(counter),
+          error: `Line ${lineNo}: give an age and its error, e.g. "10250 ± 45".`,
+        });
         continue;
       } else {
         [id, age, error, curve, dr, drErr] = fields as [string, string, string, string?, string?, string?];
         if (id === "") id = String(counter);
         if (fields.length > 6) {
-          entries.push({ line: lineNo, id, error: `Line ${lineNo} has ${fields.length} fields; at most 6 are read (id, age, error, curve, ΔR, ΔR error).` });
+          entries.push({
+            line: lineNo,
+            id,
+            error: `Line ${lineNo} has ${fields.length} fields; at most 6 are read (id, age, error, curve, ΔR, ΔR error).`,
+          });
           continue;
         }
       }

@@ -32,114 +32,414 @@ export const ROW_SIGNALS = ["OSL", "IRSL", "TL", "pIRIR"] as const;
 export const ROW_CONSTRAINT_KINDS = ["minimum", "maximum", "direct"] as const;
 
 export const COLUMNS: readonly ColumnSpec[] = [
-  { name: "site_name", label: "Site name", kind: "text", unit: "", group: "site",
+  {
+    name: "site_name",
+    label: "Site name",
+    kind: "text",
+    unit: "",
+    group: "site",
     help: "Name of the place sampled. Rows with the same name and coordinates within about 100 m share one site.",
-    synonyms: ["site", "site name", "locality", "location name"] },
-  { name: "latitude", label: "Latitude", kind: "number", unit: "decimal degrees (WGS84), north positive", group: "site",
+    synonyms: ["site", "site name", "locality", "location name"],
+  },
+  {
+    name: "latitude",
+    label: "Latitude",
+    kind: "number",
+    unit: "decimal degrees (WGS84), north positive",
+    group: "site",
     help: "Decimal degrees, WGS84; north is positive, south negative. Not degrees–minutes–seconds.",
-    synonyms: ["lat", "latitude n", "lat dd", "lat deg"] },
-  { name: "longitude", label: "Longitude", kind: "number", unit: "decimal degrees (WGS84), east positive", group: "site",
+    synonyms: ["lat", "latitude n", "lat dd", "lat deg"],
+  },
+  {
+    name: "longitude",
+    label: "Longitude",
+    kind: "number",
+    unit: "decimal degrees (WGS84), east positive",
+    group: "site",
     help: "Decimal degrees, WGS84; east is positive, west negative (Labrador is about −64).",
-    synonyms: ["lon", "long", "lng", "longitude e", "lon dd", "lon deg"] },
-  { name: "elevation_m", label: "Elevation", kind: "number", unit: "m above sea level", group: "site",
-    help: "Metres above present sea level.", synonyms: ["elevation", "elev", "altitude", "elevation m asl", "elev m"] },
-  { name: "setting", label: "Setting", kind: "text", unit: "", group: "site",
-    help: "Landform or setting, e.g. raised marine delta, lake basin, moraine crest.", synonyms: ["landform", "site setting"] },
-  { name: "sample_code", label: "Sample code", kind: "text", unit: "", group: "sample",
+    synonyms: ["lon", "long", "lng", "longitude e", "lon dd", "lon deg"],
+  },
+  {
+    name: "elevation_m",
+    label: "Elevation",
+    kind: "number",
+    unit: "m above sea level",
+    group: "site",
+    help: "Metres above present sea level.",
+    synonyms: ["elevation", "elev", "altitude", "elevation m asl", "elev m"],
+  },
+  {
+    name: "setting",
+    label: "Setting",
+    kind: "text",
+    unit: "",
+    group: "site",
+    help: "Landform or setting, e.g. raised marine delta, lake basin, moraine crest.",
+    synonyms: ["landform", "site setting"],
+  },
+  {
+    name: "sample_code",
+    label: "Sample code",
+    kind: "text",
+    unit: "",
+    group: "sample",
     help: "The field code of the sample. Rows with the same site and sample code share one sample (replicates).",
-    synonyms: ["sample", "sample id", "field code", "sample name", "field id"] },
-  { name: "material", label: "Material", kind: "text", unit: "", group: "sample",
+    synonyms: ["sample", "sample id", "field code", "sample name", "field id"],
+  },
+  {
+    name: "material",
+    label: "Material",
+    kind: "text",
+    unit: "",
+    group: "sample",
     help: "From the registry's list of materials (e.g. marine shell, plant macrofossil, quartz).",
-    synonyms: ["material dated", "dated material", "sample material"] },
-  { name: "depth_cm", label: "Depth", kind: "number", unit: "cm below surface", group: "sample",
-    help: "Depth of the sample below the surface, in centimetres.", synonyms: ["depth", "sample depth", "depth cm"] },
-  { name: "strat_unit", label: "Stratigraphic unit", kind: "text", unit: "", group: "sample",
-    help: "Name of the unit the sample came from.", synonyms: ["unit", "stratigraphic unit", "strat unit", "layer"] },
-  { name: "strat_order", label: "Unit order", kind: "integer", unit: "position, 1 = uppermost", group: "sample",
-    help: "Position of the unit in the site's column, 1 = uppermost.", synonyms: ["unit order", "stratigraphic order", "order"] },
-  { name: "context", label: "Context", kind: "text", unit: "", group: "sample",
+    synonyms: ["material dated", "dated material", "sample material"],
+  },
+  {
+    name: "depth_cm",
+    label: "Depth",
+    kind: "number",
+    unit: "cm below surface",
+    group: "sample",
+    help: "Depth of the sample below the surface, in centimetres.",
+    synonyms: ["depth", "sample depth", "depth cm"],
+  },
+  {
+    name: "strat_unit",
+    label: "Stratigraphic unit",
+    kind: "text",
+    unit: "",
+    group: "sample",
+    help: "Name of the unit the sample came from.",
+    synonyms: ["unit", "stratigraphic unit", "strat unit", "layer"],
+  },
+  {
+    name: "strat_order",
+    label: "Unit order",
+    kind: "integer",
+    unit: "position, 1 = uppermost",
+    group: "sample",
+    help: "Position of the unit in the site's column, 1 = uppermost.",
+    synonyms: ["unit order", "stratigraphic order", "order"],
+  },
+  {
+    name: "context",
+    label: "Context",
+    kind: "text",
+    unit: "",
+    group: "sample",
     help: "What the sample tells about the ice, e.g. shells in growth position in glaciomarine silt.",
-    synonyms: ["sample context", "description"] },
-  { name: "method", label: "Method", kind: "choice", unit: "", group: "measurement", choices: ROW_METHODS,
-    help: "radiocarbon or luminescence.", synonyms: ["dating method", "technique"] },
-  { name: "lab_code", label: "Lab code", kind: "text", unit: "", group: "measurement",
+    synonyms: ["sample context", "description"],
+  },
+  {
+    name: "method",
+    label: "Method",
+    kind: "choice",
+    unit: "",
+    group: "measurement",
+    choices: ROW_METHODS,
+    help: "radiocarbon or luminescence.",
+    synonyms: ["dating method", "technique"],
+  },
+  {
+    name: "lab_code",
+    label: "Lab code",
+    kind: "text",
+    unit: "",
+    group: "measurement",
     help: "The laboratory's code for this measurement; unique across the registry.",
-    synonyms: ["lab id", "lab number", "lab no", "laboratory code", "lab ref"] },
-  { name: "lab_name", label: "Laboratory", kind: "text", unit: "", group: "measurement",
+    synonyms: ["lab id", "lab number", "lab no", "laboratory code", "lab ref"],
+  },
+  {
+    name: "lab_name",
+    label: "Laboratory",
+    kind: "text",
+    unit: "",
+    group: "measurement",
     help: "The laboratory that measured it. Left empty: the lab whose code prefix matches, else your own lab.",
-    synonyms: ["lab", "laboratory", "laboratory name"] },
-  { name: "constraint_kind", label: "Constraint kind", kind: "choice", unit: "", group: "measurement",
+    synonyms: ["lab", "laboratory", "laboratory name"],
+  },
+  {
+    name: "constraint_kind",
+    label: "Constraint kind",
+    kind: "choice",
+    unit: "",
+    group: "measurement",
     choices: ROW_CONSTRAINT_KINDS,
     help: "minimum (free of ice by this time), maximum (ice reached the site after this time) or direct.",
-    synonyms: ["constraint", "constraint type", "kind", "limiting"] },
-  { name: "c14_age", label: "14C age", kind: "number", unit: "14C yr BP", group: "radiocarbon",
+    synonyms: ["constraint", "constraint type", "kind", "limiting"],
+  },
+  {
+    name: "c14_age",
+    label: "14C age",
+    kind: "number",
+    unit: "14C yr BP",
+    group: "radiocarbon",
     help: "Conventional radiocarbon age in 14C years BP (not ka, not cal BP).",
-    synonyms: ["age", "14c age", "c14 age", "radiocarbon age", "age 14c yr bp", "conventional age", "14c yr bp"] },
-  { name: "c14_error", label: "14C age error", kind: "number", unit: "14C yr (1σ)", group: "radiocarbon",
+    synonyms: ["age", "14c age", "c14 age", "radiocarbon age", "age 14c yr bp", "conventional age", "14c yr bp"],
+  },
+  {
+    name: "c14_error",
+    label: "14C age error",
+    kind: "number",
+    unit: "14C yr (1σ)",
+    group: "radiocarbon",
     help: "One standard deviation of the 14C age, in years.",
-    synonyms: ["error", "age error", "14c error", "c14 error", "sigma", "1 sigma", "uncertainty", "age sd"] },
-  { name: "f14c", label: "F14C", kind: "number", unit: "fraction modern", group: "radiocarbon",
-    help: "Fraction modern carbon, instead of an age (not pMC: 45.2 pMC is 0.452).", synonyms: ["fm", "fraction modern"] },
-  { name: "f14c_error", label: "F14C error", kind: "number", unit: "fraction modern (1σ)", group: "radiocarbon",
-    help: "One standard deviation of F14C.", synonyms: ["fm error", "f14c sd"] },
-  { name: "d13c", label: "δ13C", kind: "number", unit: "‰ VPDB", group: "radiocarbon",
-    help: "δ13C in per mil (VPDB).", synonyms: ["delta13c", "δ13c", "d13c permil", "13c"] },
-  { name: "age_normalised", label: "Age δ13C-normalised", kind: "yesno", unit: "yes/no", group: "radiocarbon",
+    synonyms: ["error", "age error", "14c error", "c14 error", "sigma", "1 sigma", "uncertainty", "age sd"],
+  },
+  {
+    name: "f14c",
+    label: "F14C",
+    kind: "number",
+    unit: "fraction modern",
+    group: "radiocarbon",
+    help: "Fraction modern carbon, instead of an age (not pMC: 45.2 pMC is 0.452).",
+    synonyms: ["fm", "fraction modern"],
+  },
+  {
+    name: "f14c_error",
+    label: "F14C error",
+    kind: "number",
+    unit: "fraction modern (1σ)",
+    group: "radiocarbon",
+    help: "One standard deviation of F14C.",
+    synonyms: ["fm error", "f14c sd"],
+  },
+  {
+    name: "d13c",
+    label: "δ13C",
+    kind: "number",
+    unit: "‰ VPDB",
+    group: "radiocarbon",
+    help: "δ13C in per mil (VPDB).",
+    synonyms: ["delta13c", "δ13c", "d13c permil", "13c"],
+  },
+  {
+    name: "age_normalised",
+    label: "Age δ13C-normalised",
+    kind: "yesno",
+    unit: "yes/no",
+    group: "radiocarbon",
     help: "yes (default) when the reported age is already normalised to δ13C = −25 ‰ (a conventional age).",
-    synonyms: ["normalised", "normalized", "age normalized"] },
-  { name: "greater_than", label: "Greater than", kind: "yesno", unit: "yes/no", group: "radiocarbon",
+    synonyms: ["normalised", "normalized", "age normalized"],
+  },
+  {
+    name: "greater_than",
+    label: "Greater than",
+    kind: "yesno",
+    unit: "yes/no",
+    group: "radiocarbon",
     help: "yes when the lab reported the age as “greater than”; stored as a limit and not calibrated.",
-    synonyms: ["limit", "greater than age", "infinite"] },
-  { name: "pretreatment", label: "Pretreatment", kind: "text", unit: "", group: "radiocarbon",
-    help: "Chemical pretreatment, e.g. acid etch, ABA.", synonyms: ["pre treatment", "treatment"] },
-  { name: "curve", label: "Curve", kind: "text", unit: "", group: "radiocarbon",
+    synonyms: ["limit", "greater than age", "infinite"],
+  },
+  {
+    name: "pretreatment",
+    label: "Pretreatment",
+    kind: "text",
+    unit: "",
+    group: "radiocarbon",
+    help: "Chemical pretreatment, e.g. acid etch, ABA.",
+    synonyms: ["pre treatment", "treatment"],
+  },
+  {
+    name: "curve",
+    label: "Curve",
+    kind: "text",
+    unit: "",
+    group: "radiocarbon",
     help: "Calibration curve short name: intcal20, marine20 or another curve in the registry. Empty: intcal20 (marine material needs marine20).",
-    synonyms: ["calibration curve", "cal curve"] },
-  { name: "delta_r", label: "ΔR", kind: "number", unit: "14C yr", group: "radiocarbon",
-    help: "Local marine reservoir offset ΔR, in 14C years (marine samples).", synonyms: ["dr", "delta r", "reservoir offset", "δr"] },
-  { name: "delta_r_error", label: "ΔR error", kind: "number", unit: "14C yr (1σ)", group: "radiocarbon",
-    help: "One standard deviation of ΔR.", synonyms: ["dr error", "delta r error", "δr error"] },
-  { name: "delta_r_curve", label: "ΔR derived against", kind: "text", unit: "", group: "radiocarbon",
+    synonyms: ["calibration curve", "cal curve"],
+  },
+  {
+    name: "delta_r",
+    label: "ΔR",
+    kind: "number",
+    unit: "14C yr",
+    group: "radiocarbon",
+    help: "Local marine reservoir offset ΔR, in 14C years (marine samples).",
+    synonyms: ["dr", "delta r", "reservoir offset", "δr"],
+  },
+  {
+    name: "delta_r_error",
+    label: "ΔR error",
+    kind: "number",
+    unit: "14C yr (1σ)",
+    group: "radiocarbon",
+    help: "One standard deviation of ΔR.",
+    synonyms: ["dr error", "delta r error", "δr error"],
+  },
+  {
+    name: "delta_r_curve",
+    label: "ΔR derived against",
+    kind: "text",
+    unit: "",
+    group: "radiocarbon",
     help: "The marine curve the ΔR was derived against (ΔR values do not transfer between curves).",
-    synonyms: ["dr curve", "delta r curve"] },
-  { name: "signal", label: "Signal", kind: "choice", unit: "", group: "luminescence", choices: ROW_SIGNALS,
-    help: "OSL, IRSL, TL or pIRIR.", synonyms: ["luminescence signal"] },
-  { name: "mineral", label: "Mineral", kind: "text", unit: "", group: "luminescence",
-    help: "Mineral measured, e.g. quartz, K-feldspar.", synonyms: [] },
-  { name: "de_gy", label: "De", kind: "number", unit: "Gy", group: "luminescence",
-    help: "Equivalent dose in grays.", synonyms: ["de", "equivalent dose", "de gy", "dose"] },
-  { name: "de_error_gy", label: "De error", kind: "number", unit: "Gy (1σ)", group: "luminescence",
-    help: "One standard deviation of De, in grays.", synonyms: ["de error", "de sd"] },
-  { name: "dose_rate_gy_per_ka", label: "Dose rate", kind: "number", unit: "Gy/ka", group: "luminescence",
+    synonyms: ["dr curve", "delta r curve"],
+  },
+  {
+    name: "signal",
+    label: "Signal",
+    kind: "choice",
+    unit: "",
+    group: "luminescence",
+    choices: ROW_SIGNALS,
+    help: "OSL, IRSL, TL or pIRIR.",
+    synonyms: ["luminescence signal"],
+  },
+  {
+    name: "mineral",
+    label: "Mineral",
+    kind: "text",
+    unit: "",
+    group: "luminescence",
+    help: "Mineral measured, e.g. quartz, K-feldspar.",
+    synonyms: [],
+  },
+  {
+    name: "de_gy",
+    label: "De",
+    kind: "number",
+    unit: "Gy",
+    group: "luminescence",
+    help: "Equivalent dose in grays.",
+    synonyms: ["de", "equivalent dose", "de gy", "dose"],
+  },
+  {
+    name: "de_error_gy",
+    label: "De error",
+    kind: "number",
+    unit: "Gy (1σ)",
+    group: "luminescence",
+    help: "One standard deviation of De, in grays.",
+    synonyms: ["de error", "de sd"],
+  },
+  {
+    name: "dose_rate_gy_per_ka",
+    label: "Dose rate",
+    kind: "number",
+    unit: "Gy/ka",
+    group: "luminescence",
     help: "Total environmental dose rate in grays per thousand years. Or give K, U, Th, water, burial depth and density instead.",
-    synonyms: ["dose rate", "dose rate gy ka", "dr gy ka"] },
-  { name: "dose_rate_error_gy_per_ka", label: "Dose rate error", kind: "number", unit: "Gy/ka (1σ)", group: "luminescence",
-    help: "One standard deviation of the dose rate.", synonyms: ["dose rate error", "dose rate sd"] },
-  { name: "k_percent", label: "K", kind: "number", unit: "%", group: "luminescence",
-    help: "Potassium content in per cent.", synonyms: ["k", "potassium", "k %"] },
-  { name: "u_ppm", label: "U", kind: "number", unit: "ppm", group: "luminescence",
-    help: "Uranium content in ppm.", synonyms: ["u", "uranium"] },
-  { name: "th_ppm", label: "Th", kind: "number", unit: "ppm", group: "luminescence",
-    help: "Thorium content in ppm.", synonyms: ["th", "thorium"] },
-  { name: "water_content", label: "Water content", kind: "number", unit: "fraction of dry mass (0.15 = 15 %)", group: "luminescence",
+    synonyms: ["dose rate", "dose rate gy ka", "dr gy ka"],
+  },
+  {
+    name: "dose_rate_error_gy_per_ka",
+    label: "Dose rate error",
+    kind: "number",
+    unit: "Gy/ka (1σ)",
+    group: "luminescence",
+    help: "One standard deviation of the dose rate.",
+    synonyms: ["dose rate error", "dose rate sd"],
+  },
+  {
+    name: "k_percent",
+    label: "K",
+    kind: "number",
+    unit: "%",
+    group: "luminescence",
+    help: "Potassium content in per cent.",
+    synonyms: ["k", "potassium", "k %"],
+  },
+  {
+    name: "u_ppm",
+    label: "U",
+    kind: "number",
+    unit: "ppm",
+    group: "luminescence",
+    help: "Uranium content in ppm.",
+    synonyms: ["u", "uranium"],
+  },
+  {
+    name: "th_ppm",
+    label: "Th",
+    kind: "number",
+    unit: "ppm",
+    group: "luminescence",
+    help: "Thorium content in ppm.",
+    synonyms: ["th", "thorium"],
+  },
+  {
+    name: "water_content",
+    label: "Water content",
+    kind: "number",
+    unit: "fraction of dry mass (0.15 = 15 %)",
+    group: "luminescence",
     help: "Water content as a FRACTION of dry mass: 0.15 means 15 %. A value above 1 is read as a mistake.",
-    synonyms: ["water", "water content fraction", "w"] },
-  { name: "grain_size_um", label: "Grain size", kind: "number", unit: "µm", group: "luminescence",
-    help: "Grain size in micrometres (mean of the fraction measured).", synonyms: ["grain size", "grain size um", "grain size µm"] },
-  { name: "burial_depth_m", label: "Burial depth", kind: "number", unit: "m", group: "luminescence",
-    help: "Burial depth in metres, for the cosmic dose rate.", synonyms: ["burial depth", "overburden"] },
-  { name: "density_g_cm3", label: "Overburden density", kind: "number", unit: "g/cm³", group: "luminescence",
-    help: "Density of the overburden in grams per cubic centimetre.", synonyms: ["density", "bulk density"] },
-  { name: "aliquots", label: "Aliquots", kind: "integer", unit: "count", group: "luminescence",
-    help: "Number of aliquots or grains accepted.", synonyms: ["n aliquots", "n"] },
-  { name: "age_model", label: "Age model", kind: "text", unit: "", group: "luminescence",
-    help: "Statistical age model used for De, e.g. central, minimum.", synonyms: ["model"] },
-  { name: "measurement_year", label: "Year of measurement", kind: "integer", unit: "year AD", group: "luminescence",
+    synonyms: ["water", "water content fraction", "w"],
+  },
+  {
+    name: "grain_size_um",
+    label: "Grain size",
+    kind: "number",
+    unit: "µm",
+    group: "luminescence",
+    help: "Grain size in micrometres (mean of the fraction measured).",
+    synonyms: ["grain size", "grain size um", "grain size µm"],
+  },
+  {
+    name: "burial_depth_m",
+    label: "Burial depth",
+    kind: "number",
+    unit: "m",
+    group: "luminescence",
+    help: "Burial depth in metres, for the cosmic dose rate.",
+    synonyms: ["burial depth", "overburden"],
+  },
+  {
+    name: "density_g_cm3",
+    label: "Overburden density",
+    kind: "number",
+    unit: "g/cm³",
+    group: "luminescence",
+    help: "Density of the overburden in grams per cubic centimetre.",
+    synonyms: ["density", "bulk density"],
+  },
+  {
+    name: "aliquots",
+    label: "Aliquots",
+    kind: "integer",
+    unit: "count",
+    group: "luminescence",
+    help: "Number of aliquots or grains accepted.",
+    synonyms: ["n aliquots", "n"],
+  },
+  {
+    name: "age_model",
+    label: "Age model",
+    kind: "text",
+    unit: "",
+    group: "luminescence",
+    help: "Statistical age model used for De, e.g. central, minimum.",
+    synonyms: ["model"],
+  },
+  {
+    name: "measurement_year",
+    label: "Year of measurement",
+    kind: "integer",
+    unit: "year AD",
+    group: "luminescence",
     help: "Year the sample was measured (luminescence ages count back from it).",
-    synonyms: ["year measured", "measurement year", "year of measurement"] },
-  { name: "doi", label: "DOI", kind: "text", unit: "", group: "provenance",
-    help: "DOI of the publication reporting the date, e.g. 10.99999/example.1.", synonyms: ["publication doi", "reference doi"] },
-  { name: "notes", label: "Notes", kind: "text", unit: "", group: "provenance", help: "Anything else.", synonyms: ["comment", "comments", "remarks"] },
+    synonyms: ["year measured", "measurement year", "year of measurement"],
+  },
+  {
+    name: "doi",
+    label: "DOI",
+    kind: "text",
+    unit: "",
+    group: "provenance",
+    help: "DOI of the publication reporting the date, e.g. 10.99999/example.1.",
+    synonyms: ["publication doi", "reference doi"],
+  },
+  {
+    name: "notes",
+    label: "Notes",
+    kind: "text",
+    unit: "",
+    group: "provenance",
+    help: "Anything else.",
+    synonyms: ["comment", "comments", "remarks"],
+  },
 ];
 
 export const COLUMN_NAMES = COLUMNS.map((c) => c.name);
@@ -152,21 +452,66 @@ export function columnSpec(name: string): ColumnSpec | undefined {
 /** Example rows for the template: one radiocarbon, one luminescence (invented values). */
 export const EXAMPLE_ROWS: Record<string, string | number>[] = [
   {
-    site_name: "Example Cove", latitude: 58.7123, longitude: -64.3511, elevation_m: 42, setting: "raised marine delta",
-    sample_code: "EXC-01", material: "marine shell", depth_cm: 120, strat_unit: "glaciomarine silt", strat_order: 2,
-    context: "paired valves in growth position", method: "radiocarbon", lab_code: "XMPL-0001",
-    lab_name: "Example Laboratory", constraint_kind: "minimum", c14_age: 9850, c14_error: 40, d13c: 1.2, age_normalised: "yes",
-    greater_than: "no", pretreatment: "acid etch", curve: "marine20", delta_r: 150, delta_r_error: 60,
-    delta_r_curve: "marine20", doi: "10.99999/example.1", notes: "",
+    site_name: "Example Cove",
+    latitude: 58.7123,
+    longitude: -64.3511,
+    elevation_m: 42,
+    setting: "raised marine delta",
+    sample_code: "EXC-01",
+    material: "marine shell",
+    depth_cm: 120,
+    strat_unit: "glaciomarine silt",
+    strat_order: 2,
+    context: "paired valves in growth position",
+    method: "radiocarbon",
+    lab_code: "XMPL-0001",
+    lab_name: "Example Laboratory",
+    constraint_kind: "minimum",
+    c14_age: 9850,
+    c14_error: 40,
+    d13c: 1.2,
+    age_normalised: "yes",
+    greater_than: "no",
+    pretreatment: "acid etch",
+    curve: "marine20",
+    delta_r: 150,
+    delta_r_error: 60,
+    delta_r_curve: "marine20",
+    doi: "10.99999/example.1",
+    notes: "",
   },
   {
-    site_name: "Example Terrace", latitude: 57.9402, longitude: -66.1037, elevation_m: 88, setting: "outwash terrace",
-    sample_code: "EXT-L1", material: "quartz", depth_cm: 150, strat_unit: "aeolian sand", strat_order: 1,
-    context: "sand above outwash gravel", method: "luminescence", lab_code: "XMPL-L001", lab_name: "Example Laboratory",
+    site_name: "Example Terrace",
+    latitude: 57.9402,
+    longitude: -66.1037,
+    elevation_m: 88,
+    setting: "outwash terrace",
+    sample_code: "EXT-L1",
+    material: "quartz",
+    depth_cm: 150,
+    strat_unit: "aeolian sand",
+    strat_order: 1,
+    context: "sand above outwash gravel",
+    method: "luminescence",
+    lab_code: "XMPL-L001",
+    lab_name: "Example Laboratory",
     constraint_kind: "minimum",
-    signal: "OSL", mineral: "quartz", de_gy: 18.2, de_error_gy: 0.9, dose_rate_gy_per_ka: 2.1,
-    dose_rate_error_gy_per_ka: 0.1, k_percent: 1.6, u_ppm: 1.2, th_ppm: 4.5, water_content: 0.15, grain_size_um: 180,
-    burial_depth_m: 1.5, density_g_cm3: 1.8, aliquots: 24, age_model: "central", measurement_year: 2023,
+    signal: "OSL",
+    mineral: "quartz",
+    de_gy: 18.2,
+    de_error_gy: 0.9,
+    dose_rate_gy_per_ka: 2.1,
+    dose_rate_error_gy_per_ka: 0.1,
+    k_percent: 1.6,
+    u_ppm: 1.2,
+    th_ppm: 4.5,
+    water_content: 0.15,
+    grain_size_um: 180,
+    burial_depth_m: 1.5,
+    density_g_cm3: 1.8,
+    aliquots: 24,
+    age_model: "central",
+    measurement_year: 2023,
     doi: "10.99999/example.1",
   },
 ];
@@ -307,7 +652,9 @@ function readNumber(v: unknown, spec: ColumnSpec): Read<number> {
   }
   if (typeof v === "boolean") return { issue: `${spec.name} takes a number${unitPhrase(spec)}, not ${v ? "TRUE" : "FALSE"}.` };
   if (isDateValue(v)) {
-    return { issue: `This cell holds a date; ${spec.name} takes a number${unitPhrase(spec)}. Check that the spreadsheet did not turn the value into a date, or that the columns are not shifted.` };
+    return {
+      issue: `This cell holds a date; ${spec.name} takes a number${unitPhrase(spec)}. Check that the spreadsheet did not turn the value into a date, or that the columns are not shifted.`,
+    };
   }
   if (typeof v !== "string") return { issue: `${spec.name} takes a number${unitPhrase(spec)}.` };
   const t = v.trim();
@@ -336,7 +683,8 @@ function readNumber(v: unknown, spec: ColumnSpec): Read<number> {
 function readInteger(v: unknown, spec: ColumnSpec): Read<number> {
   if (spec.name === "measurement_year") {
     if (isDateValue(v)) return { issue: `This cell holds a date; give the year only (e.g. ${v.getUTCFullYear()}).` };
-    if (typeof v === "string" && isDateText(v.trim())) return { issue: `"${v.trim()}" is a date; give the year only (e.g. 2023).` };
+    if (typeof v === "string" && isDateText(v.trim()))
+      return { issue: `"${v.trim()}" is a date; give the year only (e.g. 2023).` };
   }
   const r = readNumber(v, spec);
   if (r.value === undefined) return r;
@@ -351,7 +699,9 @@ function truncate(t: string, n = 40): string {
 function readText(v: unknown, spec: ColumnSpec, max = 200): Read<string> {
   if (isBlankCell(v)) return {};
   if (isDateValue(v)) {
-    return { issue: `This cell holds a date, not the ${spec.label.toLowerCase()}; format the column as text in the spreadsheet and type it again.` };
+    return {
+      issue: `This cell holds a date, not the ${spec.label.toLowerCase()}; format the column as text in the spreadsheet and type it again.`,
+    };
   }
   const t = (typeof v === "number" || typeof v === "boolean" ? String(v) : typeof v === "string" ? v : "").trim();
   if (t === "") return { issue: `${spec.name} takes text.` };
@@ -441,11 +791,34 @@ export type RowCheck =
 
 /** Columns that describe only one method's measurement. */
 export const RADIOCARBON_ONLY_COLUMNS = [
-  "c14_age", "c14_error", "f14c", "f14c_error", "d13c", "pretreatment", "curve", "delta_r", "delta_r_error", "delta_r_curve",
+  "c14_age",
+  "c14_error",
+  "f14c",
+  "f14c_error",
+  "d13c",
+  "pretreatment",
+  "curve",
+  "delta_r",
+  "delta_r_error",
+  "delta_r_curve",
 ] as const;
 export const LUMINESCENCE_ONLY_COLUMNS = [
-  "signal", "mineral", "de_gy", "de_error_gy", "dose_rate_gy_per_ka", "dose_rate_error_gy_per_ka", "k_percent", "u_ppm",
-  "th_ppm", "water_content", "grain_size_um", "burial_depth_m", "density_g_cm3", "measurement_year", "aliquots", "age_model",
+  "signal",
+  "mineral",
+  "de_gy",
+  "de_error_gy",
+  "dose_rate_gy_per_ka",
+  "dose_rate_error_gy_per_ka",
+  "k_percent",
+  "u_ppm",
+  "th_ppm",
+  "water_content",
+  "grain_size_um",
+  "burial_depth_m",
+  "density_g_cm3",
+  "measurement_year",
+  "aliquots",
+  "age_model",
 ] as const;
 
 const TEXT_MAX: Record<string, number> = { notes: 2000, context: 1000 };
@@ -502,10 +875,16 @@ export function checkRow(raw: Record<string, unknown>, ctx: RowContext): RowChec
   const lat = num("latitude");
   const lon = num("longitude");
   if (lat !== undefined && lon !== undefined && !inDemoRegion(lat, lon) && inDemoRegion(lon, lat)) {
-    add("latitude", `Latitude and longitude look swapped: ${lat}, ${lon} would put the site at ${describe(lat, lon)}; swapped, it lies at ${lon}° N, ${Math.abs(lat)}° W. Put the latitude in the latitude column.`);
+    add(
+      "latitude",
+      `Latitude and longitude look swapped: ${lat}, ${lon} would put the site at ${describe(lat, lon)}; swapped, it lies at ${lon}° N, ${Math.abs(lat)}° W. Put the latitude in the latitude column.`,
+    );
   } else {
     if (lat !== undefined && (lat < -90 || lat > 90)) {
-      add("latitude", `Latitude ${lat} is outside −90 to 90.${lon !== undefined && lon >= -90 && lon <= 90 && Math.abs(lat) <= 180 ? " Are latitude and longitude swapped?" : ""}`);
+      add(
+        "latitude",
+        `Latitude ${lat} is outside −90 to 90.${lon !== undefined && lon >= -90 && lon <= 90 && Math.abs(lat) <= 180 ? " Are latitude and longitude swapped?" : ""}`,
+      );
     }
     if (lon !== undefined && (lon < -180 || lon > 180)) add("longitude", `Longitude ${lon} is outside −180 to 180.`);
   }
@@ -516,7 +895,10 @@ export function checkRow(raw: Record<string, unknown>, ctx: RowContext): RowChec
     if (m) out.material = m;
     else {
       const near = nearest(out.material as string, ctx.materials);
-      add("material", `"${truncate(out.material as string)}" is not in the list of materials${near ? `; did you mean "${near}"?` : "."}`);
+      add(
+        "material",
+        `"${truncate(out.material as string)}" is not in the list of materials${near ? `; did you mean "${near}"?` : "."}`,
+      );
       delete out.material;
     }
   }
@@ -574,7 +956,8 @@ export function checkRow(raw: Record<string, unknown>, ctx: RowContext): RowChec
     }
     const f = num("f14c");
     if (f !== undefined && !(f > 0)) add("f14c", `f14c must be greater than zero (got ${f}).`);
-    if (f !== undefined && f > 2 && !bad("f14c")) add("f14c", `f14c ${f} is a fraction near 1 or below; is it given in pMC? (${f} pMC is ${f / 100}).`);
+    if (f !== undefined && f > 2 && !bad("f14c"))
+      add("f14c", `f14c ${f} is a fraction near 1 or below; is it given in pMC? (${f} pMC is ${f / 100}).`);
     const d13 = num("d13c");
     if (d13 !== undefined && (d13 < -60 || d13 > 20)) add("d13c", `δ13C ${d13} ‰ is outside the plausible range −60 to 20 ‰.`);
     if (out.age_normalised === false && d13 === undefined && !bad("d13c")) {
@@ -588,7 +971,10 @@ export function checkRow(raw: Record<string, unknown>, ctx: RowContext): RowChec
       if (c) out.curve = c.toLowerCase();
       else {
         const near = nearest(out.curve as string, ctx.curves);
-        add("curve", `No curve named "${truncate(out.curve as string)}"${near ? `; did you mean ${near}?` : `; use ${listWords(ctx.curves)}.`}`);
+        add(
+          "curve",
+          `No curve named "${truncate(out.curve as string)}"${near ? `; did you mean ${near}?` : `; use ${listWords(ctx.curves)}.`}`,
+        );
         delete out.curve;
       }
     } else if (!bad("curve")) {
@@ -596,14 +982,20 @@ export function checkRow(raw: Record<string, unknown>, ctx: RowContext): RowChec
     }
     if (isMarine && !bad("curve") && !marineCurves.has(String(out.curve ?? ""))) {
       const marineNames = [...marineCurves];
-      add("curve", `${out.material} is marine: use ${listWords(marineNames.length ? marineNames : ["marine20"])}${out.curve ? ` rather than ${out.curve}` : ""}.`);
+      add(
+        "curve",
+        `${out.material} is marine: use ${listWords(marineNames.length ? marineNames : ["marine20"])}${out.curve ? ` rather than ${out.curve}` : ""}.`,
+      );
     }
     const onMarineCurve = typeof out.curve === "string" && marineCurves.has(out.curve as string);
     if (has("delta_r") !== has("delta_r_error") && !bad("delta_r") && !bad("delta_r_error")) {
       add(has("delta_r") ? "delta_r_error" : "delta_r", "Give ΔR together with its error.");
     }
     if (onMarineCurve && !has("delta_r") && !bad("delta_r")) {
-      warnings.push({ column: "delta_r", message: "No ΔR given for a marine sample: calibrated with ΔR 0 ± 0, which is rarely right." });
+      warnings.push({
+        column: "delta_r",
+        message: "No ΔR given for a marine sample: calibrated with ΔR 0 ± 0, which is rarely right.",
+      });
     }
     if (has("delta_r") && !has("delta_r_curve")) {
       warnings.push({ column: "delta_r_curve", message: "ΔR given without the curve it was derived against." });
@@ -621,13 +1013,17 @@ export function checkRow(raw: Record<string, unknown>, ctx: RowContext): RowChec
     const hasParts = parts.some(has);
     if (hasRate || !hasParts) {
       if (!hasRate && !parts.some(bad)) {
-        add("dose_rate_gy_per_ka", "Give dose_rate_gy_per_ka with its error, or K, U, Th, water content, burial depth and density to compute it.");
+        add(
+          "dose_rate_gy_per_ka",
+          "Give dose_rate_gy_per_ka with its error, or K, U, Th, water content, burial depth and density to compute it.",
+        );
       } else {
         need("dose_rate_gy_per_ka", "Give dose_rate_gy_per_ka with its error.");
         need("dose_rate_error_gy_per_ka", "Give the error of the dose rate (one standard deviation, in Gy/ka).");
       }
       const rate = num("dose_rate_gy_per_ka");
-      if (rate !== undefined && !(rate > 0)) add("dose_rate_gy_per_ka", `dose_rate_gy_per_ka must be greater than zero (got ${rate}).`);
+      if (rate !== undefined && !(rate > 0))
+        add("dose_rate_gy_per_ka", `dose_rate_gy_per_ka must be greater than zero (got ${rate}).`);
     } else {
       for (const p of parts) need(p, `To compute the dose rate, give ${p} too (or give dose_rate_gy_per_ka with its error).`);
     }
@@ -690,4 +1086,3 @@ export function makeRowSchema(ctx: RowContext) {
     return result.value;
   });
 }
-

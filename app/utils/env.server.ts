@@ -21,7 +21,11 @@ const schema = z.object({
   MAIL_OUTBOX_DIR: z.string().default("data/outbox"),
   /** Multiplies the sign-in code request limits; browser tests that sign in often raise it. */
   SIGN_IN_RATE_LIMIT_FACTOR: z.coerce.number().positive().default(1),
-  UPLOAD_MAX_BYTES: z.coerce.number().int().positive().default(10 * 1024 * 1024),
+  UPLOAD_MAX_BYTES: z.coerce
+    .number()
+    .int()
+    .positive()
+    .default(10 * 1024 * 1024),
   SECURE_COOKIES: z
     .enum(["true", "false"])
     .optional()
@@ -50,6 +54,9 @@ export function env(): Env {
 /** The mail fake is in use whenever no real mail service is configured. */
 export function usesMailFake(): boolean {
   const e = env();
-  return e.RESEND_API_KEY.startsWith("re_fake") || (e.RESEND_BASE_URL ?? "").includes("127.0.0.1") ||
-    (e.RESEND_BASE_URL ?? "").includes("localhost");
+  return (
+    e.RESEND_API_KEY.startsWith("re_fake") ||
+    (e.RESEND_BASE_URL ?? "").includes("127.0.0.1") ||
+    (e.RESEND_BASE_URL ?? "").includes("localhost")
+  );
 }

@@ -12,11 +12,7 @@ const flashCookie = createCookie("thawline_flash", {
 });
 
 /** Redirect after a successful change, carrying a message shown once on the next page. */
-export async function redirectWithFlash(
-  to: string,
-  flash: Flash,
-  init: { headers?: HeadersInit } = {},
-): Promise<Response> {
+export async function redirectWithFlash(to: string, flash: Flash, init: { headers?: HeadersInit } = {}): Promise<Response> {
   const headers = new Headers(init.headers);
   headers.append("Set-Cookie", await flashCookie.serialize(flash));
   return redirect(to, { headers });

@@ -11,10 +11,10 @@ const SAFE_METHODS = new Set(["GET", "HEAD", "OPTIONS"]);
 
 /** @param {Record<string, string | string[] | undefined> | Headers} headers @param {string} name */
 function header(headers, name) {
-  if (typeof (/** @type {Headers} */ (headers)).get === "function") {
-    return (/** @type {Headers} */ (headers)).get(name) ?? undefined;
+  if (typeof (/** @type {Headers} */ (headers).get) === "function") {
+    return /** @type {Headers} */ (headers).get(name) ?? undefined;
   }
-  const value = (/** @type {Record<string, string | string[] | undefined>} */ (headers))[name.toLowerCase()];
+  const value = /** @type {Record<string, string | string[] | undefined>} */ (headers)[name.toLowerCase()];
   return Array.isArray(value) ? value[0] : value;
 }
 

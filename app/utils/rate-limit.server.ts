@@ -7,12 +7,7 @@ export type RateLimitResult = { allowed: boolean; retryAfterS: number };
  * `limit` hits in it are allowed, later ones are refused until the window has passed. One
  * UPSERT, so concurrent requests never double-count or lose a hit.
  */
-export function hit(
-  key: string,
-  limit: number,
-  windowMs: number,
-  options: { db?: Db; now?: number } = {},
-): RateLimitResult {
+export function hit(key: string, limit: number, windowMs: number, options: { db?: Db; now?: number } = {}): RateLimitResult {
   const db = options.db ?? getDb();
   const now = options.now ?? Date.now();
   const expired = now - windowMs;

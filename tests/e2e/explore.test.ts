@@ -61,7 +61,9 @@ describe("exploring the registry", () => {
       table.getByRole("link", { name: /^Median \(cal BP\)/ }).click(),
     ]);
     await table.locator('th[aria-sort="descending"]').filter({ hasText: "Median" }).waitFor();
-    const medians = (await table.locator("tbody tr td:nth-child(6)").allTextContents()).filter((t) => t.trim() !== "").map(numberIn);
+    const medians = (await table.locator("tbody tr td:nth-child(6)").allTextContents())
+      .filter((t) => t.trim() !== "")
+      .map(numberIn);
     expect(medians.length).toBeGreaterThan(10);
     expect(medians).toEqual([...medians].sort((a, b) => b - a));
 
@@ -123,7 +125,10 @@ describe("exploring the registry", () => {
     const plain = await noScript.newPage();
     await plain.goto(`${baseUrl}/explore`);
     await plain.getByLabel("Grade").selectOption("ungraded");
-    await Promise.all([plain.waitForURL((u) => u.searchParams.get("grade") === "ungraded"), plain.getByRole("button", { name: "Apply filters" }).click()]);
+    await Promise.all([
+      plain.waitForURL((u) => u.searchParams.get("grade") === "ungraded"),
+      plain.getByRole("button", { name: "Apply filters" }).click(),
+    ]);
     const grades = await plain.getByTestId("explore-table").locator("tbody tr td:nth-child(9)").allTextContents();
     expect(grades.length).toBeGreaterThan(0);
     expect(new Set(grades)).toEqual(new Set(["ungraded"]));

@@ -46,7 +46,10 @@ describe("signing in", () => {
     await page.getByRole("heading", { name: "Where you are signed in" }).waitFor();
     expect(await page.getByText("this browser").count()).toBe(1);
 
-    await Promise.all([page.waitForURL(`${baseUrl}/`), page.getByRole("banner").getByRole("button", { name: "Sign out", exact: true }).click()]);
+    await Promise.all([
+      page.waitForURL(`${baseUrl}/`),
+      page.getByRole("banner").getByRole("button", { name: "Sign out", exact: true }).click(),
+    ]);
     await page.getByRole("link", { name: "Sign in" }).first().waitFor();
     expect(await page.getByRole("link", { name: nameOf(email) }).count()).toBe(0);
     await page.goto(`${baseUrl}/account`);
@@ -135,7 +138,11 @@ describe("the origin check", () => {
       redirect: "manual",
     });
     expect(forgedData.status).toBe(403);
-    const signOut = await fetch(`${baseUrl}/sign-out`, { method: "POST", headers: { Cookie: cookie, Origin: "null" }, redirect: "manual" });
+    const signOut = await fetch(`${baseUrl}/sign-out`, {
+      method: "POST",
+      headers: { Cookie: cookie, Origin: "null" },
+      redirect: "manual",
+    });
     expect(signOut.status).toBe(403);
     const api = await fetch(`${baseUrl}/api/v1/calibrate`, {
       method: "POST",

@@ -21,7 +21,10 @@ describe("uploading a spreadsheet", () => {
 
     await page.goto(`${baseUrl}/uploads`);
     await page.getByRole("heading", { name: "Upload determinations" }).waitFor();
-    const [download] = await Promise.all([page.waitForEvent("download"), page.getByRole("link", { name: "template (.xlsx)" }).click()]);
+    const [download] = await Promise.all([
+      page.waitForEvent("download"),
+      page.getByRole("link", { name: "template (.xlsx)" }).click(),
+    ]);
     const templatePath = await download.path();
     const workbook = new ExcelJS.Workbook();
     await workbook.xlsx.readFile(templatePath);

@@ -46,10 +46,9 @@ const signedIn = (answer: Answer): Record<Audience, Answer> => ({
 });
 
 const only = (roles: Role[], answer: Answer, signedOut: Answer = "sign-in", others: Answer = "forbidden") =>
-  Object.fromEntries(AUDIENCES.map((a) => [a, a === "signed-out" ? signedOut : roles.includes(a as Role) ? answer : others])) as Record<
-    Audience,
-    Answer
-  >;
+  Object.fromEntries(
+    AUDIENCES.map((a) => [a, a === "signed-out" ? signedOut : roles.includes(a as Role) ? answer : others]),
+  ) as Record<Audience, Answer>;
 
 const publicButSignedInGoesOn = (to: string): Record<Audience, Answer> => ({
   "signed-out": "ok",
@@ -69,7 +68,12 @@ export const ACCESS: Record<string, Row> = {
   "routes/account": { url: "/account", get: signedIn("ok"), post: signedIn("allowed") },
   "routes/people": { url: "/people", get: only(["editor"], "ok"), post: only(["editor"], "allowed") },
   "routes/dev.outbox": { url: "/dev/outbox", get: "ok", post: "none" },
-  "routes/api/v1.me": { url: "/api/v1/me", auth: "token", get: { ...signedIn("ok"), "signed-out": "unauthorized" }, post: "none" },
+  "routes/api/v1.me": {
+    url: "/api/v1/me",
+    auth: "token",
+    get: { ...signedIn("ok"), "signed-out": "unauthorized" },
+    post: "none",
+  },
   // Reading the registry: any signed-in person
   "routes/explore": { url: "/explore", get: signedIn("ok"), post: "none" },
   "routes/determination": { url: "/determinations/:id", params: { id: "determinationId" }, get: signedIn("ok"), post: "none" },
@@ -191,7 +195,13 @@ beforeAll(async () => {
   const job = db.insert(jobs).values({ kind: "recalibrate" }).returning().get();
   const upload = db
     .insert(uploadBatches)
-    .values({ publicId: "matrix-upload-0001", userId: people.contributor.id, fileName: "matrix.csv", fileKind: "csv", fileSizeBytes: 10 })
+    .values({
+      publicId: "matrix-upload-0001",
+      userId: people.contributor.id,
+      fileName: "matrix.csv",
+      fileKind: "csv",
+      fileSizeBytes: 10,
+    })
     .returning()
     .get();
   Object.assign(fixtures, {
@@ -245,7 +255,8 @@ function matches(answer: Answer, o: Outcome): boolean {
     case "none":
       return false;
     default:
-      if (answer.startsWith("redirect:")) return o.status >= 300 && o.status < 400 && o.location === answer.slice("redirect:".length);
+      if (answer.startsWith("redirect:"))
+        return o.status >= 300 && o.status < 400 && o.location === answer.slice("redirect:".length);
       return o.status === Number(answer.slice("status:".length));
   }
 }
@@ -255,8 +266,14 @@ const answerFor = (cell: PerAudience, audience: Audience): Answer => (typeof cel
 describe("access matrix", () => {
   it("has a row for every route that exists, and no row for a route that does not", () => {
     const ids = ENTRIES.map((e) => e.id);
-    expect(ids.filter((id) => !(id in ACCESS)), "routes without an access decision").toEqual([]);
-    expect(Object.keys(ACCESS).filter((id) => !ids.includes(id)), "rows for routes that no longer exist").toEqual([]);
+    expect(
+      ids.filter((id) => !(id in ACCESS)),
+      "routes without an access decision",
+    ).toEqual([]);
+    expect(
+      Object.keys(ACCESS).filter((id) => !ids.includes(id)),
+      "rows for routes that no longer exist",
+    ).toEqual([]);
   });
 
   for (const entry of ENTRIES) {
@@ -276,7 +293,8 @@ describe("access matrix", () => {
       ] as const) {
         const declaredNone = AUDIENCES.every((a) => answerFor(cell, a) === "none");
         if (!fn) {
-          if (!declaredNone) problems.push(`${method}: the row expects answers but the module has no ${method === "GET" ? "loader" : "action"}`);
+          if (!declaredNone)
+            problems.push(`${method}: the row expects answers but the module has no ${method === "GET" ? "loader" : "action"}`);
           continue;
         }
         if (declaredNone) {
@@ -286,7 +304,8 @@ describe("access matrix", () => {
         for (const audience of AUDIENCES) {
           const expected = answerFor(cell, audience);
           const outcome = await run(() => fn(args(requestFor(row, audience, method), params)));
-          if (!matches(expected, outcome)) problems.push(`${method} as ${audience}: expected ${expected}, got ${describeOutcome(outcome)}`);
+          if (!matches(expected, outcome))
+            problems.push(`${method} as ${audience}: expected ${expected}, got ${describeOutcome(outcome)}`);
         }
       }
       expect(problems).toEqual([]);

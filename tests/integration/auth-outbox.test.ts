@@ -17,13 +17,22 @@ const { args, get, run } = await import("#tests/support/auth.ts");
 
 const fake = useMailFake("dev");
 
-type Page = { problem: string | null; messages: { to: string[]; code: string | null; links: string[]; subject: string; html: string | null }[] };
+type Page = {
+  problem: string | null;
+  messages: { to: string[]; code: string | null; links: string[]; subject: string; html: string | null }[];
+};
 
 describe("the development outbox", () => {
   it("lists messages newest first with their codes, links and both versions", async () => {
     mailFake.on = true;
-    await sendEmail({ to: "first@example.org", ...signInMessage({ code: "ABC234", link: "http://localhost/sign-in/link?t=one", minutes: 10 }) });
-    await sendEmail({ to: "second@example.org", ...signInMessage({ code: "XYZ789", link: "http://localhost/sign-in/link?t=two", minutes: 10 }) });
+    await sendEmail({
+      to: "first@example.org",
+      ...signInMessage({ code: "ABC234", link: "http://localhost/sign-in/link?t=one", minutes: 10 }),
+    });
+    await sendEmail({
+      to: "second@example.org",
+      ...signInMessage({ code: "XYZ789", link: "http://localhost/sign-in/link?t=two", minutes: 10 }),
+    });
     const page = await run(() => outbox.loader(args(get("/dev/outbox"))));
     expect(page.status).toBe(200);
     const { messages, problem } = page.data as Page;
@@ -57,7 +66,11 @@ describe("the development outbox", () => {
 describe("the mail fake", () => {
   it("speaks the hosted API: needs a key, answers an id, keeps the message", async () => {
     const payload = { from: "a@example.org", to: ["b@example.org"], subject: "Hello", text: "Hi" };
-    const noKey = await fetch(`${fake.url}/emails`, { method: "POST", body: JSON.stringify(payload), headers: { "Content-Type": "application/json" } });
+    const noKey = await fetch(`${fake.url}/emails`, {
+      method: "POST",
+      body: JSON.stringify(payload),
+      headers: { "Content-Type": "application/json" },
+    });
     expect(noKey.status).toBe(401);
     const badKey = await fetch(`${fake.url}/emails`, {
       method: "POST",

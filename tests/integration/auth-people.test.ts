@@ -22,10 +22,24 @@ describe("the people page", () => {
       const p = await personWithSession([role]);
       expect((await run(() => people.loader(args(get("/people", { cookie: p.cookie }))))).status).toBe(403);
       const write = await run(() =>
-        people.action(args(post("/people", { intent: "invite", name: "X", email: `x-${role}@example.org`, roles: "editor" }, { cookie: p.cookie }))),
+        people.action(
+          args(
+            post(
+              "/people",
+              { intent: "invite", name: "X", email: `x-${role}@example.org`, roles: "editor" },
+              { cookie: p.cookie },
+            ),
+          ),
+        ),
       );
       expect(write.status).toBe(403);
-      expect(getDb().select().from(users).where(eq(users.email, `x-${role}@example.org`)).get()).toBeUndefined();
+      expect(
+        getDb()
+          .select()
+          .from(users)
+          .where(eq(users.email, `x-${role}@example.org`))
+          .get(),
+      ).toBeUndefined();
     }
   });
 
@@ -42,7 +56,13 @@ describe("the people page", () => {
     const editor = await personWithSession(["editor"], { name: "Edith Editor" });
     const outcome = await run(() =>
       people.action(
-        args(post("/people", { intent: "invite", name: "Noor Field", email: "Noor.Field@Example.org", roles: ["contributor", "reviewer"] }, { cookie: editor.cookie })),
+        args(
+          post(
+            "/people",
+            { intent: "invite", name: "Noor Field", email: "Noor.Field@Example.org", roles: ["contributor", "reviewer"] },
+            { cookie: editor.cookie },
+          ),
+        ),
       ),
     );
     expect(outcome.status).toBe(302);
@@ -57,7 +77,11 @@ describe("the people page", () => {
     expect(mail[0]!.text).toContain("/sign-in?email=noor.field%40example.org");
     expect(mail[0]!.html).toContain("Go to the sign-in page");
 
-    const invite = getDb().select().from(auditLog).where(and(eq(auditLog.action, "user.invite"), eq(auditLog.entityId, String(row.id)))).get();
+    const invite = getDb()
+      .select()
+      .from(auditLog)
+      .where(and(eq(auditLog.action, "user.invite"), eq(auditLog.entityId, String(row.id))))
+      .get();
     expect(invite?.actorId).toBe(editor.id);
   });
 
@@ -65,14 +89,24 @@ describe("the people page", () => {
     const editor = await personWithSession(["editor"]);
     const existing = await personWithSession(["modeller"], { name: "Already Here" });
     const taken = await run(() =>
-      people.action(args(post("/people", { intent: "invite", name: "Again", email: existing.email, roles: "reviewer" }, { cookie: editor.cookie }))),
+      people.action(
+        args(
+          post(
+            "/people",
+            { intent: "invite", name: "Again", email: existing.email, roles: "reviewer" },
+            { cookie: editor.cookie },
+          ),
+        ),
+      ),
     );
     expect(taken.status).toBe(400);
     expect(JSON.stringify(taken.data)).toContain("already belongs to Already Here");
     expect(getPerson(getDb(), existing.id)!.roles).toEqual(["modeller"]);
 
     const noRoles = await run(() =>
-      people.action(args(post("/people", { intent: "invite", name: "Nobody", email: "no-roles@example.org" }, { cookie: editor.cookie }))),
+      people.action(
+        args(post("/people", { intent: "invite", name: "Nobody", email: "no-roles@example.org" }, { cookie: editor.cookie })),
+      ),
     );
     expect(noRoles.status).toBe(400);
     expect(JSON.stringify(noRoles.data)).toContain("Choose at least one role");
@@ -82,11 +116,23 @@ describe("the people page", () => {
     const editor = await personWithSession(["editor"]);
     const p = await personWithSession(["contributor"]);
     const outcome = await run(() =>
-      people.action(args(post("/people", { intent: "set-roles", userId: String(p.id), roles: ["reviewer", "modeller"] }, { cookie: editor.cookie }))),
+      people.action(
+        args(
+          post(
+            "/people",
+            { intent: "set-roles", userId: String(p.id), roles: ["reviewer", "modeller"] },
+            { cookie: editor.cookie },
+          ),
+        ),
+      ),
     );
     expect(outcome.status).toBe(302);
     expect((await getOptionalUser(get("/", { cookie: p.cookie })))!.roles.sort()).toEqual(["modeller", "reviewer"]);
-    const record = getDb().select().from(auditLog).where(and(eq(auditLog.action, "user.roles"), eq(auditLog.entityId, String(p.id)))).get()!;
+    const record = getDb()
+      .select()
+      .from(auditLog)
+      .where(and(eq(auditLog.action, "user.roles"), eq(auditLog.entityId, String(p.id))))
+      .get()!;
     expect(record.before).toEqual({ roles: ["contributor"] });
     expect(record.after).toEqual({ roles: ["reviewer", "modeller"] });
     expect(record.actorId).toBe(editor.id);
@@ -95,10 +141,14 @@ describe("the people page", () => {
   it("deactivates a person: sessions end and tokens stop at once; reactivation lets them sign in again", async () => {
     const editor = await personWithSession(["editor"]);
     const p = await personWithSession(["modeller"]);
-    const created = await run(() => account.action(args(post("/account", { intent: "create-token", label: "t" }, { cookie: p.cookie }))));
+    const created = await run(() =>
+      account.action(args(post("/account", { intent: "create-token", label: "t" }, { cookie: p.cookie }))),
+    );
     const token = (created.data as { newToken: { token: string } }).newToken.token;
 
-    const off = await run(() => people.action(args(post("/people", { intent: "deactivate", userId: String(p.id) }, { cookie: editor.cookie }))));
+    const off = await run(() =>
+      people.action(args(post("/people", { intent: "deactivate", userId: String(p.id) }, { cookie: editor.cookie }))),
+    );
     expect(off.status).toBe(302);
     expect(await getOptionalUser(get("/", { cookie: p.cookie }))).toBeNull();
     expect(getDb().select().from(sessions).where(eq(sessions.userId, p.id)).all()).toHaveLength(0);
@@ -106,29 +156,55 @@ describe("the people page", () => {
     expect(api.status).toBe(401);
     const page = await run(() => people.loader(args(get("/people", { cookie: editor.cookie }))));
     expect((page.data as { people: { id: number; active: boolean }[] }).people.find((x) => x.id === p.id)!.active).toBe(false);
-    expect(getDb().select().from(auditLog).where(and(eq(auditLog.action, "user.deactivate"), eq(auditLog.entityId, String(p.id)))).get()).toBeDefined();
+    expect(
+      getDb()
+        .select()
+        .from(auditLog)
+        .where(and(eq(auditLog.action, "user.deactivate"), eq(auditLog.entityId, String(p.id))))
+        .get(),
+    ).toBeDefined();
 
-    const on = await run(() => people.action(args(post("/people", { intent: "reactivate", userId: String(p.id) }, { cookie: editor.cookie }))));
+    const on = await run(() =>
+      people.action(args(post("/people", { intent: "reactivate", userId: String(p.id) }, { cookie: editor.cookie }))),
+    );
     expect(on.status).toBe(302);
     expect(getPerson(getDb(), p.id)!.active).toBe(true);
-    expect(getDb().select().from(auditLog).where(and(eq(auditLog.action, "user.reactivate"), eq(auditLog.entityId, String(p.id)))).get()).toBeDefined();
+    expect(
+      getDb()
+        .select()
+        .from(auditLog)
+        .where(and(eq(auditLog.action, "user.reactivate"), eq(auditLog.entityId, String(p.id))))
+        .get(),
+    ).toBeDefined();
   });
 
   it("keeps an editor from locking themselves out", async () => {
     const editor = await personWithSession(["editor", "reviewer"]);
     const drop = await run(() =>
-      people.action(args(post("/people", { intent: "set-roles", userId: String(editor.id), roles: "reviewer" }, { cookie: editor.cookie }))),
+      people.action(
+        args(post("/people", { intent: "set-roles", userId: String(editor.id), roles: "reviewer" }, { cookie: editor.cookie })),
+      ),
     );
     expect(drop.status).toBe(400);
     expect(getPerson(getDb(), editor.id)!.roles).toEqual(["reviewer", "editor"]);
-    const self = await run(() => people.action(args(post("/people", { intent: "deactivate", userId: String(editor.id) }, { cookie: editor.cookie }))));
+    const self = await run(() =>
+      people.action(args(post("/people", { intent: "deactivate", userId: String(editor.id) }, { cookie: editor.cookie }))),
+    );
     expect(self.status).toBe(400);
     expect(getPerson(getDb(), editor.id)!.active).toBe(true);
   });
 
   it("answers an unknown intent with 400 and a missing person with 404", async () => {
     const editor = await personWithSession(["editor"]);
-    expect((await run(() => people.action(args(post("/people", { intent: "promote" }, { cookie: editor.cookie }))))).status).toBe(400);
-    expect((await run(() => people.action(args(post("/people", { intent: "deactivate", userId: "999999" }, { cookie: editor.cookie }))))).status).toBe(404);
+    expect((await run(() => people.action(args(post("/people", { intent: "promote" }, { cookie: editor.cookie }))))).status).toBe(
+      400,
+    );
+    expect(
+      (
+        await run(() =>
+          people.action(args(post("/people", { intent: "deactivate", userId: "999999" }, { cookie: editor.cookie }))),
+        )
+      ).status,
+    ).toBe(404);
   });
 });

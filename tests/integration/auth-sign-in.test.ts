@@ -4,7 +4,12 @@ import { readOutbox } from "#seed/mail-fake.ts";
 import { getDb } from "#app/db/client.server.ts";
 import { auditLog, sessions, users } from "#app/db/schema.ts";
 import { getOptionalUser } from "#app/auth/session.server.ts";
-import { CODE_REQUESTS_PER_ADDRESS, CODE_REQUESTS_PER_CLIENT, MAX_TRIES_PER_CODE, SIGN_IN_ERRORS } from "#app/auth/sign-in.server.ts";
+import {
+  CODE_REQUESTS_PER_ADDRESS,
+  CODE_REQUESTS_PER_CLIENT,
+  MAX_TRIES_PER_CODE,
+  SIGN_IN_ERRORS,
+} from "#app/auth/sign-in.server.ts";
 import { readMessageText } from "#app/mail/templates.server.ts";
 import { createUser, setActive } from "#app/models/users.server.ts";
 import * as signIn from "#app/routes/sign-in.tsx";
@@ -51,7 +56,9 @@ async function requestCode(email: string, opts: { jar?: CookieJar; client?: stri
 
 async function enterCode(jar: CookieJar, code: string) {
   const outcome = await run(() =>
-    signIn.action(args(post("/sign-in", { intent: "verify", code }, { cookie: jar.header(), headers: { "User-Agent": "vitest" } }))),
+    signIn.action(
+      args(post("/sign-in", { intent: "verify", code }, { cookie: jar.header(), headers: { "User-Agent": "vitest" } })),
+    ),
   );
   jar.take(new Response(null, { headers: outcome.headers }));
   return outcome;
@@ -94,7 +101,11 @@ describe("sign-in with an e-mailed code", () => {
 
     const row = getDb().select().from(users).where(eq(users.id, p.id)).get();
     expect(row?.lastSignInAt).toBeInstanceOf(Date);
-    const audits = getDb().select().from(auditLog).where(and(eq(auditLog.action, "auth.sign_in"), eq(auditLog.entityId, String(p.id)))).all();
+    const audits = getDb()
+      .select()
+      .from(auditLog)
+      .where(and(eq(auditLog.action, "auth.sign_in"), eq(auditLog.entityId, String(p.id))))
+      .all();
     expect(audits).toHaveLength(1);
     expect(audits[0]!.after).toEqual({ method: "code" });
   });
@@ -121,7 +132,11 @@ describe("sign-in with an e-mailed code", () => {
     expect(outcome.location).toBe("/sign-in");
     expect(jar.get("thawline_session")).toBeUndefined();
     expect(await pageState(jar)).toMatchObject({ pendingEmail: p.email, error: SIGN_IN_ERRORS.invalidTotp });
-    const failed = getDb().select().from(auditLog).where(and(eq(auditLog.action, "auth.sign_in_failed"), eq(auditLog.entityId, String(p.id)))).all();
+    const failed = getDb()
+      .select()
+      .from(auditLog)
+      .where(and(eq(auditLog.action, "auth.sign_in_failed"), eq(auditLog.entityId, String(p.id))))
+      .all();
     expect(failed).toHaveLength(1);
 
     const ok = await enterCode(jar, code!);
@@ -275,7 +290,11 @@ describe("sign-in with the magic link", () => {
     expect(done.status).toBe(302);
     expect(done.location).toBe("/");
     expect(await getOptionalUser(get("/", { cookie: jar.header() }))).toMatchObject({ id: p.id, roles: ["modeller"] });
-    const audit = getDb().select().from(auditLog).where(and(eq(auditLog.action, "auth.sign_in"), eq(auditLog.entityId, String(p.id)))).get();
+    const audit = getDb()
+      .select()
+      .from(auditLog)
+      .where(and(eq(auditLog.action, "auth.sign_in"), eq(auditLog.entityId, String(p.id))))
+      .get();
     expect(audit?.after).toEqual({ method: "link" });
   });
 
@@ -293,7 +312,9 @@ describe("sign-in with the magic link", () => {
   it("refuses a forged link token", async () => {
     const p = person();
     const { jar } = await requestCode(p.email);
-    const done = await run(() => signInLink.action(args(post("/sign-in/link", { t: "forged.token.value" }, { cookie: jar.header() }))));
+    const done = await run(() =>
+      signInLink.action(args(post("/sign-in/link", { t: "forged.token.value" }, { cookie: jar.header() }))),
+    );
     jar.take(new Response(null, { headers: done.headers }));
     expect(done.location).toBe("/sign-in");
     expect(jar.get("thawline_session")).toBeUndefined();

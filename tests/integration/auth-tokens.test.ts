@@ -52,21 +52,40 @@ describe("personal API tokens", () => {
   it("stop working once revoked", async () => {
     const p = await personWithSession(["modeller"]);
     const token = await newToken(p.cookie);
-    const id = getDb().select().from(apiTokens).where(eq(apiTokens.tokenHash, hashToken(token))).get()!.id;
-    const revoked = await run(() => account.action(args(post("/account", { intent: "revoke-token", tokenId: String(id) }, { cookie: p.cookie }))));
+    const id = getDb()
+      .select()
+      .from(apiTokens)
+      .where(eq(apiTokens.tokenHash, hashToken(token)))
+      .get()!.id;
+    const revoked = await run(() =>
+      account.action(args(post("/account", { intent: "revoke-token", tokenId: String(id) }, { cookie: p.cookie }))),
+    );
     expect(revoked.status).toBe(302);
     const answer = await apiMe(token);
     expect(answer.status).toBe(401);
     expect(answer.data).toEqual({ error: expect.any(String) });
-    expect(getDb().select().from(auditLog).where(eq(auditLog.action, "token.revoke")).all().some((a) => a.entityId === String(id))).toBe(true);
+    expect(
+      getDb()
+        .select()
+        .from(auditLog)
+        .where(eq(auditLog.action, "token.revoke"))
+        .all()
+        .some((a) => a.entityId === String(id)),
+    ).toBe(true);
   });
 
   it("cannot be revoked by someone else", async () => {
     const owner = await personWithSession(["modeller"]);
     const other = await personWithSession(["modeller"]);
     const token = await newToken(owner.cookie);
-    const id = getDb().select().from(apiTokens).where(eq(apiTokens.tokenHash, hashToken(token))).get()!.id;
-    const outcome = await run(() => account.action(args(post("/account", { intent: "revoke-token", tokenId: String(id) }, { cookie: other.cookie }))));
+    const id = getDb()
+      .select()
+      .from(apiTokens)
+      .where(eq(apiTokens.tokenHash, hashToken(token)))
+      .get()!.id;
+    const outcome = await run(() =>
+      account.action(args(post("/account", { intent: "revoke-token", tokenId: String(id) }, { cookie: other.cookie }))),
+    );
     expect(outcome.status).toBe(404);
     expect((await apiMe(token)).status).toBe(200);
   });
@@ -109,7 +128,9 @@ describe("personal API tokens", () => {
 
   it("need a name", async () => {
     const p = await personWithSession(["modeller"]);
-    const outcome = await run(() => account.action(args(post("/account", { intent: "create-token", label: "  " }, { cookie: p.cookie }))));
+    const outcome = await run(() =>
+      account.action(args(post("/account", { intent: "create-token", label: "  " }, { cookie: p.cookie }))),
+    );
     expect(outcome.status).toBe(400);
     expect(getDb().select().from(apiTokens).where(eq(apiTokens.userId, p.id)).all()).toHaveLength(0);
   });
@@ -118,7 +139,10 @@ describe("personal API tokens", () => {
 describe("the account page", () => {
   it("lists the person's sessions and ends another one", async () => {
     const p = await personWithSession(["contributor"]);
-    const other = await createSession(p.id, new Request("http://localhost/", { headers: { "User-Agent": "Mozilla/5.0 (X11; Linux x86_64) Firefox/140.0" } }));
+    const other = await createSession(
+      p.id,
+      new Request("http://localhost/", { headers: { "User-Agent": "Mozilla/5.0 (X11; Linux x86_64) Firefox/140.0" } }),
+    );
     const page = await run(() => account.loader(args(get("/account", { cookie: p.cookie }))));
     const listed = (page.data as { sessions: { handle: string; current: boolean; browser: string }[] }).sessions;
     expect(listed).toHaveLength(2);
@@ -127,7 +151,9 @@ describe("the account page", () => {
     expect(JSON.stringify(page.data)).not.toContain(other.id);
 
     const outcome = await run(() =>
-      account.action(args(post("/account", { intent: "revoke-session", session: sessionHandle(other.id) }, { cookie: p.cookie }))),
+      account.action(
+        args(post("/account", { intent: "revoke-session", session: sessionHandle(other.id) }, { cookie: p.cookie })),
+      ),
     );
     expect(outcome.status).toBe(302);
     expect(outcome.location).toBe("/account");
@@ -139,7 +165,9 @@ describe("the account page", () => {
     const p = await personWithSession(["contributor"]);
     const q = await personWithSession(["contributor"]);
     const outcome = await run(() =>
-      account.action(args(post("/account", { intent: "revoke-session", session: sessionHandle(q.sessionId) }, { cookie: p.cookie }))),
+      account.action(
+        args(post("/account", { intent: "revoke-session", session: sessionHandle(q.sessionId) }, { cookie: p.cookie })),
+      ),
     );
     expect(outcome.status).toBe(404);
     expect(getDb().select().from(sessions).where(eq(sessions.id, q.sessionId)).get()).toBeDefined();
@@ -149,15 +177,26 @@ describe("the account page", () => {
     const p = await personWithSession(["contributor"]);
     await createSession(p.id, new Request("http://localhost/"));
     await createSession(p.id, new Request("http://localhost/"));
-    const outcome = await run(() => account.action(args(post("/account", { intent: "revoke-other-sessions" }, { cookie: p.cookie }))));
+    const outcome = await run(() =>
+      account.action(args(post("/account", { intent: "revoke-other-sessions" }, { cookie: p.cookie }))),
+    );
     expect(outcome.status).toBe(302);
-    expect(getDb().select().from(sessions).where(eq(sessions.userId, p.id)).all().map((s) => s.id)).toEqual([p.sessionId]);
+    expect(
+      getDb()
+        .select()
+        .from(sessions)
+        .where(eq(sessions.userId, p.id))
+        .all()
+        .map((s) => s.id),
+    ).toEqual([p.sessionId]);
   });
 
   it("ending the current session signs out", async () => {
     const p = await personWithSession(["contributor"]);
     const outcome = await run(() =>
-      account.action(args(post("/account", { intent: "revoke-session", session: sessionHandle(p.sessionId) }, { cookie: p.cookie }))),
+      account.action(
+        args(post("/account", { intent: "revoke-session", session: sessionHandle(p.sessionId) }, { cookie: p.cookie })),
+      ),
     );
     expect(outcome.location).toBe("/");
     expect(outcome.headers.getSetCookie().some((c) => c.startsWith("thawline_session=;") && /Max-Age=0/i.test(c))).toBe(true);

@@ -175,7 +175,11 @@ describe("POST /api/v1/calibrate", () => {
   });
 
   test("GET is a 405", async () => {
-    const res = (await loader({ request: new Request("http://localhost/api/v1/calibrate"), params: {}, context: {} } as never)) as Response;
+    const res = (await loader({
+      request: new Request("http://localhost/api/v1/calibrate"),
+      params: {},
+      context: {},
+    } as never)) as Response;
     expect(res.status).toBe(405);
     expect(res.headers.get("Allow")).toBe("POST");
     expect((await bodyOf(res)).error).toMatch(/POST/);

@@ -92,7 +92,11 @@ describe("calibrations across curve versions", () => {
     expect(earlier.curveLabel).toContain("(1)");
     expect(earlier.medianCalBp!).toBeCloseTo((9000 - 100) / 0.9, 0);
     // the recalibration is audited
-    const audits = db.select().from(auditLog).where(eq(auditLog.entityId, String(jobId))).all();
+    const audits = db
+      .select()
+      .from(auditLog)
+      .where(eq(auditLog.entityId, String(jobId)))
+      .all();
     expect(audits.map((a) => a.action)).toContain("calibration.recalibrate");
   });
 
@@ -121,7 +125,11 @@ describe("/curves", () => {
     );
     expect(refused).toBeInstanceOf(Response);
     expect((refused as Response).status).toBe(403);
-    const loaderRefused = await curvesLoader({ request: new Request("http://localhost/curves", { headers: { Cookie: cookie } }), params: {}, context: {} } as never).then(
+    const loaderRefused = await curvesLoader({
+      request: new Request("http://localhost/curves", { headers: { Cookie: cookie } }),
+      params: {},
+      context: {},
+    } as never).then(
       () => null,
       (e: unknown) => e,
     );
@@ -167,7 +175,10 @@ describe("/curves", () => {
     expect(noFile.init.status).toBe(400);
     expect(noFile.data.result.error.file.join(" ")).toMatch(/Choose the curve's CSV file/);
     expect(noFile.data.result.error.maxStep.join(" ")).toMatch(/at least 1 year/);
-    const taken = (await callCurves(curvesForm({ ...fields, name: "intcal20", version: "2020", file: csvFile(negativeSigma) }), cookie)) as any;
+    const taken = (await callCurves(
+      curvesForm({ ...fields, name: "intcal20", version: "2020", file: csvFile(negativeSigma) }),
+      cookie,
+    )) as any;
     expect(taken.data.result.error.version.join(" ")).toMatch(/already stored/);
 
     expect(db.select().from(curves).all().length).toBe(curvesBefore);
@@ -191,7 +202,10 @@ describe("/curves", () => {
     const dets = Array.from({ length: 600 }, (_, i) =>
       createTestDetermination(db, { c14AgeYr: 5000 + i, c14ErrorYr: 40, curveName: "frostjobs" }),
     );
-    calibrateDeterminations(db, dets.map((d) => d.id));
+    calibrateDeterminations(
+      db,
+      dets.map((d) => d.id),
+    );
 
     const added = await callCurves(
       curvesForm({
@@ -210,7 +224,14 @@ describe("/curves", () => {
     expect((added as Response).status).toBe(302);
     const v2 = activeCurve(db, "frostjobs")!;
     expect(v2.version).toBe("2");
-    expect(db.select().from(auditLog).where(eq(auditLog.action, "curve.import")).all().some((a) => a.entityId === String(v2.id))).toBe(true);
+    expect(
+      db
+        .select()
+        .from(auditLog)
+        .where(eq(auditLog.action, "curve.import"))
+        .all()
+        .some((a) => a.entityId === String(v2.id)),
+    ).toBe(true);
 
     const job = db.select().from(jobs).all().at(-1)!;
     expect(job.kind).toBe("recalibrate");
@@ -219,7 +240,11 @@ describe("/curves", () => {
     // Follow it through the polling route, as the page does, one event-loop turn at a time.
     const seen: number[] = [];
     const jobRequest = () =>
-      jobLoader({ request: new Request(`http://localhost/api/jobs/${job.id}`, { headers: { Cookie: cookie } }), params: { id: String(job.id) }, context: {} } as never) as Promise<Response>;
+      jobLoader({
+        request: new Request(`http://localhost/api/jobs/${job.id}`, { headers: { Cookie: cookie } }),
+        params: { id: String(job.id) },
+        context: {},
+      } as never) as Promise<Response>;
     for (;;) {
       const res = await jobRequest();
       expect(res.status).toBe(200);
@@ -241,7 +266,12 @@ describe("/curves", () => {
     }
 
     // Activating version 1 again makes it the only active one and recalibrates back onto it.
-    const v1 = db.select().from(curves).where(eq(curves.name, "frostjobs")).all().find((c) => c.version === "1")!;
+    const v1 = db
+      .select()
+      .from(curves)
+      .where(eq(curves.name, "frostjobs"))
+      .all()
+      .find((c) => c.version === "1")!;
     const activated = await callCurves(curvesForm({ intent: "activate", curveId: String(v1.id) }), cookie);
     expect((activated as Response).status).toBe(302);
     const versions = db.select().from(curves).where(eq(curves.name, "frostjobs")).all();
@@ -263,13 +293,21 @@ describe("/curves", () => {
     const { jobId } = startRecalibration(db, { curveName: "no-such-curve", actorId: null, reason: "test" });
     await jobFinished(jobId);
     const call = (cookie?: string) =>
-      jobLoader({ request: new Request(`http://localhost/api/jobs/${jobId}`, { headers: cookie ? { Cookie: cookie } : {} }), params: { id: String(jobId) }, context: {} } as never) as Promise<Response>;
+      jobLoader({
+        request: new Request(`http://localhost/api/jobs/${jobId}`, { headers: cookie ? { Cookie: cookie } : {} }),
+        params: { id: String(jobId) },
+        context: {},
+      } as never) as Promise<Response>;
     expect((await call()).status).toBe(401);
     expect((await call((await cookieFor(["contributor"])).cookie)).status).toBe(403);
     const ok = await call((await cookieFor(["editor"])).cookie);
     expect(ok.status).toBe(200);
     expect(await ok.json()).toMatchObject({ id: jobId, status: "done", total: 0 });
-    const missing = await jobLoader({ request: new Request("http://localhost/api/jobs/999999", { headers: { Cookie: (await cookieFor(["editor"])).cookie } }), params: { id: "999999" }, context: {} } as never) as Response;
+    const missing = (await jobLoader({
+      request: new Request("http://localhost/api/jobs/999999", { headers: { Cookie: (await cookieFor(["editor"])).cookie } }),
+      params: { id: "999999" },
+      context: {},
+    } as never)) as Response;
     expect(missing.status).toBe(404);
   });
 });

@@ -57,7 +57,12 @@ beforeAll(async () => {
 
   insertReview(db, mainId, reviewerId, { grade: 3, flags: [], comment: "First look.", createdAt: new Date(Date.now() - 60_000) });
   insertReview(db, mainId, reviewerId, { grade: 2, flags: ["reservoir_uncertain"], comment: "Local ΔR poorly known." });
-  insertCheck(db, mainId, { check: "marine", severity: "warning", message: "Marine shell poleward of 40°.", suggestedFlag: "reservoir_uncertain" });
+  insertCheck(db, mainId, {
+    check: "marine",
+    severity: "warning",
+    message: "Marine shell poleward of 40°.",
+    suggestedFlag: "reservoir_uncertain",
+  });
   insertAudit(db, {
     actorId: reviewerId,
     action: "determination.update",

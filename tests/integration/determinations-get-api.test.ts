@@ -43,7 +43,12 @@ beforeAll(() => {
     );
   }
   const lumSample = createTestSample(db(), { siteId: site.id, fieldCode: "API-L1", material: "quartz" });
-  luminescenceId = createTestDetermination(db(), { labId: lab.id, sampleId: lumSample.id, labCode: "APIQ-L1", method: "luminescence" }).id;
+  luminescenceId = createTestDetermination(db(), {
+    labId: lab.id,
+    sampleId: lumSample.id,
+    labCode: "APIQ-L1",
+    method: "luminescence",
+  }).id;
   withdrawnId = createTestDetermination(db(), { labId: lab.id, sampleId: sample.id, labCode: "APIQ-W1", status: "withdrawn" }).id;
   calibrateDeterminations(db(), [...radiocarbonIds, luminescenceId, withdrawnId]);
 });
@@ -66,7 +71,14 @@ describe("GET /api/v1/determinations", () => {
     const body = out.data as ApiPage;
     expect(body).toMatchObject({ page: 1, per_page: 100, total: 8 });
     expect(body.determinations.map((d) => d.lab_code)).toEqual([
-      "APIQ-0", "APIQ-1", "APIQ-2", "APIQ-3", "APIQ-4", "APIQ-5", "APIQ-6", "APIQ-L1",
+      "APIQ-0",
+      "APIQ-1",
+      "APIQ-2",
+      "APIQ-3",
+      "APIQ-4",
+      "APIQ-5",
+      "APIQ-6",
+      "APIQ-L1",
     ]);
     const first = body.determinations[0]!;
     expect(first).toMatchObject({
@@ -91,7 +103,13 @@ describe("GET /api/v1/determinations", () => {
     expect(first.calibration!.hpd95.length).toBeGreaterThan(0);
     expect(first.calibration!.hpd68[0]).toEqual({ from: expect.any(Number), to: expect.any(Number), p: expect.any(Number) });
     const lum = body.determinations.find((d) => d.id === luminescenceId)!;
-    expect(lum).toMatchObject({ method: "luminescence", de_gy: 22.5, dose_rate_gy_per_ka: 2.2, c14_age: null, greater_than: null });
+    expect(lum).toMatchObject({
+      method: "luminescence",
+      de_gy: 22.5,
+      dose_rate_gy_per_ka: 2.2,
+      c14_age: null,
+      greater_than: null,
+    });
     expect(lum.calibration!.curve).toMatch(/luminescence/);
   });
 
@@ -122,7 +140,8 @@ describe("GET /api/v1/determinations", () => {
     // 60 more rows so a page of 55 starting at row 56 crosses Explore's 50-row pages.
     const lab = createTestLab(db());
     const sample = createTestSample(db());
-    for (let i = 0; i < 60; i++) createTestDetermination(db(), { labId: lab.id, sampleId: sample.id, labCode: `SPANQ-${String(i).padStart(3, "0")}` });
+    for (let i = 0; i < 60; i++)
+      createTestDetermination(db(), { labId: lab.id, sampleId: sample.id, labCode: `SPANQ-${String(i).padStart(3, "0")}` });
     const one = (await fetchPage("?q=SPANQ-&sort=labCode&dir=asc&per_page=55", modellerToken)).data as ApiPage;
     const two = (await fetchPage("?q=SPANQ-&sort=labCode&dir=asc&per_page=55&page=2", modellerToken)).data as ApiPage;
     expect(one.total).toBe(60);

@@ -49,14 +49,54 @@ beforeAll(async () => {
     return d;
   };
   add("NGX-101", { labId: north.id, sampleId: shell.id, c14AgeYr: 10250, c14ErrorYr: 45, grade: 3, status: "graded" }, 11200);
-  add("NGX-102", { labId: north.id, sampleId: plant.id, c14AgeYr: 9100, c14ErrorYr: 40, grade: 1, status: "graded", constraintKind: "maximum" }, 10250);
+  add(
+    "NGX-102",
+    {
+      labId: north.id,
+      sampleId: plant.id,
+      c14AgeYr: 9100,
+      c14ErrorYr: 40,
+      grade: 1,
+      status: "graded",
+      constraintKind: "maximum",
+    },
+    10250,
+  );
   add("NGX-103", { labId: north.id, sampleId: plant.id, c14AgeYr: 45000, c14ErrorYr: null, isLimit: true, status: "submitted" });
   add("NGX-104", { labId: north.id, sampleId: shell.id, c14AgeYr: 8000, c14ErrorYr: 35, status: "withdrawn" }, 8600);
   add("NGX-105", { labId: north.id, sampleId: plant.id, c14AgeYr: 8500, c14ErrorYr: 30, status: "in_review" });
   // 24.6 Gy / 2.0 Gy/ka = 12.3 ka
-  add("SMX-201", { labId: south.id, sampleId: sand.id, method: "luminescence", deGy: 24.6, deErrorGy: 1.2, doseRateGyPerKa: 2.0, doseRateErrorGyPerKa: 0.1, grade: 2, status: "graded" }, 12230);
+  add(
+    "SMX-201",
+    {
+      labId: south.id,
+      sampleId: sand.id,
+      method: "luminescence",
+      deGy: 24.6,
+      deErrorGy: 1.2,
+      doseRateGyPerKa: 2.0,
+      doseRateErrorGyPerKa: 0.1,
+      grade: 2,
+      status: "graded",
+    },
+    12230,
+  );
   // 18 Gy / 2.0 Gy/ka = 9 ka
-  add("SMX-202", { labId: south.id, sampleId: sand.id, method: "luminescence", deGy: 18, deErrorGy: 1, doseRateGyPerKa: 2.0, doseRateErrorGyPerKa: 0.1, grade: 0, status: "graded" }, 8930);
+  add(
+    "SMX-202",
+    {
+      labId: south.id,
+      sampleId: sand.id,
+      method: "luminescence",
+      deGy: 18,
+      deErrorGy: 1,
+      doseRateGyPerKa: 2.0,
+      doseRateErrorGyPerKa: 0.1,
+      grade: 0,
+      status: "graded",
+    },
+    8930,
+  );
 
   // 120 determinations at one site of their own, for paging.
   const pageLab = createTestLab(db, { name: "Paging Test Lab", codePrefix: "PGX" });
@@ -64,7 +104,12 @@ beforeAll(async () => {
   const pageSample = createTestSample(db, { siteId: pageSite.id });
   db.$client.transaction(() => {
     for (let i = 0; i < 120; i++) {
-      createTestDetermination(db, { labCode: `PGX-${String(i).padStart(3, "0")}`, labId: pageLab.id, sampleId: pageSample.id, c14AgeYr: 7000 + i });
+      createTestDetermination(db, {
+        labCode: `PGX-${String(i).padStart(3, "0")}`,
+        labId: pageLab.id,
+        sampleId: pageSample.id,
+        c14AgeYr: 7000 + i,
+      });
     }
   })();
 });

@@ -16,18 +16,43 @@ describe("schema rules", () => {
 
   it("ships the rows every installation needs: roles, grades and the controlled materials", () => {
     const db = getDb();
-    expect(db.select().from(roles).all().map((r) => r.name).sort()).toEqual(
-      ["contributor", "editor", "modeller", "reviewer"],
-    );
-    expect(db.select().from(grades).all().map((g) => [g.value, g.name]).sort()).toEqual([
+    expect(
+      db
+        .select()
+        .from(roles)
+        .all()
+        .map((r) => r.name)
+        .sort(),
+    ).toEqual(["contributor", "editor", "modeller", "reviewer"]);
+    expect(
+      db
+        .select()
+        .from(grades)
+        .all()
+        .map((g) => [g.value, g.name])
+        .sort(),
+    ).toEqual([
       [0, "rejected"],
       [1, "doubtful"],
       [2, "usable"],
       [3, "secure"],
     ]);
-    const names = db.select().from(materials).all().map((m) => m.name);
-    for (const required of ["marine shell", "plant macrofossil", "wood", "peat", "bulk sediment", "bone",
-      "foraminifera", "quartz", "K-feldspar"]) {
+    const names = db
+      .select()
+      .from(materials)
+      .all()
+      .map((m) => m.name);
+    for (const required of [
+      "marine shell",
+      "plant macrofossil",
+      "wood",
+      "peat",
+      "bulk sediment",
+      "bone",
+      "foraminifera",
+      "quartz",
+      "K-feldspar",
+    ]) {
       expect(names).toContain(required);
     }
   });
@@ -45,9 +70,9 @@ describe("schema rules", () => {
     const sampleMaterial = () => createTestSample(db, { material: "moon rock" });
     expect(sampleMaterial).toThrow(/FOREIGN KEY/);
     const user = createTestUser(db, ["modeller"]);
-    expect(() =>
-      db.$client.prepare("insert into user_roles (user_id, role) values (?, 'superuser')").run(user.id),
-    ).toThrow(/FOREIGN KEY/);
+    expect(() => db.$client.prepare("insert into user_roles (user_id, role) values (?, 'superuser')").run(user.id)).toThrow(
+      /FOREIGN KEY/,
+    );
   });
 
   it("writes a determination and its audit row together, or neither", () => {
@@ -60,8 +85,16 @@ describe("schema rules", () => {
       db.$client.transaction(() => {
         insertDetermination(
           db,
-          { sampleId: sample.id, labId: lab.id, labCode: "ROLLBACK-1", method: "radiocarbon", constraintKind: "minimum",
-            c14AgeYr: 9000, c14ErrorYr: 40, curveName: "intcal20" },
+          {
+            sampleId: sample.id,
+            labId: lab.id,
+            labCode: "ROLLBACK-1",
+            method: "radiocarbon",
+            constraintKind: "minimum",
+            c14AgeYr: 9000,
+            c14ErrorYr: 40,
+            curveName: "intcal20",
+          },
           null,
         );
         throw new Error("failure after the insert");

@@ -5,7 +5,11 @@ import { PLANTED_FAULTS, SCENARIO_SIZES } from "#seed/scenario.ts";
 import { DEMO_USERS, SeedRefusedError, seedDemo, type SeedResult } from "#seed/seed.server.ts";
 
 const count = (sql: string, ...params: unknown[]) =>
-  (getDb().$client.prepare(sql).get(...params) as { n: number }).n;
+  (
+    getDb()
+      .$client.prepare(sql)
+      .get(...params) as { n: number }
+  ).n;
 
 let first: SeedResult;
 
@@ -27,7 +31,9 @@ describe("seeding the small demo", () => {
   it("keeps one truth row per determination with every kind of planted fault", () => {
     expect(count("select count(*) as n from scenario_truth")).toBe(first.summary.determinations);
     expect(
-      count("select count(*) as n from determinations d left join scenario_truth t on t.determination_id = d.id where t.determination_id is null"),
+      count(
+        "select count(*) as n from determinations d left join scenario_truth t on t.determination_id = d.id where t.determination_id is null",
+      ),
     ).toBe(0);
     for (const fault of PLANTED_FAULTS) {
       const planted = count("select count(*) as n from scenario_truth where planted_fault = ?", fault);
@@ -55,14 +61,21 @@ describe("seeding the small demo", () => {
     const contributor = first.userIds["contributor@example.org"];
     const reviewer = first.userIds["reviewer@example.org"];
     expect(
-      count("select count(*) as n from audit_log where action = 'determination.create' and entity = 'determination' and actor_id = ?", contributor),
+      count(
+        "select count(*) as n from audit_log where action = 'determination.create' and entity = 'determination' and actor_id = ?",
+        contributor,
+      ),
     ).toBe(first.summary.determinations);
     const graded = count("select count(*) as n from determinations where status = 'graded'");
     expect(graded).toBeGreaterThan(0);
     expect(count("select count(*) as n from reviews where reviewer_id = ?", reviewer)).toBe(graded);
-    expect(count("select count(*) as n from audit_log where action = 'determination.grade' and actor_id = ?", reviewer)).toBe(graded);
+    expect(count("select count(*) as n from audit_log where action = 'determination.grade' and actor_id = ?", reviewer)).toBe(
+      graded,
+    );
     expect(
-      count("select count(*) as n from determinations d join reviews r on r.determination_id = d.id where d.grade is not r.grade"),
+      count(
+        "select count(*) as n from determinations d join reviews r on r.determination_id = d.id where d.grade is not r.grade",
+      ),
     ).toBe(0);
     expect(count("select count(*) as n from determinations where status in ('submitted', 'in_review')")).toBeGreaterThan(graded);
   });

@@ -27,7 +27,12 @@ beforeAll(async () => {
   const middleA = createTestSample(db, { siteId, fieldCode: "TL-mid-a", stratOrder: 2, depthCm: 110, stratUnit: "gyttja" });
   createTestSample(db, { siteId, fieldCode: "TL-unplaced", stratOrder: null, depthCm: null });
 
-  const add = (labCode: string, sampleId: number, median: number | null, extra: Parameters<typeof createTestDetermination>[1] = {}) => {
+  const add = (
+    labCode: string,
+    sampleId: number,
+    median: number | null,
+    extra: Parameters<typeof createTestDetermination>[1] = {},
+  ) => {
     const d = createTestDetermination(db, { labCode, labId: lab.id, sampleId, ...extra });
     if (median != null) insertCalibration(db, d.id, { medianCalBp: median });
     return d;

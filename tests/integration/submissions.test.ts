@@ -117,12 +117,13 @@ const detRow = (id: number) =>
   };
 const currentCal = (id: number) =>
   db().$client.prepare("select * from calibrations where determination_id = ? and is_current = 1").get(id) as
-    | { median_cal_bp: number | null; curve_label: string; error: string | null; hpd95: string | null }
-    | undefined;
+    { median_cal_bp: number | null; curve_label: string; error: string | null; hpd95: string | null } | undefined;
 const auditRows = (id: number) =>
   (
-    db().$client
-      .prepare("select action, actor_id, before, after from audit_log where entity = 'determination' and entity_id = ? order by id")
+    db()
+      .$client.prepare(
+        "select action, actor_id, before, after from audit_log where entity = 'determination' and entity_id = ? order by id",
+      )
       .all(String(id)) as { action: string; actor_id: number; before: string | null; after: string | null }[]
   ).map((r) => ({ ...r, before: r.before ? JSON.parse(r.before) : null, after: r.after ? JSON.parse(r.after) : null }));
 
@@ -141,7 +142,9 @@ describe("/submit access", () => {
     const site = createTestSite(db(), { name: "Offered Test Site" });
     const out = await run(() => submitPage.loader(args(get("/submit", { cookie: contributor.cookie }))));
     expect(out.status).toBe(200);
-    const data = out.data as { options: { sites: { id: number }[]; labs: { name: string }[]; materials: { name: string }[]; curves: { name: string }[] } };
+    const data = out.data as {
+      options: { sites: { id: number }[]; labs: { name: string }[]; materials: { name: string }[]; curves: { name: string }[] };
+    };
     expect(data.options.sites.map((s) => s.id)).toContain(site.id);
     expect(data.options.labs.map((l) => l.name)).toContain(labName);
     expect(data.options.materials.map((m) => m.name)).toContain("marine shell");
@@ -175,8 +178,10 @@ describe("/submit: a good determination", () => {
       de_gy: null,
       upload_batch_id: null,
     });
-    const place = db().$client
-      .prepare("select s.field_code, s.material, s.depth_cm, t.name, t.latitude, t.longitude, t.created_by from samples s join sites t on t.id = s.site_id where s.id = ?")
+    const place = db()
+      .$client.prepare(
+        "select s.field_code, s.material, s.depth_cm, t.name, t.latitude, t.longitude, t.created_by from samples s join sites t on t.id = s.site_id where s.id = ?",
+      )
       .get(d.sample_id);
     expect(place).toEqual({
       field_code: form.sample_code,
@@ -227,7 +232,21 @@ describe("/submit: a good determination", () => {
   });
 
   it("ignores the fields of the other method left in the form", async () => {
-    const out = await submit(luminescenceForm({ de_gy: "20", dose_rate_gy_per_ka: "2", dose_rate_error_gy_per_ka: "0.1", k_percent: "", u_ppm: "", th_ppm: "", water_content: "", burial_depth_m: "", density_g_cm3: "", c14_age: "9000", c14_error: "40" }));
+    const out = await submit(
+      luminescenceForm({
+        de_gy: "20",
+        dose_rate_gy_per_ka: "2",
+        dose_rate_error_gy_per_ka: "0.1",
+        k_percent: "",
+        u_ppm: "",
+        th_ppm: "",
+        water_content: "",
+        burial_depth_m: "",
+        density_g_cm3: "",
+        c14_age: "9000",
+        c14_error: "40",
+      }),
+    );
     expect(out.status).toBe(302);
     const d = detRow(idFrom(out.location));
     expect(d).toMatchObject({ c14_age_yr: null, c14_error_yr: null, dose_rate_gy_per_ka: 2, conversion_factors: null });
@@ -237,7 +256,13 @@ describe("/submit: a good determination", () => {
     const site = createTestSite(db(), { name: "Chosen Test Cove", latitude: 59.1, longitude: -64.2 });
     const before = counts();
     const out = await submit(
-      radiocarbonForm({ site_choice: "existing", site_id: String(site.id), site_name: "Tampered Name", latitude: "1", longitude: "2" }),
+      radiocarbonForm({
+        site_choice: "existing",
+        site_id: String(site.id),
+        site_name: "Tampered Name",
+        latitude: "1",
+        longitude: "2",
+      }),
     );
     expect(out.status).toBe(302);
     const d = detRow(idFrom(out.location));
@@ -249,11 +274,25 @@ describe("/submit: a good determination", () => {
 
   it("calibrates a marine shell on Marine20 with its ΔR", async () => {
     const out = await submit(
-      radiocarbonForm({ material: "marine shell", curve: "marine20", c14_age: "9850", c14_error: "40", d13c: "1.2", delta_r: "150", delta_r_error: "60", delta_r_curve: "marine20" }),
+      radiocarbonForm({
+        material: "marine shell",
+        curve: "marine20",
+        c14_age: "9850",
+        c14_error: "40",
+        d13c: "1.2",
+        delta_r: "150",
+        delta_r_error: "60",
+        delta_r_curve: "marine20",
+      }),
     );
     expect(out.status).toBe(302);
     const id = idFrom(out.location);
-    expect(detRow(id)).toMatchObject({ curve_name: "marine20", delta_r_yr: 150, delta_r_error_yr: 60, delta_r_curve: "marine20" });
+    expect(detRow(id)).toMatchObject({
+      curve_name: "marine20",
+      delta_r_yr: 150,
+      delta_r_error_yr: 60,
+      delta_r_curve: "marine20",
+    });
     expect(currentCal(id)!.curve_label).toMatch(/Marine20.*ΔR 150 ± 60/);
   });
 
@@ -305,7 +344,9 @@ describe("/submit: bad input", () => {
   });
 
   it("asks for a site when “existing” is chosen without one, at the site list only", async () => {
-    const out = await submit(radiocarbonForm({ site_choice: "existing", site_id: "", site_name: "", latitude: "", longitude: "" }));
+    const out = await submit(
+      radiocarbonForm({ site_choice: "existing", site_id: "", site_name: "", latitude: "", longitude: "" }),
+    );
     expect(out.status).toBe(400);
     expect(Object.keys(fieldErrors(out))).toEqual(["site_id"]);
   });
@@ -321,7 +362,9 @@ describe("/submit: bad input", () => {
   it("refuses a material that contradicts the sample already recorded at the site", async () => {
     const site = createTestSite(db());
     createTestSample(db(), { siteId: site.id, fieldCode: "SAME-1", material: "wood" });
-    const out = await submit(radiocarbonForm({ site_choice: "existing", site_id: String(site.id), sample_code: "SAME-1", material: "peat" }));
+    const out = await submit(
+      radiocarbonForm({ site_choice: "existing", site_id: String(site.id), sample_code: "SAME-1", material: "peat" }),
+    );
     expect(out.status).toBe(400);
     expect(fieldErrors(out).material?.[0]).toMatch(/recorded as wood/);
   });
@@ -335,14 +378,18 @@ describe("edit and withdraw", () => {
   }
 
   async function editForm(id: number, person: Person = contributor) {
-    const out = await run(() => editPage.loader(args(get(`/submissions/${id}/edit`, { cookie: person.cookie }), { id: String(id) })));
+    const out = await run(() =>
+      editPage.loader(args(get(`/submissions/${id}/edit`, { cookie: person.cookie }), { id: String(id) })),
+    );
     expect(out.status).toBe(200);
     return (out.data as { defaults: Record<string, string> }).defaults;
   }
 
   function save(id: number, form: Record<string, string>, person: Person = contributor) {
     return run(() =>
-      editPage.action(args(post(`/submissions/${id}/edit`, { ...form, intent: "save" }, { cookie: person.cookie }), { id: String(id) })),
+      editPage.action(
+        args(post(`/submissions/${id}/edit`, { ...form, intent: "save" }, { cookie: person.cookie }), { id: String(id) }),
+      ),
     );
   }
 
@@ -350,7 +397,13 @@ describe("edit and withdraw", () => {
     const id = await submitted();
     const medianBefore = currentCal(id)!.median_cal_bp!;
     const defaults = await editForm(id);
-    expect(defaults).toMatchObject({ site_choice: "existing", c14_age: "9000", c14_error: "40", lab_name: labName, method: "radiocarbon" });
+    expect(defaults).toMatchObject({
+      site_choice: "existing",
+      c14_age: "9000",
+      c14_error: "40",
+      lab_name: labName,
+      method: "radiocarbon",
+    });
 
     const out = await save(id, { ...defaults, c14_age: "10250", c14_error: "45" });
     expect(out.status).toBe(302);
@@ -365,7 +418,9 @@ describe("edit and withdraw", () => {
     const medianAfter = currentCal(id)!.median_cal_bp!;
     expect(medianAfter).toBeGreaterThan(11800);
     expect(medianAfter).not.toBe(medianBefore);
-    expect(db().$client.prepare("select count(*) from calibrations where determination_id = ? and is_current = 1").pluck().get(id)).toBe(1);
+    expect(
+      db().$client.prepare("select count(*) from calibrations where determination_id = ? and is_current = 1").pluck().get(id),
+    ).toBe(1);
   });
 
   it("saving without changes leaves the version alone", async () => {
@@ -390,7 +445,12 @@ describe("edit and withdraw", () => {
   });
 
   it("keeps the conversion factors recorded with a lab's own dose rate when the dose rate is not changed", async () => {
-    const det = createTestDetermination(db(), { method: "luminescence", contributorId: contributor.id, conversionFactors: "adamiec1998", labId: db().$client.prepare("select id from labs where name = ?").pluck().get(labName) as number });
+    const det = createTestDetermination(db(), {
+      method: "luminescence",
+      contributorId: contributor.id,
+      conversionFactors: "adamiec1998",
+      labId: db().$client.prepare("select id from labs where name = ?").pluck().get(labName) as number,
+    });
     const sampleMaterial = db().$client.prepare("update samples set material = 'quartz' where id = ?").run(det.sampleId);
     expect(sampleMaterial.changes).toBe(1);
     const defaults = await editForm(det.id);
@@ -406,7 +466,10 @@ describe("edit and withdraw", () => {
     const out = await save(id, { ...defaults, sample_code: "RENAMED-1", depth_cm: "155" });
     expect(out.status).toBe(302);
     expect(detRow(id).sample_id).toBe(sampleId);
-    expect(db().$client.prepare("select field_code, depth_cm from samples where id = ?").get(sampleId)).toEqual({ field_code: "RENAMED-1", depth_cm: 155 });
+    expect(db().$client.prepare("select field_code, depth_cm from samples where id = ?").get(sampleId)).toEqual({
+      field_code: "RENAMED-1",
+      depth_cm: 155,
+    });
     const audit = auditRows(id).at(-1)!;
     expect(audit.before.sample).toMatchObject({ fieldCode: defaults.sample_code, depthCm: 140 });
     expect(audit.after.sample).toMatchObject({ fieldCode: "RENAMED-1", depthCm: 155 });
@@ -427,12 +490,16 @@ describe("edit and withdraw", () => {
   it("lets only the contributor edit or withdraw, with a clear 403 for anyone else", async () => {
     const id = await submitted();
     const defaults = await editForm(id);
-    const loader = await run(() => editPage.loader(args(get(`/submissions/${id}/edit`, { cookie: other.cookie }), { id: String(id) })));
+    const loader = await run(() =>
+      editPage.loader(args(get(`/submissions/${id}/edit`, { cookie: other.cookie }), { id: String(id) })),
+    );
     expect(loader.status).toBe(403);
     expect(loader.data).toMatch(/Only the contributor who submitted/);
     const out = await save(id, { ...defaults, c14_age: "9100" }, other);
     expect(out.status).toBe(403);
-    const withdraw = await run(() => listPage.action(args(post("/submissions", { intent: "withdraw", id: String(id) }, { cookie: other.cookie }))));
+    const withdraw = await run(() =>
+      listPage.action(args(post("/submissions", { intent: "withdraw", id: String(id) }, { cookie: other.cookie }))),
+    );
     expect(withdraw.status).toBe(403);
     expect(detRow(id)).toMatchObject({ version: 1, status: "submitted", c14_age_yr: 9000 });
   });
@@ -442,22 +509,34 @@ describe("edit and withdraw", () => {
     const defaults = await editForm(id);
     const reviewer = await personWithSession(["reviewer"]);
     db().$client.prepare("insert into reviews (determination_id, reviewer_id, grade) values (?, ?, 2)").run(id, reviewer.id);
-    const loader = await run(() => editPage.loader(args(get(`/submissions/${id}/edit`, { cookie: contributor.cookie }), { id: String(id) })));
+    const loader = await run(() =>
+      editPage.loader(args(get(`/submissions/${id}/edit`, { cookie: contributor.cookie }), { id: String(id) })),
+    );
     expect(loader.status).toBe(403);
     expect(loader.data).toMatch(/graded by a reviewer/);
     expect((await save(id, { ...defaults, c14_age: "9100" })).status).toBe(403);
-    const withdraw = await run(() => listPage.action(args(post("/submissions", { intent: "withdraw", id: String(id) }, { cookie: contributor.cookie }))));
+    const withdraw = await run(() =>
+      listPage.action(args(post("/submissions", { intent: "withdraw", id: String(id) }, { cookie: contributor.cookie }))),
+    );
     expect(withdraw.status).toBe(403);
     expect(detRow(id)).toMatchObject({ version: 1, status: "submitted" });
 
     const graded = await submitted();
     db().$client.prepare("update determinations set status = 'graded', grade = 3 where id = ?").run(graded);
-    expect((await run(() => editPage.loader(args(get(`/submissions/${graded}/edit`, { cookie: contributor.cookie }), { id: String(graded) })))).status).toBe(403);
+    expect(
+      (
+        await run(() =>
+          editPage.loader(args(get(`/submissions/${graded}/edit`, { cookie: contributor.cookie }), { id: String(graded) })),
+        )
+      ).status,
+    ).toBe(403);
   });
 
   it("withdraws from the list: status withdrawn, next version, audit row with before and after; then no more changes", async () => {
     const id = await submitted();
-    const out = await run(() => listPage.action(args(post("/submissions", { intent: "withdraw", id: String(id) }, { cookie: contributor.cookie }))));
+    const out = await run(() =>
+      listPage.action(args(post("/submissions", { intent: "withdraw", id: String(id) }, { cookie: contributor.cookie }))),
+    );
     expect(out.status).toBe(302);
     expect(out.location).toBe("/submissions");
     expect(detRow(id)).toMatchObject({ status: "withdrawn", version: 2 });
@@ -466,7 +545,9 @@ describe("edit and withdraw", () => {
     expect(audit.before).toMatchObject({ status: "submitted", version: 1 });
     expect(audit.after).toMatchObject({ status: "withdrawn", version: 2 });
 
-    const again = await run(() => listPage.action(args(post("/submissions", { intent: "withdraw", id: String(id) }, { cookie: contributor.cookie }))));
+    const again = await run(() =>
+      listPage.action(args(post("/submissions", { intent: "withdraw", id: String(id) }, { cookie: contributor.cookie }))),
+    );
     expect(again.status).toBe(403);
     expect(again.data).toMatchObject({ error: expect.stringMatching(/withdrawn/) });
     expect(detRow(id).version).toBe(2);
@@ -475,7 +556,9 @@ describe("edit and withdraw", () => {
   it("withdraws from the edit page too", async () => {
     const id = await submitted();
     const out = await run(() =>
-      editPage.action(args(post(`/submissions/${id}/edit`, { intent: "withdraw" }, { cookie: contributor.cookie }), { id: String(id) })),
+      editPage.action(
+        args(post(`/submissions/${id}/edit`, { intent: "withdraw" }, { cookie: contributor.cookie }), { id: String(id) }),
+      ),
     );
     expect(out.status).toBe(302);
     expect(detRow(id)).toMatchObject({ status: "withdrawn", version: 2 });
@@ -483,13 +566,19 @@ describe("edit and withdraw", () => {
 
   it("answers an unknown intent with 400 and a missing determination with 404", async () => {
     const id = await submitted();
-    const bad = await run(() => listPage.action(args(post("/submissions", { intent: "erase", id: String(id) }, { cookie: contributor.cookie }))));
+    const bad = await run(() =>
+      listPage.action(args(post("/submissions", { intent: "erase", id: String(id) }, { cookie: contributor.cookie }))),
+    );
     expect(bad.status).toBe(400);
     const badEdit = await run(() =>
-      editPage.action(args(post(`/submissions/${id}/edit`, { intent: "erase" }, { cookie: contributor.cookie }), { id: String(id) })),
+      editPage.action(
+        args(post(`/submissions/${id}/edit`, { intent: "erase" }, { cookie: contributor.cookie }), { id: String(id) }),
+      ),
     );
     expect(badEdit.status).toBe(400);
-    const missing = await run(() => editPage.loader(args(get("/submissions/99999999/edit", { cookie: contributor.cookie }), { id: "99999999" })));
+    const missing = await run(() =>
+      editPage.loader(args(get("/submissions/99999999/edit", { cookie: contributor.cookie }), { id: "99999999" })),
+    );
     expect(missing.status).toBe(404);
     expect(detRow(id)).toMatchObject({ status: "submitted", version: 1 });
   });
@@ -505,9 +594,17 @@ describe("/submissions list", () => {
     }
     const lum = idFrom((await submit(luminescenceForm(), mine)).location);
     await submit(radiocarbonForm(), other);
-    await run(() => listPage.action(args(post("/submissions", { intent: "withdraw", id: String(ids[0]) }, { cookie: mine.cookie }))));
+    await run(() =>
+      listPage.action(args(post("/submissions", { intent: "withdraw", id: String(ids[0]) }, { cookie: mine.cookie }))),
+    );
 
-    type List = { result: { rows: { id: number; status: string; medianCalBp: number | null; editable: boolean }[]; total: number; statusCounts: Record<string, number> } };
+    type List = {
+      result: {
+        rows: { id: number; status: string; medianCalBp: number | null; editable: boolean }[];
+        total: number;
+        statusCounts: Record<string, number>;
+      };
+    };
     const list = async (qs = "") =>
       (await run(() => listPage.loader(args(get(`/submissions${qs}`, { cookie: mine.cookie }))))).data as List;
 
@@ -545,7 +642,8 @@ describe("POST /api/determination-preview", () => {
   });
 
   it("says why there is no calendar age: limit, post-bomb, beyond the curve, or what is missing", async () => {
-    const limit = (await previewOf({ method: "radiocarbon", c14_age: "45000", c14_error: "500", greater_than: "yes" })).data as PreviewResult;
+    const limit = (await previewOf({ method: "radiocarbon", c14_age: "45000", c14_error: "500", greater_than: "yes" }))
+      .data as PreviewResult;
     expect(limit).toMatchObject({ state: "no-age", message: expect.stringMatching(/greater than/) });
     const bomb = (await previewOf({ method: "radiocarbon", f14c: "1.12", f14c_error: "0.004" })).data as PreviewResult;
     expect(bomb).toMatchObject({ state: "no-age", message: expect.stringMatching(/post-bomb/) });

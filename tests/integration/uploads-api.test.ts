@@ -56,9 +56,16 @@ describe("POST /api/v1/uploads and /commit", () => {
     rows[2]!.method = "radiocarbon";
     rows[2]!.c14_age = 9000;
     const before = count();
-    const up = await run(() => uploadsApi.action(args(multipart("/api/v1/uploads", Buffer.from(toCsvText(rows)), "r.csv", person.token))));
+    const up = await run(() =>
+      uploadsApi.action(args(multipart("/api/v1/uploads", Buffer.from(toCsvText(rows)), "r.csv", person.token))),
+    );
     expect(up.status).toBe(200);
-    const body = up.data as { upload_id: string; rows: number; valid: number; errors: { row: number; column: string; message: string }[] };
+    const body = up.data as {
+      upload_id: string;
+      rows: number;
+      valid: number;
+      errors: { row: number; column: string; message: string }[];
+    };
     expect(Object.keys(body).sort()).toEqual(["errors", "rows", "upload_id", "valid"]);
     expect(body).toMatchObject({ rows: 8, valid: 7 });
     expect(body.errors).toEqual([{ row: 4, column: "c14_error", message: expect.stringContaining("must be greater than zero") }]);
@@ -89,7 +96,9 @@ describe("POST /api/v1/uploads and /commit", () => {
     const up = await run(() => uploadsApi.action(args(multipart("/api/v1/uploads", file, "r.xlsx", person.token))));
     const id = (up.data as { upload_id: string }).upload_id;
     expect(up.data).toMatchObject({ rows: 5, valid: 5, errors: [] });
-    const ok = await run(() => commitApi.action(args(jsonPost(`/api/v1/uploads/${id}/commit`, { mode: "all" }, person.token), { uploadId: id })));
+    const ok = await run(() =>
+      commitApi.action(args(jsonPost(`/api/v1/uploads/${id}/commit`, { mode: "all" }, person.token), { uploadId: id })),
+    );
     expect(ok.status).toBe(200);
     expect((ok.data as { committed: number }).committed).toBe(5);
   });
@@ -98,10 +107,20 @@ describe("POST /api/v1/uploads and /commit", () => {
     const file = Buffer.from(toCsvText(uploadRows(1, { prefix: prefix() })));
     expect((await run(() => uploadsApi.action(args(multipart("/api/v1/uploads", file, "r.csv"))))).status).toBe(401);
     const modeller = tokenFor(["modeller"]);
-    expect((await run(() => uploadsApi.action(args(multipart("/api/v1/uploads", file, "r.csv", modeller.token))))).status).toBe(403);
-    expect((await run(() => commitApi.action(args(jsonPost("/api/v1/uploads/x/commit", { mode: "all" }, modeller.token), { uploadId: "x" })))).status).toBe(403);
+    expect((await run(() => uploadsApi.action(args(multipart("/api/v1/uploads", file, "r.csv", modeller.token))))).status).toBe(
+      403,
+    );
+    expect(
+      (
+        await run(() =>
+          commitApi.action(args(jsonPost("/api/v1/uploads/x/commit", { mode: "all" }, modeller.token), { uploadId: "x" })),
+        )
+      ).status,
+    ).toBe(403);
     expect((await run(() => determinationsApi.action(args(jsonPost("/api/v1/determinations", [], undefined))))).status).toBe(401);
-    expect((await run(() => determinationsApi.action(args(jsonPost("/api/v1/determinations", [{}], modeller.token))))).status).toBe(403);
+    expect(
+      (await run(() => determinationsApi.action(args(jsonPost("/api/v1/determinations", [{}], modeller.token))))).status,
+    ).toBe(403);
   });
 
   it("refuses a file over the size limit with the limit stated, and a non-spreadsheet", async () => {
@@ -110,7 +129,9 @@ describe("POST /api/v1/uploads and /commit", () => {
     const tooBig = await run(() => uploadsApi.action(args(multipart("/api/v1/uploads", big, "big.csv", person.token))));
     expect(tooBig.status).toBe(413);
     expect((tooBig.data as { error: string }).error).toContain("the limit is 10.0 MB");
-    const pdf = await run(() => uploadsApi.action(args(multipart("/api/v1/uploads", Buffer.from("%PDF-1.4 x"), "a.csv", person.token))));
+    const pdf = await run(() =>
+      uploadsApi.action(args(multipart("/api/v1/uploads", Buffer.from("%PDF-1.4 x"), "a.csv", person.token))),
+    );
     expect(pdf.status).toBe(400);
     expect((pdf.data as { error: string }).error).toContain("not a spreadsheet");
     const none = await run(() => uploadsApi.action(args(multipart("/api/v1/uploads", null, "", person.token))));
@@ -126,19 +147,27 @@ describe("POST /api/v1/determinations", () => {
     const bad = rows.map((r, i) => (i === 2 ? { ...r, latitude: 123 } : r));
     const refused = await run(() => determinationsApi.action(args(jsonPost("/api/v1/determinations", bad, person.token))));
     expect(refused.status).toBe(400);
-    expect(refused.data).toEqual({ errors: [{ index: 2, row: 3, column: "latitude", message: expect.stringContaining("outside −90 to 90") }] });
+    expect(refused.data).toEqual({
+      errors: [{ index: 2, row: 3, column: "latitude", message: expect.stringContaining("outside −90 to 90") }],
+    });
     expect(count()).toBe(before);
     const created = await run(() => determinationsApi.action(args(jsonPost("/api/v1/determinations", rows, person.token))));
     expect(created.status).toBe(201);
     const ids = (created.data as { determination_ids: number[] }).determination_ids;
     expect(ids).toHaveLength(4);
     expect(count()).toBe(before + 4);
-    const again = await run(() => determinationsApi.action(args(jsonPost("/api/v1/determinations", rows.slice(0, 1), person.token))));
+    const again = await run(() =>
+      determinationsApi.action(args(jsonPost("/api/v1/determinations", rows.slice(0, 1), person.token))),
+    );
     expect(again.status).toBe(400);
     expect(JSON.stringify(again.data)).toContain(`/determinations/${ids[0]}`);
     const notArray = await run(() => determinationsApi.action(args(jsonPost("/api/v1/determinations", { a: 1 }, person.token))));
     expect(notArray.status).toBe(400);
-    const unknown = await run(() => determinationsApi.action(args(jsonPost("/api/v1/determinations", [{ ...rows[0], lab_code: "ZZU-1", colour: "red" }], person.token))));
+    const unknown = await run(() =>
+      determinationsApi.action(
+        args(jsonPost("/api/v1/determinations", [{ ...rows[0], lab_code: "ZZU-1", colour: "red" }], person.token)),
+      ),
+    );
     expect(unknown.data).toEqual({ errors: [{ index: 0, row: 1, column: "colour", message: 'Unknown field "colour".' }] });
   });
 });
@@ -150,15 +179,26 @@ describe("upload pages", () => {
     rows[1]!.c14_age = "=A1";
     rows[1]!.method = "radiocarbon";
     rows[1]!.material = "plant macrofossil";
-    const req = multipart("/uploads/file", Buffer.from(toCsvText(rows)), "page.csv", undefined, { Cookie: p.cookie, Accept: "application/json" });
+    const req = multipart("/uploads/file", Buffer.from(toCsvText(rows)), "page.csv", undefined, {
+      Cookie: p.cookie,
+      Accept: "application/json",
+    });
     const sent = await run(() => uploadFile.action(args(req)));
     expect(sent.status).toBe(200);
     const location = (sent.data as { location: string }).location;
     const publicId = location.split("/").pop()!;
     const page = await run(() => uploadPage.loader(args(get(location, { cookie: p.cookie }), { publicId })));
-    const data = page.data as { errorCount: number; errors: { row: number; column: string; message: string }[]; batch: { validCount: number } };
+    const data = page.data as {
+      errorCount: number;
+      errors: { row: number; column: string; message: string }[];
+      batch: { validCount: number };
+    };
     expect(data.errorCount).toBe(1);
-    expect(data.errors[0]).toMatchObject({ row: 3, column: "c14_age", message: expect.stringContaining("Formula cells are not accepted") });
+    expect(data.errors[0]).toMatchObject({
+      row: 3,
+      column: "c14_age",
+      message: expect.stringContaining("Formula cells are not accepted"),
+    });
 
     const csv = await run(() => errorsCsv.loader(args(get(`${location}/errors.csv`, { cookie: p.cookie }), { publicId })));
     expect(csv.headers.get("Content-Type")).toContain("text/csv");
@@ -169,10 +209,17 @@ describe("upload pages", () => {
     const modeller = await personWithSession(["modeller"]);
     expect((await run(() => uploadPage.loader(args(get(location, { cookie: modeller.cookie }), { publicId })))).status).toBe(403);
 
-    const remap = await run(() => uploadPage.action(args(post(location, { intent: "remap", "map.0": "site_name" }, { cookie: p.cookie }), { publicId })));
+    const remap = await run(() =>
+      uploadPage.action(args(post(location, { intent: "remap", "map.0": "site_name" }, { cookie: p.cookie }), { publicId })),
+    );
     expect(remap.status).toBe(302);
-    expect((await run(() => uploadPage.action(args(post(location, { intent: "nonsense" }, { cookie: p.cookie }), { publicId })))).status).toBe(400);
-    const all = await run(() => uploadPage.action(args(post(location, { intent: "commit-all" }, { cookie: p.cookie }), { publicId })));
+    expect(
+      (await run(() => uploadPage.action(args(post(location, { intent: "nonsense" }, { cookie: p.cookie }), { publicId }))))
+        .status,
+    ).toBe(400);
+    const all = await run(() =>
+      uploadPage.action(args(post(location, { intent: "commit-all" }, { cookie: p.cookie }), { publicId })),
+    );
     expect(all.status).toBe(302);
     const before = count();
     // Remapping with only site_name left every other column unmapped: map them back by re-validating with the guess.
@@ -180,7 +227,9 @@ describe("upload pages", () => {
     const form: Record<string, string> = { intent: "remap" };
     headers.forEach((h, i) => (form[`map.${i}`] = h));
     await run(() => uploadPage.action(args(post(location, form, { cookie: p.cookie }), { publicId })));
-    const valid = await run(() => uploadPage.action(args(post(location, { intent: "commit-valid" }, { cookie: p.cookie }), { publicId })));
+    const valid = await run(() =>
+      uploadPage.action(args(post(location, { intent: "commit-valid" }, { cookie: p.cookie }), { publicId })),
+    );
     expect(valid.status).toBe(302);
     expect(count()).toBe(before + 5);
     const receipt = readOutbox(fake.outboxDir).find((m) => JSON.stringify(m).includes(p.email));

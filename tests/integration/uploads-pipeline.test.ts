@@ -22,7 +22,7 @@ let fileNo = 0;
 const prefix = () => `ZP${++fileNo}Q`;
 
 function counts() {
-  const c = (t: string) => (db().$client.prepare(`select count(*) from ${t}`).pluck().get() as number);
+  const c = (t: string) => db().$client.prepare(`select count(*) from ${t}`).pluck().get() as number;
   return {
     determinations: c("determinations"),
     sites: c("sites"),
@@ -64,7 +64,9 @@ describe("reading files", () => {
     await expect(readUpload(Buffer.from([0xd0, 0xcf, 0x11, 0xe0, 1, 2, 3]), "a.xls")).rejects.toThrow(/old-style Excel/);
     await expect(readUpload(Buffer.from([0, 1, 2, 3, 0, 0, 5, 6, 7, 8, 0, 0]), "a.csv")).rejects.toThrow(/binary data/);
     await expect(readUpload(Buffer.from("hello"), "a.xlsx")).rejects.toThrow(/not an Excel workbook/);
-    await expect(readUpload(Buffer.from([0x50, 0x4b, 0x03, 0x04, 9, 9, 9, 9]), "a.xlsx")).rejects.toThrow(/could not be read as an Excel workbook/);
+    await expect(readUpload(Buffer.from([0x50, 0x4b, 0x03, 0x04, 9, 9, 9, 9]), "a.xlsx")).rejects.toThrow(
+      /could not be read as an Excel workbook/,
+    );
     await expect(readUpload(Buffer.from(""), "a.csv")).rejects.toThrow(/empty/);
     await expect(readUpload(Buffer.from("site_name,latitude\r\n\r\n"), "a.csv")).rejects.toThrow(/no data rows/);
   });
@@ -111,7 +113,9 @@ describe("validation of an upload", () => {
 
   it("gives every bad input its own message at its row and column (CSV)", async () => {
     const existing = createTestDetermination(db(), { labCode: `${prefix()}-EXISTING` });
-    const rows = uploadRows(60, { prefix: prefix() }).filter((r) => r.material === "plant macrofossil").slice(0, 16);
+    const rows = uploadRows(60, { prefix: prefix() })
+      .filter((r) => r.material === "plant macrofossil")
+      .slice(0, 16);
     const set = (i: number, over: Cells) => Object.assign(rows[i]!, over);
     const at = [1, 2, 3, 4, 5, 6, 7, 8, 9, 10, 11];
     set(at[0]!, { c14_age: "10,5" });
@@ -161,7 +165,11 @@ describe("validation of an upload", () => {
     text.splice(2, 0, ",,,,", ""); // blank rows become rows 3 and 4
     const bad = text[5]!.replace(/,minimum,/, ",sometimes,");
     text[5] = bad;
-    const { validation } = await createUpload(db(), { userId: createTestUser(db()).id, fileName: "b.csv", file: Buffer.from(text.join("\r\n")) });
+    const { validation } = await createUpload(db(), {
+      userId: createTestUser(db()).id,
+      fileName: "b.csv",
+      file: Buffer.from(text.join("\r\n")),
+    });
     expect(validation.results.map((r) => r.n)).toEqual([2, 5, 6]);
     expect(errorAt(validation, 6, "constraint_kind")).toContain("minimum, maximum or direct");
   });
@@ -171,8 +179,35 @@ describe("validation of an upload", () => {
     const user = createTestUser(db());
     db().$client.prepare("update users set lab_id = ? where id = ?").run(lab.id, user.id);
     const rows = uploadRows(3, { prefix: prefix() });
-    const headers = ["site_name", "latitude", "longitude", "sample_code", "material", "method", "lab_code", "lab_name", "constraint_kind", "c14_age", "c14_error", "curve", "Mystery", "delta_r", "delta_r_error", "delta_r_curve", "de_gy", "de_error_gy", "dose_rate_gy_per_ka", "dose_rate_error_gy_per_ka", "measurement_year"];
-    const file = Buffer.from(toCsvText(rows.map((r) => ({ ...r, Mystery: r.doi })), headers));
+    const headers = [
+      "site_name",
+      "latitude",
+      "longitude",
+      "sample_code",
+      "material",
+      "method",
+      "lab_code",
+      "lab_name",
+      "constraint_kind",
+      "c14_age",
+      "c14_error",
+      "curve",
+      "Mystery",
+      "delta_r",
+      "delta_r_error",
+      "delta_r_curve",
+      "de_gy",
+      "de_error_gy",
+      "dose_rate_gy_per_ka",
+      "dose_rate_error_gy_per_ka",
+      "measurement_year",
+    ];
+    const file = Buffer.from(
+      toCsvText(
+        rows.map((r) => ({ ...r, Mystery: r.doi })),
+        headers,
+      ),
+    );
     const { batch } = await createUpload(db(), { userId: user.id, fileName: "m.csv", file });
     expect(batch.mapping!.Mystery).toBe("");
     remapUpload(db(), batch, { ...batch.mapping, Mystery: "doi" });
@@ -195,7 +230,12 @@ describe("committing", () => {
     expect(after.samples - before.samples).toBe(8);
     const rows = db().select().from(determinations).where(eq(determinations.uploadBatchId, batch.id)).all();
     expect(rows.every((r) => r.status === "submitted" && r.contributorId === userId)).toBe(true);
-    const cal = db().$client.prepare(`select count(*) from calibrations where determination_id in (${result.determinationIds.join(",")}) and median_cal_bp is not null`).pluck().get();
+    const cal = db()
+      .$client.prepare(
+        `select count(*) from calibrations where determination_id in (${result.determinationIds.join(",")}) and median_cal_bp is not null`,
+      )
+      .pluck()
+      .get();
     expect(cal).toBe(24);
     expect(db().select().from(uploadBatches).where(eq(uploadBatches.id, batch.id)).get()!.status).toBe("committed");
     expect(() => commitUpload(db(), { ...batch, status: "committed" }, "all", { userId })).toThrow(CommitRefused);
@@ -243,11 +283,17 @@ describe("committing", () => {
     const { batch, userId } = await upload(uploadRows(40, { prefix: prefix() }), "xlsx");
     const before = counts();
     expect(() =>
-      commitUpload(db(), batch, "all", { userId }, {
-        afterRow: (i) => {
-          if (i === 20) throw new Error("injected failure");
+      commitUpload(
+        db(),
+        batch,
+        "all",
+        { userId },
+        {
+          afterRow: (i) => {
+            if (i === 20) throw new Error("injected failure");
+          },
         },
-      }),
+      ),
     ).toThrow("injected failure");
     expect(counts()).toEqual(before);
     expect(db().select().from(uploadBatches).where(eq(uploadBatches.id, batch.id)).get()!.status).toBe("parsed");
@@ -283,7 +329,9 @@ describe("committing", () => {
     const other = await upload(uploadRows(3, { prefix: prefix() }));
     const r = commitUpload(db(), other.batch, "all", { userId: other.userId });
     const reviewer = createTestUser(db(), ["reviewer"]);
-    db().$client.prepare("insert into reviews (determination_id, reviewer_id, grade) values (?, ?, 2)").run(r.determinationIds[0], reviewer.id);
+    db()
+      .$client.prepare("insert into reviews (determination_id, reviewer_id, grade) values (?, ?, 2)")
+      .run(r.determinationIds[0], reviewer.id);
     const c2 = db().select().from(uploadBatches).where(eq(uploadBatches.id, other.batch.id)).get()!;
     expect(() => undoUpload(db(), c2, { userId: other.userId })).toThrow(/reviewer has already graded/);
     expect(() => undoUpload(db(), c2, { userId: userId })).toThrow(CommitRefused);

@@ -35,7 +35,11 @@ export function insertReview(
   reviewerId: number,
   values: Partial<typeof reviews.$inferInsert> & { grade: number },
 ) {
-  return db.insert(reviews).values({ determinationId, reviewerId, ...values }).returning().get();
+  return db
+    .insert(reviews)
+    .values({ determinationId, reviewerId, ...values })
+    .returning()
+    .get();
 }
 
 export function insertCheck(db: Db, determinationId: number, values: Partial<typeof checkResults.$inferInsert> = {}) {
@@ -62,7 +66,13 @@ export function insertReconstruction(db: Db, ages: number[], values: Partial<typ
         features: ages.map((age) => ({
           type: "Feature",
           properties: { age_cal_bp: age },
-          geometry: { type: "LineString", coordinates: [[-68, 50 + age / 1000], [-64, 50 + age / 1000]] },
+          geometry: {
+            type: "LineString",
+            coordinates: [
+              [-68, 50 + age / 1000],
+              [-64, 50 + age / 1000],
+            ],
+          },
         })),
       },
       ...values,

@@ -32,11 +32,42 @@ export function uploadRows(n: number, options: { prefix?: string; seed?: number 
     };
     const kind = i % 10;
     if (kind < 4) {
-      rows.push({ ...base, material: "plant macrofossil", method: "radiocarbon", c14_age: Math.round(6000 + rand() * 5000), c14_error: 40 + Math.round(rand() * 40), d13c: -26.1, curve: "intcal20" });
+      rows.push({
+        ...base,
+        material: "plant macrofossil",
+        method: "radiocarbon",
+        c14_age: Math.round(6000 + rand() * 5000),
+        c14_error: 40 + Math.round(rand() * 40),
+        d13c: -26.1,
+        curve: "intcal20",
+      });
     } else if (kind < 7) {
-      rows.push({ ...base, material: "marine shell", method: "radiocarbon", c14_age: Math.round(7000 + rand() * 5000), c14_error: 45, d13c: 1.1, curve: "marine20", delta_r: 150, delta_r_error: 60, delta_r_curve: "marine20" });
+      rows.push({
+        ...base,
+        material: "marine shell",
+        method: "radiocarbon",
+        c14_age: Math.round(7000 + rand() * 5000),
+        c14_error: 45,
+        d13c: 1.1,
+        curve: "marine20",
+        delta_r: 150,
+        delta_r_error: 60,
+        delta_r_curve: "marine20",
+      });
     } else {
-      rows.push({ ...base, material: "quartz", method: "luminescence", signal: "OSL", mineral: "quartz", de_gy: Number((15 + rand() * 10).toFixed(2)), de_error_gy: 1.1, dose_rate_gy_per_ka: 2.05, dose_rate_error_gy_per_ka: 0.1, measurement_year: 2022, water_content: 0.12 });
+      rows.push({
+        ...base,
+        material: "quartz",
+        method: "luminescence",
+        signal: "OSL",
+        mineral: "quartz",
+        de_gy: Number((15 + rand() * 10).toFixed(2)),
+        de_error_gy: 1.1,
+        dose_rate_gy_per_ka: 2.05,
+        dose_rate_error_gy_per_ka: 0.1,
+        measurement_year: 2022,
+        water_content: 0.12,
+      });
     }
   }
   return rows;

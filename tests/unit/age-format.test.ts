@@ -2,7 +2,15 @@ import { describe, expect, it } from "vitest";
 import { formatCalRange, formatMeasuredAge, luminescenceKa } from "#app/utils/age-format.ts";
 import { exploreSearch } from "#app/utils/explore-filters.ts";
 
-const none = { c14AgeYr: null, c14ErrorYr: null, isLimit: false, deGy: null, deErrorGy: null, doseRateGyPerKa: null, doseRateErrorGyPerKa: null };
+const none = {
+  c14AgeYr: null,
+  c14ErrorYr: null,
+  isLimit: false,
+  deGy: null,
+  deErrorGy: null,
+  doseRateGyPerKa: null,
+  doseRateErrorGyPerKa: null,
+};
 
 describe("formatMeasuredAge", () => {
   it("writes radiocarbon ages with grouped thousands and the ¹⁴C BP unit", () => {

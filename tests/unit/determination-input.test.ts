@@ -65,7 +65,13 @@ describe("checkRow", () => {
     const r = checkRow(c14(), ctx);
     expect(r.ok).toBe(true);
     if (!r.ok) return;
-    expect(r.value).toMatchObject({ latitude: 58.5, c14_age: 9500, curve: "intcal20", age_normalised: true, greater_than: false });
+    expect(r.value).toMatchObject({
+      latitude: 58.5,
+      c14_age: 9500,
+      curve: "intcal20",
+      age_normalised: true,
+      greater_than: false,
+    });
   });
 
   it("accepts the template's example rows", () => {
@@ -75,8 +81,14 @@ describe("checkRow", () => {
   it("accepts a luminescence row with a dose rate, and one with K/U/Th instead", () => {
     expect(checkRow(lum(), ctx).ok).toBe(true);
     const parts = lum({
-      dose_rate_gy_per_ka: "", dose_rate_error_gy_per_ka: "", k_percent: 1.5, u_ppm: 1, th_ppm: 4,
-      water_content: 0.1, burial_depth_m: 1.2, density_g_cm3: 1.8,
+      dose_rate_gy_per_ka: "",
+      dose_rate_error_gy_per_ka: "",
+      k_percent: 1.5,
+      u_ppm: 1,
+      th_ppm: 4,
+      water_content: 0.1,
+      burial_depth_m: 1.2,
+      density_g_cm3: 1.8,
     });
     expect(messages(parts)).toEqual([]);
   });
@@ -123,7 +135,9 @@ describe("checkRow", () => {
     expect(checkRow(c14({ c14_age: "", c14_error: "", f14c: "0.3", f14c_error: "0.002" }), ctx).ok).toBe(true);
     expect(issueAt(c14({ c14_error: "" }), "c14_error")).toContain("Give the error");
     expect(issueAt(lum({ dose_rate_gy_per_ka: "", dose_rate_error_gy_per_ka: "" }), "dose_rate_gy_per_ka")).toContain("K, U, Th");
-    expect(issueAt(lum({ dose_rate_gy_per_ka: "", dose_rate_error_gy_per_ka: "", k_percent: 1 }), "u_ppm")).toContain("compute the dose rate");
+    expect(issueAt(lum({ dose_rate_gy_per_ka: "", dose_rate_error_gy_per_ka: "", k_percent: 1 }), "u_ppm")).toContain(
+      "compute the dose rate",
+    );
     expect(issueAt(lum({ measurement_year: "" }), "measurement_year")).toContain("year of measurement");
     expect(issueAt(lum({ measurement_year: 1800 }), "measurement_year")).toContain("between 1950");
   });
@@ -151,7 +165,10 @@ describe("checkRow", () => {
   });
 
   it("reads yes/no cells and DOIs", () => {
-    const r = checkRow(c14({ greater_than: "Yes", age_normalised: "no", d13c: "-25.3", doi: "https://doi.org/10.99999/x.1" }), ctx);
+    const r = checkRow(
+      c14({ greater_than: "Yes", age_normalised: "no", d13c: "-25.3", doi: "https://doi.org/10.99999/x.1" }),
+      ctx,
+    );
     expect(r.ok && r.value).toMatchObject({ greater_than: true, age_normalised: false, doi: "10.99999/x.1" });
     expect(issueAt(c14({ greater_than: "maybe" }), "greater_than")).toContain("yes or no");
     expect(issueAt(c14({ doi: "not a doi" }), "doi")).toContain("not a DOI");

@@ -80,5 +80,7 @@ export function checksumPayload(items: readonly { id: number }[]): unknown[] {
 
 /** SHA-256 (lower-case hex) of the UTF-8 bytes of the canonical text of the items, ordered by id. */
 export function releaseChecksum(items: readonly { id: number }[]): string {
-  return createHash("sha256").update(canonicalJson(checksumPayload(items)), "utf8").digest("hex");
+  return createHash("sha256")
+    .update(canonicalJson(checksumPayload(items)), "utf8")
+    .digest("hex");
 }

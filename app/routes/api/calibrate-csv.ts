@@ -35,9 +35,15 @@ export async function action({ request }: Route.ActionArgs) {
   const marine = curves.some((c) => c.name === input.curve.toLowerCase() && c.kind === "marine");
   const entries = entriesFromPageInput(input, marine);
   if (entries.length > MAX_CALIBRATION_ITEMS) {
-    return new Response(`At most ${MAX_CALIBRATION_ITEMS} ages at a time.`, { status: 400, headers: { "Content-Type": "text/plain; charset=utf-8" } });
+    return new Response(`At most ${MAX_CALIBRATION_ITEMS} ages at a time.`, {
+      status: 400,
+      headers: { "Content-Type": "text/plain; charset=utf-8" },
+    });
   }
-  const response = calibrateItems(db, entries.filter(hasItem).map((e) => e.item));
+  const response = calibrateItems(
+    db,
+    entries.filter(hasItem).map((e) => e.item),
+  );
   const rows = mergeResults(entries, response.results);
   const ranges = (list: { from: number; to: number; p: number }[] | undefined) =>
     list

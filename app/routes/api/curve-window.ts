@@ -20,13 +20,22 @@ export async function loader({ request }: Route.LoaderArgs) {
   const url = new URL(request.url);
   const from = Number(url.searchParams.get("from"));
   const to = Number(url.searchParams.get("to"));
-  if (!Number.isFinite(from) || !Number.isFinite(to) || url.searchParams.get("from") === null || url.searchParams.get("to") === null) {
+  if (
+    !Number.isFinite(from) ||
+    !Number.isFinite(to) ||
+    url.searchParams.get("from") === null ||
+    url.searchParams.get("to") === null
+  ) {
     return json({ error: "Give the window as from and to, in cal BP." }, { status: 400 });
   }
   const db = getDb();
   const idParam = url.searchParams.get("curve_id");
   const curve = idParam
-    ? db.select().from(curves).where(eq(curves.id, Number(idParam))).get()
+    ? db
+        .select()
+        .from(curves)
+        .where(eq(curves.id, Number(idParam)))
+        .get()
     : activeCurve(db, url.searchParams.get("curve") ?? "intcal20");
   if (!curve) return json({ error: "No such curve." }, { status: 404 });
   return json(

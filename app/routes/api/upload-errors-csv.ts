@@ -14,7 +14,11 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     ["row", "column", "message"],
     (batch.errors ?? []).map((e) => [e.row, e.column, e.message]),
   );
-  const base = batch.fileName.replace(/\.[^.]+$/, "").replace(/[^\w.-]+/g, "_").slice(0, 60) || "upload";
+  const base =
+    batch.fileName
+      .replace(/\.[^.]+$/, "")
+      .replace(/[^\w.-]+/g, "_")
+      .slice(0, 60) || "upload";
   return new Response(body, {
     headers: {
       "Content-Type": "text/csv; charset=utf-8",

@@ -8,8 +8,18 @@ import { templateXlsx } from "#app/models/upload-template.server.ts";
 export async function loader({ request }: Route.LoaderArgs) {
   await requireRole(request, "contributor");
   const db = getDb();
-  const names = db.select({ name: materials.name }).from(materials).all().map((m) => m.name);
-  const curves = [...new Set(listCurves(db).filter((c) => c.active).map((c) => c.name))];
+  const names = db
+    .select({ name: materials.name })
+    .from(materials)
+    .all()
+    .map((m) => m.name);
+  const curves = [
+    ...new Set(
+      listCurves(db)
+        .filter((c) => c.active)
+        .map((c) => c.name),
+    ),
+  ];
   const body = await templateXlsx(names, curves);
   return new Response(new Uint8Array(body), {
     headers: {

@@ -34,7 +34,19 @@ export async function action({ request }: Route.ActionArgs) {
   const user = await requireApiRole(request, "contributor");
   if (request.method !== "POST") return json({ error: "Use POST." }, { status: 405, headers: { Allow: "GET, POST" } });
   if (Number(request.headers.get("Content-Length") ?? 0) > MAX_BODY_BYTES) {
-    return json({ errors: [{ index: null, row: null, column: "", message: `The body is larger than ${MAX_BODY_BYTES / 1024 / 1024} MB; send fewer rows at a time.` }] }, { status: 413 });
+    return json(
+      {
+        errors: [
+          {
+            index: null,
+            row: null,
+            column: "",
+            message: `The body is larger than ${MAX_BODY_BYTES / 1024 / 1024} MB; send fewer rows at a time.`,
+          },
+        ],
+      },
+      { status: 413 },
+    );
   }
   let body: unknown;
   try {
@@ -43,17 +55,28 @@ export async function action({ request }: Route.ActionArgs) {
     return json({ errors: [{ index: null, row: null, column: "", message: "The body is not valid JSON." }] }, { status: 400 });
   }
   if (!Array.isArray(body) || body.length === 0) {
-    return json({ errors: [{ index: null, row: null, column: "", message: "Send a non-empty JSON array of rows." }] }, { status: 400 });
+    return json(
+      { errors: [{ index: null, row: null, column: "", message: "Send a non-empty JSON array of rows." }] },
+      { status: 400 },
+    );
   }
   if (body.length > MAX_API_ROWS) {
-    return json({ errors: [{ index: null, row: null, column: "", message: `At most ${MAX_API_ROWS} rows per request (got ${body.length}).` }] }, { status: 413 });
+    return json(
+      {
+        errors: [
+          { index: null, row: null, column: "", message: `At most ${MAX_API_ROWS} rows per request (got ${body.length}).` },
+        ],
+      },
+      { status: 413 },
+    );
   }
   try {
     const result = submitJsonRows(getDb(), body, { userId: user.id }, { ip: clientAddress(request) });
     if (!result.ok) return json({ errors: result.errors }, { status: 400 });
     return json({ determination_ids: result.determinationIds }, { status: 201 });
   } catch (e) {
-    if (e instanceof CommitRefused) return json({ errors: [{ index: null, row: null, column: "", message: e.message }] }, { status: e.status });
+    if (e instanceof CommitRefused)
+      return json({ errors: [{ index: null, row: null, column: "", message: e.message }] }, { status: e.status });
     throw e;
   }
 }

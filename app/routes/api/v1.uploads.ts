@@ -14,7 +14,7 @@ import { json } from "#app/utils/http.server.ts";
 
 export async function loader({ request }: Route.LoaderArgs) {
   await requireApiRole(request, "contributor");
-  return json({ error: "Use POST with a multipart field named \"file\"." }, { status: 405, headers: { Allow: "POST" } });
+  return json({ error: 'Use POST with a multipart field named "file".' }, { status: 405, headers: { Allow: "POST" } });
 }
 
 export async function action({ request }: Route.ActionArgs) {

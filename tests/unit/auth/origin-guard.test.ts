@@ -34,14 +34,20 @@ describe("crossOriginRefusal", () => {
     const headers = { host: "127.0.0.1:3000", origin: "https://registry.example.org" };
     expect(crossOriginRefusal({ method: "POST", headers })).not.toBeNull();
     expect(crossOriginRefusal({ method: "POST", headers, appUrl: "https://registry.example.org" })).toBeNull();
-    const forwarded = { host: "127.0.0.1:3000", origin: "https://registry.example.org", "x-forwarded-host": "registry.example.org" };
+    const forwarded = {
+      host: "127.0.0.1:3000",
+      origin: "https://registry.example.org",
+      "x-forwarded-host": "registry.example.org",
+    };
     expect(crossOriginRefusal({ method: "POST", headers: forwarded })).not.toBeNull();
     expect(crossOriginRefusal({ method: "POST", headers: forwarded, trustProxy: true })).toBeNull();
   });
 
   it("exempts token requests without cookies, not token requests with cookies", () => {
     expect(check("POST", { authorization: "Bearer thw_abc", origin: "https://elsewhere.example" })).toBeNull();
-    expect(check("POST", { authorization: "Bearer thw_abc", cookie: "thawline_session=x", origin: "https://elsewhere.example" })).not.toBeNull();
+    expect(
+      check("POST", { authorization: "Bearer thw_abc", cookie: "thawline_session=x", origin: "https://elsewhere.example" }),
+    ).not.toBeNull();
   });
 
   it("lets clients that send no browser headers through (they carry no visitor's cookies)", () => {
@@ -73,10 +79,17 @@ describe("originGuard middleware", () => {
 
   it("answers a cross-origin POST 403 without reaching the app; same-origin POSTs pass", async () => {
     const before = reached;
-    const refused = await fetch(`${base}/people`, { method: "POST", headers: { Origin: "https://elsewhere.example" }, body: "x=1" });
+    const refused = await fetch(`${base}/people`, {
+      method: "POST",
+      headers: { Origin: "https://elsewhere.example" },
+      body: "x=1",
+    });
     expect(refused.status).toBe(403);
     expect(reached).toBe(before);
-    const api = await fetch(`${base}/api/v1/me`, { method: "POST", headers: { Origin: "https://elsewhere.example", Cookie: "a=b" } });
+    const api = await fetch(`${base}/api/v1/me`, {
+      method: "POST",
+      headers: { Origin: "https://elsewhere.example", Cookie: "a=b" },
+    });
     expect(api.status).toBe(403);
     expect(await api.json()).toEqual({ error: expect.stringContaining("Refused") });
     const fine = await fetch(`${base}/people`, { method: "POST", headers: { Origin: base }, body: "x=1" });

@@ -42,7 +42,9 @@ describe("CalibrationPlot", () => {
       }),
     );
     expect(html).toMatch(/<svg[^>]*role="img"/);
-    expect(html).toMatch(/aria-label="Calibration of TEST-1, 10,000 ± 30 ¹⁴C yr BP on Straight \(1\), ΔR 0 ± 0: median 10,000 cal BP; 95.4 % range 10,060–9,940 cal BP \(95.4 %\)."/);
+    expect(html).toMatch(
+      /aria-label="Calibration of TEST-1, 10,000 ± 30 ¹⁴C yr BP on Straight \(1\), ΔR 0 ± 0: median 10,000 cal BP; 95.4 % range 10,060–9,940 cal BP \(95.4 %\)."/,
+    );
     expect(html).toContain("<title");
     expect(html).toContain("¹⁴C yr BP");
     expect(html).toContain("cal BP");

@@ -17,9 +17,7 @@ describe("canonicalJson", () => {
   });
 
   test("numbers: integers without fraction, fractions in plain decimal, −0 as 0", () => {
-    expect(canonicalJson([5, 12.5, -0.25, -0, 0.000001, 123456789.123456])).toBe(
-      "[5,12.5,-0.25,0,0.000001,123456789.123456]",
-    );
+    expect(canonicalJson([5, 12.5, -0.25, -0, 0.000001, 123456789.123456])).toBe("[5,12.5,-0.25,0,0.000001,123456789.123456]");
   });
 
   test("refuses numbers that would need an exponent, NaN and infinities", () => {

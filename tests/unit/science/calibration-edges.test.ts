@@ -74,9 +74,23 @@ describe("a real-curve reference value (independent direct integration over the 
 
 describe("dates at the curve's ends calibrate, truncated, with a note", () => {
   const cases = [
-    { name: "90 ± 40 on IntCal20", curve: intcal, label: "IntCal20", age: 90, error: 40, end: /young end of IntCal20 \(0 cal BP\)/ },
+    {
+      name: "90 ± 40 on IntCal20",
+      curve: intcal,
+      label: "IntCal20",
+      age: 90,
+      error: 40,
+      end: /young end of IntCal20 \(0 cal BP\)/,
+    },
     { name: "50 ± 30 on IntCal20", curve: intcal, label: "IntCal20", age: 50, error: 30, end: /young end/ },
-    { name: "50,250 ± 400 on IntCal20", curve: intcal, label: "IntCal20", age: 50250, error: 400, end: /old end of IntCal20 \(55,000 cal BP\)/ },
+    {
+      name: "50,250 ± 400 on IntCal20",
+      curve: intcal,
+      label: "IntCal20",
+      age: 50250,
+      error: 400,
+      end: /old end of IntCal20 \(55,000 cal BP\)/,
+    },
     { name: "600 ± 30 on Marine20", curve: marine, label: "Marine20", age: 600, error: 30, end: /young end of Marine20/ },
   ];
   for (const c of cases) {
@@ -98,7 +112,9 @@ describe("dates at the curve's ends calibrate, truncated, with a note", () => {
 
   it("refuses only what cannot overlap the curve, says why, and names the curve by name", () => {
     const msg = beyondCurve(intcal, { age: 10, error: 20, curveLabel: "IntCal20" });
-    expect(msg).toMatch(/cannot overlap it: even its age \+ 2σ \(55\) is younger than the curve reaches; IntCal20 covers 95–50,193/);
+    expect(msg).toMatch(
+      /cannot overlap it: even its age \+ 2σ \(55\) is younger than the curve reaches; IntCal20 covers 95–50,193/,
+    );
     expect(beyondCurve(intcal, { age: 90, error: 40, curveLabel: "IntCal20" })).toBeNull();
     expect(() => calibrate(intcal, { age: 56000, error: 500, curveLabel: "IntCal20" })).toThrow(/IntCal20 covers/);
     expect(() => calibrate(intcal, { age: 56000, error: 500, curveLabel: "IntCal20" })).not.toThrow(/intcal20|\b3 covers/);
@@ -180,7 +196,9 @@ describe("reservoir offsets beyond marine (A5, common practice)", () => {
   });
 
   it("warns for a southern-hemisphere site on a northern curve", () => {
-    expect(hemisphereWarning(-45.2, "intcal20", "IntCal20")).toMatch(/southern hemisphere.*IntCal20, a northern-hemisphere curve/);
+    expect(hemisphereWarning(-45.2, "intcal20", "IntCal20")).toMatch(
+      /southern hemisphere.*IntCal20, a northern-hemisphere curve/,
+    );
     expect(hemisphereWarning(58.5, "intcal20")).toBeNull();
     expect(hemisphereWarning(-45.2, "marine20")).toBeNull();
     expect(hemisphereWarning(58.5, "shcal20", "SHCal20")).toMatch(/northern hemisphere/);

@@ -72,19 +72,23 @@ describe("calibration on synthetic curves (A4 derived checks)", () => {
     const z68 = 1.00064;
     const z95 = 1.99539;
     fc.assert(
-      fc.property(fc.double({ min: 3000, max: 25000, noNaN: true }), fc.double({ min: 5, max: 100, noNaN: true }), (mu, sigma) => {
-        const r = calibrate(straight, { age: mu, error: sigma });
-        const tol68 = 1 + (z68 - 1) * sigma + 1e-9;
-        const tol95 = 1 + (2 - z95) * sigma + 1e-9;
-        // Bronk Ramsey 2009 / CHECK_VALUES A4 [derived]
-        expect(r.hpd68).toHaveLength(1);
-        expect(r.hpd95).toHaveLength(1);
-        expect(Math.abs(r.hpd68[0].from - (mu + sigma))).toBeLessThanOrEqual(tol68);
-        expect(Math.abs(r.hpd68[0].to - (mu - sigma))).toBeLessThanOrEqual(tol68);
-        expect(Math.abs(r.hpd95[0].from - (mu + 2 * sigma))).toBeLessThanOrEqual(tol95);
-        expect(Math.abs(r.hpd95[0].to - (mu - 2 * sigma))).toBeLessThanOrEqual(tol95);
-        expect(Math.abs(r.medianCalBp - mu)).toBeLessThanOrEqual(0.5);
-      }),
+      fc.property(
+        fc.double({ min: 3000, max: 25000, noNaN: true }),
+        fc.double({ min: 5, max: 100, noNaN: true }),
+        (mu, sigma) => {
+          const r = calibrate(straight, { age: mu, error: sigma });
+          const tol68 = 1 + (z68 - 1) * sigma + 1e-9;
+          const tol95 = 1 + (2 - z95) * sigma + 1e-9;
+          // Bronk Ramsey 2009 / CHECK_VALUES A4 [derived]
+          expect(r.hpd68).toHaveLength(1);
+          expect(r.hpd95).toHaveLength(1);
+          expect(Math.abs(r.hpd68[0].from - (mu + sigma))).toBeLessThanOrEqual(tol68);
+          expect(Math.abs(r.hpd68[0].to - (mu - sigma))).toBeLessThanOrEqual(tol68);
+          expect(Math.abs(r.hpd95[0].from - (mu + 2 * sigma))).toBeLessThanOrEqual(tol95);
+          expect(Math.abs(r.hpd95[0].to - (mu - 2 * sigma))).toBeLessThanOrEqual(tol95);
+          expect(Math.abs(r.medianCalBp - mu)).toBeLessThanOrEqual(0.5);
+        },
+      ),
       { numRuns: 200 },
     );
   });
@@ -268,7 +272,9 @@ describe("calibration on the published curves", () => {
     })();
     expect(err).toBeInstanceOf(CalibrationError);
     expect((err as CalibrationError).code).toBe("beyond-curve");
-    expect((err as Error).message).toMatch(/cannot overlap it: even its age − 2σ \(58,487\) is older than the curve reaches; intcal20 covers 95–50,193 14C yr BP \(0–55,000 cal BP\)/);
+    expect((err as Error).message).toMatch(
+      /cannot overlap it: even its age − 2σ \(58,487\) is older than the curve reaches; intcal20 covers 95–50,193 14C yr BP \(0–55,000 cal BP\)/,
+    );
     expect(() => calibrate(intcal, { age: 20, error: 20 })).toThrow(/beyond the curve/);
     expect(() => calibrate(marine, { age: 54000, error: 500, deltaR: 100 })).toThrow(/with ΔR 100/);
     expect(() => calibrate(intcal, { age: 5000, error: 0 })).toThrow(CalibrationError);

@@ -100,10 +100,13 @@ describe("central age model (B6)", () => {
   it("the overdispersion solves the stated equation", () => {
     fc.assert(
       fc.property(
-        fc.array(fc.record({ de: fc.double({ min: 1, max: 200, noNaN: true }), rel: fc.double({ min: 0.02, max: 0.3, noNaN: true }) }), {
-          minLength: 3,
-          maxLength: 30,
-        }),
+        fc.array(
+          fc.record({ de: fc.double({ min: 1, max: 200, noNaN: true }), rel: fc.double({ min: 0.02, max: 0.3, noNaN: true }) }),
+          {
+            minLength: 3,
+            maxLength: 30,
+          },
+        ),
         (xs) => {
           const doses = xs.map((x) => ({ de: x.de, error: x.de * x.rel }));
           const r = centralAgeModel(doses);

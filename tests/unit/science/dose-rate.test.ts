@@ -1,10 +1,6 @@
 import { describe, expect, it } from "vitest";
 import { fullDoseRate, type DoseRateSample } from "#app/science/dose-rate.ts";
-import {
-  betaAbsorbedFraction,
-  etchFactor,
-  RB_BETA_GY_PER_KA_PER_PPM,
-} from "#app/science/dose-rate-factors.ts";
+import { betaAbsorbedFraction, etchFactor, RB_BETA_GY_PER_KA_PER_PPM } from "#app/science/dose-rate-factors.ts";
 import { ASSUMED_ERRORS } from "#app/science/dose-rate-inputs.ts";
 import { cosmicDoseRate } from "#app/science/cosmic.ts";
 import { doseRate } from "#app/science/luminescence.ts";
@@ -73,9 +69,14 @@ describe("full dose rate: values", () => {
     expect(get(r, "internal")).toBe(0);
     // Prescott & Hutton 1994 [from memory]: no site → sea level, 55°
     expect(get(r, "cosmic")).toBeCloseTo(cosmicDoseRate(5.7), 12);
-    expect(r.total).toBeCloseTo(r.components.reduce((a, c) => a + c.value, 0), 12);
+    expect(r.total).toBeCloseTo(
+      r.components.reduce((a, c) => a + c.value, 0),
+      12,
+    );
     expect(r.components.reduce((a, c) => a + c.share, 0)).toBeCloseTo(1, 12);
-    expect(r.citations.map((c) => c.source).join(" ")).toMatch(/Guérin, Mercier & Adamiec 2011.*Mejdahl 1979.*Prescott & Hutton 1994/);
+    expect(r.citations.map((c) => c.source).join(" ")).toMatch(
+      /Guérin, Mercier & Adamiec 2011.*Mejdahl 1979.*Prescott & Hutton 1994/,
+    );
   });
 
   it("Adamiec & Aitken 1998 gamma factors reach the gamma dose rate", () => {
@@ -113,7 +114,10 @@ describe("full dose rate: values", () => {
     expect(ik.contribution).toBeCloseTo((1 - 0.933) * 0.7982 * 0.5, 4);
     // The internal error reaches the total's error.
     const without = fullDoseRate({ ...fs, internalK: { value: 12.5, error: 0 }, internalRb: { value: 400, error: 0 } });
-    expect(r.totalError ** 2 - without.totalError ** 2).toBeCloseTo(ik.contribution ** 2 + r.sources.find((s) => s.key === "internalRb")!.contribution ** 2, 10);
+    expect(r.totalError ** 2 - without.totalError ** 2).toBeCloseTo(
+      ik.contribution ** 2 + r.sources.find((s) => s.key === "internalRb")!.contribution ** 2,
+      10,
+    );
   });
 
   it("Rb is estimated from K when not measured, and said to be", () => {

@@ -90,10 +90,18 @@ describe("δ13C normalisation (A2)", () => {
 
   it("brings an age normalised to 0 ‰ (legacy shell ages) to −25 ‰", () => {
     // Stuiver & Polach 1977 [derived, A2]: the 0 ‰ reference differs by +406.8 yr (exact form)
-    const n = normaliseMeasurement({ measurement: { age: 10000, error: 40 }, alreadyNormalised: true, normalisedToZeroPermil: true });
+    const n = normaliseMeasurement({
+      measurement: { age: 10000, error: 40 },
+      alreadyNormalised: true,
+      normalisedToZeroPermil: true,
+    });
     expectQuoted(n.age, 10406.8, 1);
     expect(n.ageError).toBe(40);
-    const r = interpretRadiocarbon({ measurement: { age: 10000, error: 40 }, alreadyNormalised: true, normalisedToZeroPermil: true });
+    const r = interpretRadiocarbon({
+      measurement: { age: 10000, error: 40 },
+      alreadyNormalised: true,
+      normalisedToZeroPermil: true,
+    });
     expect(r).toMatchObject({ kind: "age", age: expect.closeTo(10406.76, 1) });
     if (r.kind === "age") expect(r.message).toMatch(/0 ‰ reference/);
   });
@@ -160,10 +168,18 @@ describe("interpretRadiocarbon", () => {
 
   it("computes a lab's greater-than given as F14C from F + 2σ (A1)", () => {
     // van der Plicht & Hogg 2006 — from memory (CHECK_VALUES A1): F = 0.0010 ± 0.0008 → "> 47,814 yr BP"
-    const r = interpretRadiocarbon({ measurement: { f14c: 0.001, error: 0.0008 }, alreadyNormalised: true, reportedAsLimit: true });
+    const r = interpretRadiocarbon({
+      measurement: { f14c: 0.001, error: 0.0008 },
+      alreadyNormalised: true,
+      reportedAsLimit: true,
+    });
     expect(r).toMatchObject({ kind: "limit", minAge: expect.closeTo(47814, 0) });
     // Even when F itself is well above 2σ, a reported limit is the age of F + 2σ, not of F.
-    const firm = interpretRadiocarbon({ measurement: { f14c: 0.01, error: 0.001 }, alreadyNormalised: true, reportedAsLimit: true });
+    const firm = interpretRadiocarbon({
+      measurement: { f14c: 0.01, error: 0.001 },
+      alreadyNormalised: true,
+      reportedAsLimit: true,
+    });
     expect(firm).toMatchObject({ kind: "limit", minAge: expect.closeTo(-8033 * Math.log(0.012), 6) });
   });
 

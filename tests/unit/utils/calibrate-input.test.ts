@@ -38,7 +38,11 @@ describe("parseCalibrationInput", () => {
   });
 
   test("lines without a curve take the default curve and its ΔR; other curves do not", () => {
-    const entries = parseCalibrationInput("a, 9500, 70\nb, 9500, 70, intcal20", { curve: "marine20", deltaR: 50, deltaRError: 40 });
+    const entries = parseCalibrationInput("a, 9500, 70\nb, 9500, 70, intcal20", {
+      curve: "marine20",
+      deltaR: 50,
+      deltaRError: 40,
+    });
     expect(entries.map((e) => ("item" in e ? e.item : null))).toEqual([
       { id: "a", c14_age: 9500, c14_error: 70, curve: "marine20", delta_r: 50, delta_r_error: 40 },
       { id: "b", c14_age: 9500, c14_error: 70, curve: "intcal20" },
@@ -47,7 +51,15 @@ describe("parseCalibrationInput", () => {
 });
 
 describe("entriesFromPageInput", () => {
-  const base: PageInput = { mode: "one", age: "10250", error: "45", curve: "intcal20", deltaR: "50", deltaRError: "40", list: "" };
+  const base: PageInput = {
+    mode: "one",
+    age: "10250",
+    error: "45",
+    curve: "intcal20",
+    deltaR: "50",
+    deltaRError: "40",
+    list: "",
+  };
 
   test("one age on an atmospheric curve ignores the ΔR fields", () => {
     expect(entriesFromPageInput(base, false)).toEqual([
@@ -62,7 +74,9 @@ describe("entriesFromPageInput", () => {
 
   test("an empty form gives nothing; a bad number gives a message", () => {
     expect(entriesFromPageInput({ ...base, age: "", error: "" }, false)).toEqual([]);
-    expect(entriesFromPageInput({ ...base, age: "abc" }, false)).toEqual([{ line: 1, id: "1", error: 'The age "abc" is not a number.' }]);
+    expect(entriesFromPageInput({ ...base, age: "abc" }, false)).toEqual([
+      { line: 1, id: "1", error: 'The age "abc" is not a number.' },
+    ]);
   });
 
   test("list mode parses the list with the form's curve as default", () => {

@@ -5,7 +5,7 @@ import { geojsonStream } from "#app/utils/geojson-stream.ts";
 import { streamToText, textStream } from "#app/utils/text-stream.ts";
 
 describe("csvLine", () => {
-  test.each(["=HYPERLINK(\"x\")", "+1", "-1", "@SUM(A1)", "\tcmd", "\rcmd"])(
+  test.each(['=HYPERLINK("x")', "+1", "-1", "@SUM(A1)", "\tcmd", "\rcmd"])(
     "a text cell starting %j cannot run as a formula",
     (cell) => {
       const line = csvLine([cell]);

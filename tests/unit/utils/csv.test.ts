@@ -26,7 +26,13 @@ describe("safeCell", () => {
 
 describe("toCsv", () => {
   test("quotes commas, quotes and line breaks after making cells safe", () => {
-    const csv = toCsv(["id", "note"], [["=1+1", 'said "hi", then left'], ["b", "two\nlines"]]);
+    const csv = toCsv(
+      ["id", "note"],
+      [
+        ["=1+1", 'said "hi", then left'],
+        ["b", "two\nlines"],
+      ],
+    );
     expect(csv).toBe('id,note\r\n\'=1+1,"said ""hi"", then left"\r\nb,"two\nlines"\r\n');
   });
 });

@@ -1,10 +1,5 @@
 import { describe, expect, it } from "vitest";
-import {
-  clientRowContext,
-  existingRecordLink,
-  makeSubmissionSchema,
-  type FormOptions,
-} from "#app/utils/submission-form.ts";
+import { clientRowContext, existingRecordLink, makeSubmissionSchema, type FormOptions } from "#app/utils/submission-form.ts";
 
 const OPTIONS: Pick<FormOptions, "materials" | "curves"> = {
   materials: [
@@ -44,11 +39,18 @@ describe("the form's schema", () => {
   it("yields the row and a new site", () => {
     const r = schema.safeParse(GOOD);
     expect(r.success).toBe(true);
-    expect(r.data).toMatchObject({ siteChoice: "new", siteId: null, row: { c14_age: 9000, curve: "intcal20", lab_name: "Some Lab" } });
+    expect(r.data).toMatchObject({
+      siteChoice: "new",
+      siteId: null,
+      row: { c14_age: 9000, curve: "intcal20", lab_name: "Some Lab" },
+    });
   });
 
   it("takes a chosen site's id and reports a missing choice once, at the site list", () => {
-    expect(schema.safeParse({ ...GOOD, site_choice: "existing", site_id: "12" }).data).toMatchObject({ siteChoice: "existing", siteId: 12 });
+    expect(schema.safeParse({ ...GOOD, site_choice: "existing", site_id: "12" }).data).toMatchObject({
+      siteChoice: "existing",
+      siteId: 12,
+    });
     expect(issues({ ...GOOD, site_choice: "existing", site_id: "", site_name: "", latitude: "", longitude: "" })).toEqual({
       site_id: "Choose a site from the list, or enter a new site.",
     });
@@ -60,7 +62,9 @@ describe("the form's schema", () => {
   });
 
   it("runs the server's checks only on an otherwise valid form, at the fields they name", () => {
-    const withServer = makeSubmissionSchema(clientRowContext(OPTIONS), () => [{ column: "material", message: "recorded as wood" }]);
+    const withServer = makeSubmissionSchema(clientRowContext(OPTIONS), () => [
+      { column: "material", message: "recorded as wood" },
+    ]);
     const r = withServer.safeParse(GOOD);
     expect(r.success).toBe(false);
     expect(r.error!.issues.map((i) => [i.path[0], i.message])).toEqual([["material", "recorded as wood"]]);
