@@ -8,8 +8,8 @@ export default tseslint.config(
   { ignores: ["build/", ".react-router/", "node_modules/", "tmp/", "data/", "coverage/", "test-results/"] },
   js.configs.recommended,
   ...tseslint.configs.recommended,
-  // The hooks rules are for React code; the tests' use* helpers are test fixtures, not hooks.
-  { files: ["app/**/*.{ts,tsx}"], ...reactHooks.configs.flat.recommended },
+  // The hooks rules are for React code (components and use-* hook modules); elsewhere a use* name is just a name.
+  { files: ["app/**/*.tsx", "app/**/use-*.ts"], ...reactHooks.configs.flat.recommended },
   {
     // Tests and benchmarks read untyped JSON and call route modules with hand-made arguments.
     files: ["tests/**", "bench/**"],

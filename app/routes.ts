@@ -1,37 +1,53 @@
-import { type RouteConfig, index, route } from "@react-router/dev/routes";
+import { type RouteConfig, index, layout, prefix, route } from "@react-router/dev/routes";
 
+// URLs are the public contract; the folders only group the modules. Each area's layout checks the
+// area's role, and every loader and action still begins with its own check.
 export default [
   index("routes/home.tsx"),
-  route("sign-in", "routes/sign-in.tsx"),
-  route("sign-in/link", "routes/sign-in.link.tsx"),
-  route("sign-out", "routes/sign-out.ts"),
-  route("account", "routes/account.tsx"),
-  route("people", "routes/people.tsx"),
-  route("dev/outbox", "routes/dev.outbox.tsx"),
-  route("api/v1/me", "routes/api/v1.me.ts"),
-  route("explore", "routes/explore.tsx"),
-  route("determinations/:id", "routes/determination.tsx"),
-  route("sites/:id", "routes/site.tsx"),
-  route("map", "routes/map.tsx"),
-  route("api/map-sites", "routes/api/map-sites.ts"),
   route("calibrate", "routes/calibrate.tsx"),
-  route("calibrate/results.csv", "routes/api/calibrate-csv.ts"),
-  route("api/v1/calibrate", "routes/api/v1.calibrate.ts"),
-  route("api/curve-window", "routes/api/curve-window.ts"),
-  route("curves", "routes/curves.tsx"),
-  route("api/jobs/:id", "routes/api/jobs.ts"),
-  route("uploads", "routes/uploads.tsx"),
-  route("uploads/file", "routes/api/upload-file.ts"),
-  route("uploads/template.xlsx", "routes/api/upload-template-xlsx.ts"),
-  route("uploads/template.csv", "routes/api/upload-template-csv.ts"),
-  route("uploads/:publicId", "routes/upload.tsx"),
-  route("uploads/:publicId/errors.csv", "routes/api/upload-errors-csv.ts"),
-  route("api/v1/uploads", "routes/api/v1.uploads.ts"),
-  route("api/v1/uploads/:uploadId/commit", "routes/api/v1.uploads.commit.ts"),
-  route("api/v1/determinations", "routes/api/v1.determinations.ts"),
-  route("submit", "routes/submit.tsx"),
-  route("submissions", "routes/submissions.tsx"),
-  route("submissions/:id/edit", "routes/submission-edit.tsx"),
-  route("api/determination-preview", "routes/api/determination-preview.ts"),
   route("api-docs", "routes/api-docs.tsx"),
+  route("dev/outbox", "routes/dev.outbox.tsx"),
+
+  // Sign-in and sign-out are for everyone; the account page for signed-in people.
+  route("sign-in", "routes/account/sign-in.tsx"),
+  route("sign-in/link", "routes/account/sign-in.link.tsx"),
+  route("sign-out", "routes/account/sign-out.ts"),
+  layout("routes/account/layout.tsx", [route("account", "routes/account/account.tsx")]),
+
+  layout("routes/explore/layout.tsx", [
+    route("explore", "routes/explore/explore.tsx"),
+    route("determinations/:id", "routes/explore/determination.tsx"),
+    route("sites/:id", "routes/explore/site.tsx"),
+    route("map", "routes/explore/map.tsx"),
+  ]),
+
+  layout("routes/contribute/layout.tsx", [
+    route("submit", "routes/contribute/submit.tsx"),
+    route("submissions", "routes/contribute/submissions.tsx"),
+    route("submissions/:id/edit", "routes/contribute/submission-edit.tsx"),
+    route("uploads", "routes/contribute/uploads.tsx"),
+    route("uploads/:publicId", "routes/contribute/upload.tsx"),
+  ]),
+
+  layout("routes/admin/layout.tsx", [route("people", "routes/admin/people.tsx"), route("curves", "routes/admin/curves.tsx")]),
+
+  // Cookie-session resource routes: CSV and spreadsheet downloads, previews, job progress, map data.
+  route("api/map-sites", "routes/resources/map-sites.ts"),
+  route("api/curve-window", "routes/resources/curve-window.ts"),
+  route("api/jobs/:id", "routes/resources/jobs.ts"),
+  route("api/determination-preview", "routes/resources/determination-preview.ts"),
+  route("calibrate/results.csv", "routes/resources/calibrate-csv.ts"),
+  route("uploads/file", "routes/resources/upload-file.ts"),
+  route("uploads/template.xlsx", "routes/resources/upload-template-xlsx.ts"),
+  route("uploads/template.csv", "routes/resources/upload-template-csv.ts"),
+  route("uploads/:publicId/errors.csv", "routes/resources/upload-errors-csv.ts"),
+
+  // The token API: JSON, a stable contract documented at /api-docs.
+  ...prefix("api/v1", [
+    route("me", "routes/api/v1/me.ts"),
+    route("calibrate", "routes/api/v1/calibrate.ts"),
+    route("uploads", "routes/api/v1/uploads.ts"),
+    route("uploads/:uploadId/commit", "routes/api/v1/uploads.commit.ts"),
+    route("determinations", "routes/api/v1/determinations.ts"),
+  ]),
 ] satisfies RouteConfig;

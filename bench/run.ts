@@ -17,14 +17,14 @@ process.env.RESEND_API_KEY = "re_fake_bench";
 process.env.MAIL_OUTBOX_DIR = path.join(dir, "outbox");
 
 const { getDb, migrateDatabase } = await import("#app/db/client.server.ts");
-const { importBundledCurves, activeCurve, preparedCurve } = await import("#app/models/curves.server.ts");
+const { importBundledCurves, activeCurve, preparedCurve } = await import("#app/models/calibration/curves.server.ts");
 const { seedDemo } = await import("#seed/seed.server.ts");
 const { createSession } = await import("#app/auth/session.server.ts");
 const { calibrate } = await import("#app/science/calibration.ts");
 const { interpretRadiocarbon } = await import("#app/science/radiocarbon.ts");
-const { benchUpload } = await import("#app/models/uploads.server.ts");
-const exploreRoute = await import("#app/routes/explore.tsx");
-const determinationRoute = await import("#app/routes/determination.tsx");
+const { benchUpload } = await import("#app/models/submission/uploads.server.ts");
+const exploreRoute = await import("#app/routes/explore/explore.tsx");
+const determinationRoute = await import("#app/routes/explore/determination.tsx");
 
 type Row = { area: string; measure: string; value: string; goal?: string };
 const table: Row[] = [];

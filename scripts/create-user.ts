@@ -4,7 +4,7 @@
 import { parseArgs } from "node:util";
 import { getDb } from "#app/db/client.server.ts";
 import { ROLES } from "#app/db/schema.ts";
-import { createUser, findUserByEmail, inviteUser, isRole, normalizeEmail, setRoles } from "#app/models/users.server.ts";
+import { createUser, findUserByEmail, inviteUser, isRole, normalizeEmail, setRoles } from "#app/models/accounts/users.server.ts";
 
 const usage = `Usage: npm run create-user -- <address> --roles <role,role> [--name <name>]
 Roles: ${ROLES.join(", ")}`;

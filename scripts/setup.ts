@@ -1,6 +1,6 @@
 // `npm run setup`: apply migrations and import the bundled curves into DATABASE_URL. Idempotent.
 import { migrateDatabase, openDatabase } from "#app/db/client.server.ts";
-import { BUNDLED_CURVES, CurveImportError, importBundledCurves } from "#app/models/curves.server.ts";
+import { BUNDLED_CURVES, CurveImportError, importBundledCurves } from "#app/models/calibration/curves.server.ts";
 import { env } from "#app/utils/env.server.ts";
 
 const { DATABASE_URL, CURVES_DIR } = env();

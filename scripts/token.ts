@@ -2,8 +2,8 @@
 // existing, active person (for scripts and first set-up). The token is shown once; only its hash is kept.
 import { parseArgs } from "node:util";
 import { getDb } from "#app/db/client.server.ts";
-import { createToken } from "#app/models/tokens.server.ts";
-import { findUserByEmail } from "#app/models/users.server.ts";
+import { createToken } from "#app/models/accounts/tokens.server.ts";
+import { findUserByEmail } from "#app/models/accounts/users.server.ts";
 
 const { values } = parseArgs({
   options: { email: { type: "string" }, label: { type: "string" } },

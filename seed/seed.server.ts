@@ -6,16 +6,16 @@ import fs from "node:fs";
 import { eq, inArray, sql } from "drizzle-orm";
 import type { Db } from "#app/db/client.server.ts";
 import { auditLog, labs, publications, reconstructions, type Role } from "#app/db/schema.ts";
-import { calibrateAll } from "#app/models/calibrations.server.ts";
-import { activeCurve, importBundledCurves, preparedCurve } from "#app/models/curves.server.ts";
+import { calibrateAll } from "#app/models/calibration/calibrations.server.ts";
+import { activeCurve, importBundledCurves, preparedCurve } from "#app/models/calibration/curves.server.ts";
 import {
   insertDetermination,
   insertLab,
   insertPublication,
   insertSample,
   insertSite,
-} from "#app/models/determinations.server.ts";
-import { createUser } from "#app/models/users.server.ts";
+} from "#app/models/submission/determinations.server.ts";
+import { createUser } from "#app/models/accounts/users.server.ts";
 import { loadLand } from "./land.server.ts";
 import {
   DEFAULT_SEED,

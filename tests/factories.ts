@@ -17,8 +17,8 @@ import {
   type NewSite,
   type SampleRow,
   type SiteRow,
-} from "#app/models/determinations.server.ts";
-import { createUser } from "#app/models/users.server.ts";
+} from "#app/models/submission/determinations.server.ts";
+import { createUser } from "#app/models/accounts/users.server.ts";
 
 let counter = 0;
 // A per-process base keeps codes unique even when several factories share one database file.

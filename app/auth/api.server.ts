@@ -1,6 +1,6 @@
 import type { Role } from "#app/db/schema.ts";
 import { getDb } from "#app/db/client.server.ts";
-import { userForToken } from "#app/models/tokens.server.ts";
+import { userForToken } from "#app/models/accounts/tokens.server.ts";
 import { json } from "#app/utils/http.server.ts";
 
 function apiError(status: 401 | 403, message: string): never {

@@ -5,7 +5,7 @@ import { TOTPStrategy } from "remix-auth-totp";
 import { getDb } from "#app/db/client.server.ts";
 import { clientAddress, createSession } from "#app/auth/session.server.ts";
 import { audit } from "#app/models/audit.server.ts";
-import { findActiveUserByEmail, findUserByEmail, normalizeEmail, recordSignIn } from "#app/models/users.server.ts";
+import { findActiveUserByEmail, findUserByEmail, normalizeEmail, recordSignIn } from "#app/models/accounts/users.server.ts";
 import { sendEmail } from "#app/mail/send.server.ts";
 import { signInMessage } from "#app/mail/templates.server.ts";
 import { exhaust, hit } from "#app/utils/rate-limit.server.ts";

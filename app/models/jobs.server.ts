@@ -2,7 +2,7 @@ import { and, desc, eq, isNull, or, sql } from "drizzle-orm";
 import type { Db } from "#app/db/client.server.ts";
 import { determinations, jobs } from "#app/db/schema.ts";
 import { audit } from "#app/models/audit.server.ts";
-import { calibrateDeterminations } from "#app/models/calibrations.server.ts";
+import { calibrateDeterminations } from "#app/models/calibration/calibrations.server.ts";
 
 /*
  * Background work inside the server process. A job is a row in `jobs` (the page polls it) and a

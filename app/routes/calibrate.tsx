@@ -13,9 +13,9 @@ import {
 } from "#app/components/calibration-plot.tsx";
 import { ErrorView } from "#app/components/error-view.tsx";
 import { getDb } from "#app/db/client.server.ts";
-import { calibrateItems } from "#app/models/calibrate-items.server.ts";
-import { plotForItem, type CalibrationPlotData } from "#app/models/calibration-plot.server.ts";
-import { listCurves } from "#app/models/curves.server.ts";
+import { calibrateItems } from "#app/models/calibration/calibrate-items.server.ts";
+import { plotForItem, type CalibrationPlotData } from "#app/models/calibration/calibration-plot.server.ts";
+import { listCurves } from "#app/models/calibration/curves.server.ts";
 import { formatProbability } from "#app/utils/age-format.ts";
 import {
   entriesFromPageInput,

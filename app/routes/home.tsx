@@ -2,7 +2,7 @@ import { Link } from "react-router";
 import type { Route } from "./+types/home";
 import { ErrorView } from "#app/components/error-view.tsx";
 import { getOptionalUser } from "#app/auth/session.server.ts";
-import { registryTotals } from "#app/models/stats.server.ts";
+import { registryTotals } from "#app/models/registry/stats.server.ts";
 
 export async function loader({ request }: Route.LoaderArgs) {
   // Public page: anyone may read the registry's headline totals.

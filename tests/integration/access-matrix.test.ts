@@ -13,7 +13,7 @@ import routes from "#app/routes.ts";
 import { getDb } from "#app/db/client.server.ts";
 import { determinations, jobs, labs, samples, sites, uploadBatches, type Role } from "#app/db/schema.ts";
 import { createSession } from "#app/auth/session.server.ts";
-import { createToken } from "#app/models/tokens.server.ts";
+import { createToken } from "#app/models/accounts/tokens.server.ts";
 import { args, get, personWithSession, post, run, type Outcome } from "#tests/support/auth.ts";
 
 const AUDIENCES = ["signed-out", "contributor", "reviewer", "modeller", "editor"] as const;
@@ -62,58 +62,77 @@ export const ACCESS: Record<string, Row> = {
   root: { url: "/", get: "ok", post: "none" },
   "routes/home": { url: "/", get: "ok", post: "none" },
   // Sign-in, sign-out, account, people, outbox, token API (issue 4)
-  "routes/sign-in": { url: "/sign-in", get: publicButSignedInGoesOn("/"), post: "allowed" },
-  "routes/sign-in.link": { url: "/sign-in/link?t=x", get: publicButSignedInGoesOn("/"), post: "allowed" },
-  "routes/sign-out": { url: "/sign-out", get: "redirect:/", post: "redirect:/" },
-  "routes/account": { url: "/account", get: signedIn("ok"), post: signedIn("allowed") },
-  "routes/people": { url: "/people", get: only(["editor"], "ok"), post: only(["editor"], "allowed") },
+  "routes/account/sign-in": { url: "/sign-in", get: publicButSignedInGoesOn("/"), post: "allowed" },
+  "routes/account/sign-in.link": { url: "/sign-in/link?t=x", get: publicButSignedInGoesOn("/"), post: "allowed" },
+  "routes/account/sign-out": { url: "/sign-out", get: "redirect:/", post: "redirect:/" },
+  "routes/account/account": { url: "/account", get: signedIn("ok"), post: signedIn("allowed") },
+  "routes/admin/people": { url: "/people", get: only(["editor"], "ok"), post: only(["editor"], "allowed") },
   "routes/dev.outbox": { url: "/dev/outbox", get: "ok", post: "none" },
-  "routes/api/v1.me": {
+  "routes/api/v1/me": {
     url: "/api/v1/me",
     auth: "token",
     get: { ...signedIn("ok"), "signed-out": "unauthorized" },
     post: "none",
   },
+  // Each area's layout checks the area's role before its pages' own checks.
+  "routes/account/layout": { url: "/account", get: signedIn("ok"), post: "none" },
+  "routes/explore/layout": { url: "/explore", get: signedIn("ok"), post: "none" },
+  "routes/contribute/layout": { url: "/submissions", get: only(["contributor"], "ok"), post: "none" },
+  "routes/admin/layout": { url: "/people", get: only(["editor"], "ok"), post: "none" },
   // Reading the registry: any signed-in person
-  "routes/explore": { url: "/explore", get: signedIn("ok"), post: "none" },
-  "routes/determination": { url: "/determinations/:id", params: { id: "determinationId" }, get: signedIn("ok"), post: "none" },
-  "routes/site": { url: "/sites/:id", params: { id: "siteId" }, get: signedIn("ok"), post: "none" },
-  "routes/map": { url: "/map", get: signedIn("ok"), post: "none" },
-  "routes/api/map-sites": { url: "/api/map-sites", get: { ...signedIn("ok"), "signed-out": "unauthorized" }, post: "none" },
+  "routes/explore/explore": { url: "/explore", get: signedIn("ok"), post: "none" },
+  "routes/explore/determination": {
+    url: "/determinations/:id",
+    params: { id: "determinationId" },
+    get: signedIn("ok"),
+    post: "none",
+  },
+  "routes/explore/site": { url: "/sites/:id", params: { id: "siteId" }, get: signedIn("ok"), post: "none" },
+  "routes/explore/map": { url: "/map", get: signedIn("ok"), post: "none" },
+  "routes/resources/map-sites": { url: "/api/map-sites", get: { ...signedIn("ok"), "signed-out": "unauthorized" }, post: "none" },
   // Calibration: public (rate-limited per address)
   "routes/calibrate": { url: "/calibrate", get: "ok", post: "allowed" },
-  "routes/api/calibrate-csv": { url: "/calibrate/results.csv", get: "status:405", post: "allowed" },
-  "routes/api/v1.calibrate": { url: "/api/v1/calibrate", get: "status:405", post: "allowed" },
-  "routes/api/curve-window": { url: "/api/curve-window?curve=intcal20&from=12500&to=11500", get: "ok", post: "none" },
+  "routes/resources/calibrate-csv": { url: "/calibrate/results.csv", get: "status:405", post: "allowed" },
+  "routes/api/v1/calibrate": { url: "/api/v1/calibrate", get: "status:405", post: "allowed" },
+  "routes/resources/curve-window": { url: "/api/curve-window?curve=intcal20&from=12500&to=11500", get: "ok", post: "none" },
   // Curves and background jobs: editors
-  "routes/curves": { url: "/curves", get: only(["editor"], "ok"), post: only(["editor"], "allowed") },
-  "routes/api/jobs": { url: "/api/jobs/:id", params: { id: "jobId" }, get: only(["editor"], "ok", "unauthorized"), post: "none" },
+  "routes/admin/curves": { url: "/curves", get: only(["editor"], "ok"), post: only(["editor"], "allowed") },
+  "routes/resources/jobs": {
+    url: "/api/jobs/:id",
+    params: { id: "jobId" },
+    get: only(["editor"], "ok", "unauthorized"),
+    post: "none",
+  },
   // Submitting: contributors, on their own uploads and determinations (the fixtures belong to the matrix contributor)
-  "routes/uploads": { url: "/uploads", get: only(["contributor"], "ok"), post: only(["contributor"], "allowed") },
-  "routes/api/upload-file": { url: "/uploads/file", get: "none", post: only(["contributor"], "allowed") },
-  "routes/api/upload-template-xlsx": { url: "/uploads/template.xlsx", get: only(["contributor"], "ok"), post: "none" },
-  "routes/api/upload-template-csv": { url: "/uploads/template.csv", get: only(["contributor"], "ok"), post: "none" },
-  "routes/upload": {
+  "routes/contribute/uploads": { url: "/uploads", get: only(["contributor"], "ok"), post: only(["contributor"], "allowed") },
+  "routes/resources/upload-file": { url: "/uploads/file", get: "none", post: only(["contributor"], "allowed") },
+  "routes/resources/upload-template-xlsx": { url: "/uploads/template.xlsx", get: only(["contributor"], "ok"), post: "none" },
+  "routes/resources/upload-template-csv": { url: "/uploads/template.csv", get: only(["contributor"], "ok"), post: "none" },
+  "routes/contribute/upload": {
     url: "/uploads/:publicId",
     params: { publicId: "uploadPublicId" },
     get: only(["contributor"], "ok"),
     post: only(["contributor"], "allowed"),
   },
-  "routes/api/upload-errors-csv": {
+  "routes/resources/upload-errors-csv": {
     url: "/uploads/:publicId/errors.csv",
     params: { publicId: "uploadPublicId" },
     get: only(["contributor"], "ok"),
     post: "none",
   },
-  "routes/submit": { url: "/submit", get: only(["contributor"], "ok"), post: only(["contributor"], "allowed") },
-  "routes/api/determination-preview": {
+  "routes/contribute/submit": { url: "/submit", get: only(["contributor"], "ok"), post: only(["contributor"], "allowed") },
+  "routes/resources/determination-preview": {
     url: "/api/determination-preview",
     get: only(["contributor"], "status:405"),
     post: only(["contributor"], "allowed"),
   },
-  "routes/submissions": { url: "/submissions", get: only(["contributor"], "ok"), post: only(["contributor"], "allowed") },
+  "routes/contribute/submissions": {
+    url: "/submissions",
+    get: only(["contributor"], "ok"),
+    post: only(["contributor"], "allowed"),
+  },
   // The fixture determination was submitted by the matrix contributor, so only they may edit it.
-  "routes/submission-edit": {
+  "routes/contribute/submission-edit": {
     url: "/submissions/:id/edit",
     params: { id: "determinationId" },
     get: only(["contributor"], "ok"),
@@ -122,20 +141,20 @@ export const ACCESS: Record<string, Row> = {
   // Documentation: public
   "routes/api-docs": { url: "/api-docs", get: "ok", post: "none" },
   // Contributors' API, by token
-  "routes/api/v1.uploads": {
+  "routes/api/v1/uploads": {
     url: "/api/v1/uploads",
     auth: "token",
     get: only(["contributor"], "status:405", "unauthorized"),
     post: only(["contributor"], "allowed", "unauthorized"),
   },
-  "routes/api/v1.uploads.commit": {
+  "routes/api/v1/uploads.commit": {
     url: "/api/v1/uploads/:uploadId/commit",
     params: { uploadId: "uploadPublicId" },
     auth: "token",
     get: only(["contributor"], "status:405", "unauthorized"),
     post: only(["contributor"], "allowed", "unauthorized"),
   },
-  "routes/api/v1.determinations": {
+  "routes/api/v1/determinations": {
     url: "/api/v1/determinations",
     auth: "token",
     get: { ...signedIn("ok"), "signed-out": "unauthorized" },

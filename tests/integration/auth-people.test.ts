@@ -4,10 +4,10 @@ import { readOutbox } from "#seed/mail-fake.ts";
 import { getDb } from "#app/db/client.server.ts";
 import { auditLog, sessions, users } from "#app/db/schema.ts";
 import { getOptionalUser } from "#app/auth/session.server.ts";
-import { getPerson } from "#app/models/users.server.ts";
-import * as people from "#app/routes/people.tsx";
-import * as me from "#app/routes/api/v1.me.ts";
-import * as account from "#app/routes/account.tsx";
+import { getPerson } from "#app/models/accounts/users.server.ts";
+import * as people from "#app/routes/admin/people.tsx";
+import * as me from "#app/routes/api/v1/me.ts";
+import * as account from "#app/routes/account/account.tsx";
 import { args, get, personWithSession, post, run } from "#tests/support/auth.ts";
 import { useMailFake } from "#tests/support/mail-fake.ts";
 

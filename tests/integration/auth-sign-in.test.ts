@@ -11,10 +11,10 @@ import {
   SIGN_IN_ERRORS,
 } from "#app/auth/sign-in.server.ts";
 import { readMessageText } from "#app/mail/templates.server.ts";
-import { createUser, setActive } from "#app/models/users.server.ts";
-import * as signIn from "#app/routes/sign-in.tsx";
-import * as signInLink from "#app/routes/sign-in.link.tsx";
-import * as signOut from "#app/routes/sign-out.ts";
+import { createUser, setActive } from "#app/models/accounts/users.server.ts";
+import * as signIn from "#app/routes/account/sign-in.tsx";
+import * as signInLink from "#app/routes/account/sign-in.link.tsx";
+import * as signOut from "#app/routes/account/sign-out.ts";
 import { args, CookieJar, get, post, run } from "#tests/support/auth.ts";
 import { useMailFake } from "#tests/support/mail-fake.ts";
 

@@ -3,12 +3,12 @@ import { describe, expect, it } from "vitest";
 import { getDb } from "#app/db/client.server.ts";
 import { apiTokens, auditLog, sessions } from "#app/db/schema.ts";
 import { requireApiRole } from "#app/auth/api.server.ts";
-import { hashToken } from "#app/models/tokens.server.ts";
-import { sessionHandle } from "#app/models/sessions.server.ts";
-import { setActive } from "#app/models/users.server.ts";
+import { hashToken } from "#app/models/accounts/tokens.server.ts";
+import { sessionHandle } from "#app/models/accounts/sessions.server.ts";
+import { setActive } from "#app/models/accounts/users.server.ts";
 import { createSession } from "#app/auth/session.server.ts";
-import * as account from "#app/routes/account.tsx";
-import * as me from "#app/routes/api/v1.me.ts";
+import * as account from "#app/routes/account/account.tsx";
+import * as me from "#app/routes/api/v1/me.ts";
 import { args, get, personWithSession, post, run } from "#tests/support/auth.ts";
 
 function apiMe(token: string | null) {

@@ -1,5 +1,5 @@
 import { describe, expect, test } from "vitest";
-import { action, CALIBRATE_RATE_LIMIT, loader } from "#app/routes/api/v1.calibrate.ts";
+import { action, CALIBRATE_RATE_LIMIT, loader } from "#app/routes/api/v1/calibrate.ts";
 
 // Each test uses its own client address so the per-address rate limit never couples tests.
 let addressCounter = 0;

@@ -3,12 +3,12 @@ import { describe, expect, test } from "vitest";
 import { createSession } from "#app/auth/session.server.ts";
 import { getDb } from "#app/db/client.server.ts";
 import { auditLog, calibrations, curves, jobs } from "#app/db/schema.ts";
-import { calibrateDeterminations, calibrationHistory, currentCalibration } from "#app/models/calibrations.server.ts";
-import { addCurveVersion } from "#app/models/curve-versions.server.ts";
-import { activeCurve, curveWindow, importCurve } from "#app/models/curves.server.ts";
+import { calibrateDeterminations, calibrationHistory, currentCalibration } from "#app/models/calibration/calibrations.server.ts";
+import { addCurveVersion } from "#app/models/calibration/curve-versions.server.ts";
+import { activeCurve, curveWindow, importCurve } from "#app/models/calibration/curves.server.ts";
 import { getJob, jobFinished, startRecalibration } from "#app/models/jobs.server.ts";
-import { loader as jobLoader } from "#app/routes/api/jobs.ts";
-import { action as curvesAction, loader as curvesLoader } from "#app/routes/curves.tsx";
+import { loader as jobLoader } from "#app/routes/resources/jobs.ts";
+import { action as curvesAction, loader as curvesLoader } from "#app/routes/admin/curves.tsx";
 import { createTestDetermination, createTestUser } from "#tests/factories.ts";
 
 /**

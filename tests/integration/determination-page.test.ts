@@ -1,8 +1,8 @@
 import { beforeAll, describe, expect, it } from "vitest";
 import { getDb } from "#app/db/client.server.ts";
 import { publications } from "#app/db/schema.ts";
-import { loader } from "#app/routes/determination.tsx";
-import { diffRecords, type DeterminationDetail } from "#app/models/determination-page.server.ts";
+import { loader } from "#app/routes/explore/determination.tsx";
+import { diffRecords, type DeterminationDetail } from "#app/models/registry/determination-page.server.ts";
 import { createTestDetermination, createTestLab, createTestSample, createTestSite } from "#tests/factories.ts";
 import { args, get, personWithSession, run } from "#tests/support/auth.ts";
 import { insertAudit, insertCalibration, insertCheck, insertReview } from "#tests/support/pages-fixtures.ts";

@@ -1,9 +1,9 @@
 import { beforeAll, describe, expect, it } from "vitest";
 import { getDb } from "#app/db/client.server.ts";
-import { calibrateDeterminations } from "#app/models/calibrations.server.ts";
-import { createToken } from "#app/models/tokens.server.ts";
-import * as determinationsApi from "#app/routes/api/v1.determinations.ts";
-import type { ApiPage } from "#app/models/determinations-api.server.ts";
+import { calibrateDeterminations } from "#app/models/calibration/calibrations.server.ts";
+import { createToken } from "#app/models/accounts/tokens.server.ts";
+import * as determinationsApi from "#app/routes/api/v1/determinations.ts";
+import type { ApiPage } from "#app/models/registry/determinations-api.server.ts";
 import { createTestDetermination, createTestLab, createTestSample, createTestSite, createTestUser } from "#tests/factories.ts";
 import { args, ORIGIN, run } from "#tests/support/auth.ts";
 

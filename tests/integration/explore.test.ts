@@ -1,12 +1,12 @@
 import { beforeAll, describe, expect, it } from "vitest";
 import { getDb } from "#app/db/client.server.ts";
-import { loader } from "#app/routes/explore.tsx";
+import { loader } from "#app/routes/explore/explore.tsx";
 import {
   exploreDeterminations,
   parseExploreFilters,
   safeParseExploreFilters,
   type ExploreRow,
-} from "#app/models/explore.server.ts";
+} from "#app/models/registry/query.server.ts";
 import { createTestDetermination, createTestLab, createTestSample, createTestSite } from "#tests/factories.ts";
 import { args, get, personWithSession, run } from "#tests/support/auth.ts";
 import { insertCalibration } from "#tests/support/pages-fixtures.ts";
@@ -254,7 +254,7 @@ describe("Explore filters", () => {
 describe("split 95.4 % ranges", () => {
   it("says how many parts a split range has, from the stored calibration", async () => {
     const db = getDb();
-    const { calibrateDeterminations } = await import("#app/models/calibrations.server.ts");
+    const { calibrateDeterminations } = await import("#app/models/calibration/calibrations.server.ts");
     // 10250 ± 45 on IntCal20 falls on wiggles: its 95.4 % HPD is several disjoint ranges.
     const split = createTestDetermination(db, { labCode: "SPLIT-10250", c14AgeYr: 10250, c14ErrorYr: 45, curveName: "intcal20" });
     calibrateDeterminations(db, [split.id]);

@@ -1,8 +1,8 @@
 import { describe, expect, it } from "vitest";
 import { getDb } from "#app/db/client.server.ts";
 import { auditLog, calibrations, determinations, grades, materials, roles } from "#app/db/schema.ts";
-import { calibrateDeterminations } from "#app/models/calibrations.server.ts";
-import { insertDetermination } from "#app/models/determinations.server.ts";
+import { calibrateDeterminations } from "#app/models/calibration/calibrations.server.ts";
+import { insertDetermination } from "#app/models/submission/determinations.server.ts";
 import { eq } from "drizzle-orm";
 import { createTestDetermination, createTestLab, createTestSample, createTestUser } from "#tests/factories.ts";
 

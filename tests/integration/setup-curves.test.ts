@@ -3,7 +3,7 @@ import os from "node:os";
 import path from "node:path";
 import { describe, expect, it } from "vitest";
 import { migrateDatabase, openDatabase } from "#app/db/client.server.ts";
-import { CurveImportError, importBundledCurves } from "#app/models/curves.server.ts";
+import { CurveImportError, importBundledCurves } from "#app/models/calibration/curves.server.ts";
 
 const sharedCurves = process.env.CURVES_DIR ?? path.resolve(process.cwd(), "../shared/curves");
 

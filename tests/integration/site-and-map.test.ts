@@ -1,10 +1,10 @@
 import { beforeAll, describe, expect, it } from "vitest";
 import { getDb } from "#app/db/client.server.ts";
-import { loader as siteLoader } from "#app/routes/site.tsx";
-import { loader as mapLoader } from "#app/routes/map.tsx";
-import { loader as mapSitesLoader } from "#app/routes/api/map-sites.ts";
-import type { SiteDetail } from "#app/models/site-page.server.ts";
-import type { Isochrones, MapSite } from "#app/models/map.server.ts";
+import { loader as siteLoader } from "#app/routes/explore/site.tsx";
+import { loader as mapLoader } from "#app/routes/explore/map.tsx";
+import { loader as mapSitesLoader } from "#app/routes/resources/map-sites.ts";
+import type { SiteDetail } from "#app/models/registry/site-page.server.ts";
+import type { Isochrones, MapSite } from "#app/models/registry/map.server.ts";
 import { createTestDetermination, createTestLab, createTestSample, createTestSite } from "#tests/factories.ts";
 import { args, get, personWithSession, run } from "#tests/support/auth.ts";
 import { insertCalibration, insertReconstruction } from "#tests/support/pages-fixtures.ts";

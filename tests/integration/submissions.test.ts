@@ -1,9 +1,9 @@
 import { beforeAll, describe, expect, it } from "vitest";
 import { getDb } from "#app/db/client.server.ts";
-import * as submitPage from "#app/routes/submit.tsx";
-import * as editPage from "#app/routes/submission-edit.tsx";
-import * as listPage from "#app/routes/submissions.tsx";
-import * as preview from "#app/routes/api/determination-preview.ts";
+import * as submitPage from "#app/routes/contribute/submit.tsx";
+import * as editPage from "#app/routes/contribute/submission-edit.tsx";
+import * as listPage from "#app/routes/contribute/submissions.tsx";
+import * as preview from "#app/routes/resources/determination-preview.ts";
 import type { PreviewResult } from "#app/utils/submission-form.ts";
 import { createTestDetermination, createTestLab, createTestSample, createTestSite } from "#tests/factories.ts";
 import { args, get, personWithSession, post, run } from "#tests/support/auth.ts";

@@ -13,7 +13,7 @@ import {
   remapUpload,
   undoUpload,
   UploadError,
-} from "#app/models/uploads.server.ts";
+} from "#app/models/submission/uploads.server.ts";
 import { createTestDetermination, createTestUser } from "#tests/factories.ts";
 import { toCsvText, toXlsx, uploadRows, type Cells } from "#tests/support/upload-files.ts";
 

@@ -2,7 +2,7 @@
 import type { Role } from "#app/db/schema.ts";
 import { getDb } from "#app/db/client.server.ts";
 import { createSession } from "#app/auth/session.server.ts";
-import { createUser } from "#app/models/users.server.ts";
+import { createUser } from "#app/models/accounts/users.server.ts";
 
 export const ORIGIN = "http://localhost";
 

@@ -1,6 +1,6 @@
 import fs from "node:fs";
 import { migrateDatabase, openDatabase } from "#app/db/client.server.ts";
-import { importBundledCurves } from "#app/models/curves.server.ts";
+import { importBundledCurves } from "#app/models/calibration/curves.server.ts";
 
 /** A migrated database with the bundled curves, the starting point of every test database. */
 export async function buildBaseDatabase(file: string) {
