@@ -1,15 +1,11 @@
 import { scaleLinear } from "d3-scale";
 import { area } from "d3-shape";
 import { formatCalendarYear, groupThousands } from "#app/science/calendar.ts";
-import {
-  CONVERSION_FACTORS,
-  doseRate,
-  luminescenceAge,
-  luminescenceAgeToCalBp,
-  type ConversionFactorKey,
-  type DoseRateBreakdown,
-} from "#app/science/luminescence.ts";
+import { luminescenceAge, luminescenceAgeToCalBp } from "#app/science/luminescence.ts";
+import { doseRateFromFields, type DoseRateFields, type FieldsDoseRate } from "#app/science/dose-rate-fields.ts";
+import { formatWithError } from "#app/science/precision.ts";
 import { CalendarAxis, type CalendarScale } from "#app/components/calibration-plot.tsx";
+import { DoseRateBreakdown } from "#app/components/dose-rate-breakdown.tsx";
 
 /*
  * A luminescence age: De / dose rate with its error, the dose-rate breakdown recomputed from
@@ -17,55 +13,17 @@ import { CalendarAxis, type CalendarScale } from "#app/components/calibration-pl
  * ranges (68.3 % and 95.4 %) shaded in the same two ice tones as the calibration plot.
  */
 
-export type LuminescenceFields = {
+export type LuminescenceFields = DoseRateFields & {
   deGy: number | null;
   deErrorGy: number | null;
   doseRateGyPerKa: number | null;
   doseRateErrorGyPerKa: number | null;
   measurementYear: number | null;
-  kPercent?: number | null;
-  uPpm?: number | null;
-  thPpm?: number | null;
-  waterContentFraction?: number | null;
-  burialDepthM?: number | null;
-  densityGPerCm3?: number | null;
-  conversionFactors?: string | null;
 };
 
-/** Bulk density assumed for the cosmic dose rate when none was recorded (said on screen). */
-const ASSUMED_DENSITY = 2.0;
-
-export function recomputedDoseRate(f: LuminescenceFields): { breakdown: DoseRateBreakdown; notes: string[] } | null {
-  if (f.kPercent == null || f.uPpm == null || f.thPpm == null) return null;
-  const notes: string[] = [];
-  const factors: ConversionFactorKey =
-    f.conversionFactors && f.conversionFactors in CONVERSION_FACTORS
-      ? (f.conversionFactors as ConversionFactorKey)
-      : "guerin2011";
-  const density = f.densityGPerCm3 ?? ASSUMED_DENSITY;
-  if (f.densityGPerCm3 == null)
-    notes.push(`No bulk density recorded; ${ASSUMED_DENSITY} g/cm³ assumed for the cosmic dose rate.`);
-  if (f.waterContentFraction == null) notes.push("No water content recorded; computed dry.");
-  if (f.burialDepthM == null) notes.push("No burial depth recorded; the cosmic dose rate is left out.");
-  try {
-    const breakdown = doseRate({
-      k: { value: f.kPercent, error: 0 },
-      u: { value: f.uPpm, error: 0 },
-      th: { value: f.thPpm, error: 0 },
-      water: { value: f.waterContentFraction ?? 0, error: 0 },
-      factors,
-      burial: { depthM: f.burialDepthM ?? 0, density },
-      cosmicOverride: f.burialDepthM == null ? { value: 0, error: 0 } : undefined,
-    });
-    return { breakdown, notes: [...notes, ...breakdown.notes] };
-  } catch {
-    return null;
-  }
-}
-
-/** Display only: at most three decimals, trailing zeros dropped. */
-function num(x: number): string {
-  return String(Number(x.toFixed(3)));
+/** The dose rate recomputed from the stored concentrations with every error, when they were given. */
+export function recomputedDoseRate(f: LuminescenceFields): FieldsDoseRate | null {
+  return doseRateFromFields(f);
 }
 
 const W = 640;
@@ -84,16 +42,13 @@ export function LuminescenceAge({ fields, scale = "bp" }: { fields: Luminescence
   const recomputed = recomputedDoseRate(f);
   const cal = f.measurementYear != null ? luminescenceAgeToCalBp(age.ageKa, age.errorKa, f.measurementYear) : null;
   const fmt = (calBp: number) => (scale === "bcad" ? formatCalendarYear(calBp) : `${groupThousands(Math.round(calBp))} cal BP`);
-  const digits = age.ageKa < 10 ? 2 : 1;
 
   return (
     <div className="space-y-4">
       <p>
-        <span className="text-lg font-semibold">
-          {age.ageKa.toFixed(digits)} ± {age.errorKa.toFixed(digits)} ka
-        </span>{" "}
+        <span className="text-lg font-semibold">{formatWithError(age.ageKa, age.errorKa, "ka")}</span>{" "}
         <span className="text-muted">
-          = {num(f.deGy)} ± {num(f.deErrorGy ?? 0)} Gy ÷ {num(f.doseRateGyPerKa)} ± {num(f.doseRateErrorGyPerKa ?? 0)} Gy/ka
+          = {formatWithError(f.deGy, f.deErrorGy, "Gy")} ÷ {formatWithError(f.doseRateGyPerKa, f.doseRateErrorGyPerKa, "Gy/ka")}
           (relative errors in quadrature, {(age.relativeError * 100).toFixed(1)} %)
         </span>
       </p>
@@ -112,62 +67,27 @@ export function LuminescenceAge({ fields, scale = "bp" }: { fields: Luminescence
           </li>
         </ul>
       ) : null}
-      {recomputed ? <DoseRateTable result={recomputed} stored={f.doseRateGyPerKa} /> : null}
+      {recomputed ? <RecomputedDoseRate recomputed={recomputed} stored={f.doseRateGyPerKa} /> : null}
     </div>
   );
 }
 
-function DoseRateTable({ result, stored }: { result: { breakdown: DoseRateBreakdown; notes: string[] }; stored: number }) {
-  const b = result.breakdown;
-  const rows: [string, number][] = [
-    ["Beta", b.beta],
-    ["Gamma", b.gamma],
-    ["Alpha", b.alpha],
-    ["Cosmic", b.cosmic],
-    ["Internal", b.internal],
-  ];
+function RecomputedDoseRate({ recomputed, stored }: { recomputed: FieldsDoseRate; stored: number }) {
+  if (!recomputed.ok) {
+    return <p className="text-sm text-muted">The dose rate cannot be recomputed from the concentrations: {recomputed.message}</p>;
+  }
+  const r = recomputed.result;
+  const differs = Math.abs(r.total - stored) > 0.0005 * stored;
   return (
-    <div>
-      <table className="data-table max-w-md">
-        <caption className="mb-1 text-left text-sm font-semibold text-muted">
-          Dose rate recomputed from K, U and Th ({CONVERSION_FACTORS[b.factors].citation})
-        </caption>
-        <thead>
-          <tr>
-            <th scope="col">Component</th>
-            <th scope="col" className="text-right">
-              Gy/ka
-            </th>
-          </tr>
-        </thead>
-        <tbody>
-          {rows.map(([name, v]) => (
-            <tr key={name}>
-              <td>{name}</td>
-              <td className="text-right">{v.toFixed(3)}</td>
-            </tr>
-          ))}
-          <tr>
-            <th scope="row" className="text-left">
-              Total (recomputed)
-            </th>
-            <td className="text-right font-semibold">{b.total.toFixed(3)}</td>
-          </tr>
-          <tr>
-            <td>Total as submitted</td>
-            <td className="text-right">{stored.toFixed(3)}</td>
-          </tr>
-        </tbody>
-      </table>
-      {result.notes.length ? (
-        <ul className="mt-2 list-disc pl-5 text-sm text-muted">
-          {result.notes.map((n) => (
-            <li key={n}>{n}</li>
-          ))}
-        </ul>
+    <section aria-labelledby="dose-rate-heading" className="space-y-2">
+      <h2 id="dose-rate-heading" className="text-base font-semibold">
+        Dose rate from the concentrations
+      </h2>
+      {differs ? (
+        <p className="text-sm text-muted">The stored dose rate ({stored.toFixed(3)} Gy/ka) differs from this recomputation.</p>
       ) : null}
-      <p className="mt-1 text-sm text-muted">Recomputed without the concentrations' errors, which are not recorded.</p>
-    </div>
+      <DoseRateBreakdown result={r} assumedFields={recomputed.assumedFields} />
+    </section>
   );
 }
 
