@@ -1,13 +1,20 @@
-import { and, desc, eq, isNull, or, sql } from "drizzle-orm";
+import { desc, eq } from "drizzle-orm";
 import type { Db } from "#app/db/client.server.ts";
-import { determinations, jobs } from "#app/db/schema.ts";
-import { audit } from "#app/models/audit.server.ts";
-import { calibrateDeterminations } from "#app/models/calibration/calibrations.server.ts";
+import { jobs } from "#app/db/schema.ts";
+import { handlerFor, type JobKind } from "#app/models/job-handlers.server.ts";
 
 /*
- * Background work inside the server process. A job is a row in `jobs` (the page polls it) and a
- * promise here; the work runs in chunks with setImmediate between them, so the server keeps
- * answering requests while thousands of determinations are recalibrated.
+ * The one background-job runner. A job is a row in `jobs` (pages poll it through /api/jobs/:id and
+ * show it with components/ui/job-progress.tsx) and a promise in this process.
+ *
+ *   const { jobId } = startJob(db, { kind: "recalibrate", total: ids.length, params: { ids }, actorId });
+ *
+ * The handler for each kind is registered in models/job-handlers.server.ts and receives a
+ * JobContext: `ctx.inChunks(items, size, fn)` runs `fn` over the items a chunk at a time, yields to
+ * the event loop between chunks (so the server keeps answering) and records progress after each;
+ * `ctx.report(done)` records progress for work that is not a list. The handler returns the closing
+ * message; a throw marks the job failed with the error's message. Params must be plain JSON, and the
+ * handler is found by kind, so the work can later move to a worker thread without changing callers.
  */
 
 export type JobRow = typeof jobs.$inferSelect;
@@ -17,95 +24,78 @@ export type JobView = Pick<JobRow, "id" | "kind" | "status" | "progress" | "tota
   finishedAt: number | null;
 };
 
-/** Determinations per chunk: small enough that one chunk blocks the event loop for only a moment. */
-export const RECALIBRATION_CHUNK = 250;
+export type JobContext<P> = {
+  db: Db;
+  jobId: number;
+  params: P;
+  actorId: number | null;
+  total: number;
+  /** Records how many of `total` are done (and optionally a message shown while running). */
+  report(done: number, message?: string): void;
+  /** Runs `fn` over `items` in chunks of `size`, yielding between chunks and reporting progress after each. */
+  inChunks<T>(items: readonly T[], size: number, fn: (chunk: T[]) => void): Promise<void>;
+};
+
+/** Does the work of one kind of job; returns the message shown when it is done. */
+export type JobHandler<P> = (ctx: JobContext<P>) => Promise<string> | string;
+
+export type JobSpec<P extends Record<string, unknown>> = { kind: JobKind; total: number; params: P; actorId: number | null };
 
 const running = new Map<number, Promise<void>>();
-
 const nextTick = () => new Promise<void>((resolve) => setImmediate(resolve));
 
-/**
- * Radiocarbon determinations calibrated on the named curve. A determination without a curve name
- * is calibrated on intcal20, so it counts for intcal20.
- */
-export function determinationsOnCurve(db: Db, curveName: string): number[] {
-  const name = curveName.toLowerCase();
-  const onCurve = sql`lower(${determinations.curveName}) = ${name}`;
-  return db
-    .select({ id: determinations.id })
-    .from(determinations)
-    .where(
-      and(
-        eq(determinations.method, "radiocarbon"),
-        name === "intcal20" ? or(onCurve, isNull(determinations.curveName)) : onCurve,
-      ),
-    )
-    .orderBy(determinations.id)
-    .all()
-    .map((r) => r.id);
-}
-
-/**
- * Starts recalibrating every determination on a curve name (after a new version was added or a
- * version activated). Returns at once with the job id; the work continues in the background.
- */
-export function startRecalibration(
+/** Records a job and starts it in the background; returns at once with its id. */
+export function startJob<P extends Record<string, unknown>>(
   db: Db,
-  options: { curveName: string; actorId: number | null; reason: string; chunkSize?: number },
+  spec: JobSpec<P>,
+  handler: JobHandler<P> = handlerFor(spec.kind) as JobHandler<P>,
 ): { jobId: number; total: number } {
-  const ids = determinationsOnCurve(db, options.curveName);
   const job = db
     .insert(jobs)
-    .values({
-      kind: "recalibrate",
-      status: "queued",
-      progress: 0,
-      total: ids.length,
-      params: { curveName: options.curveName.toLowerCase(), reason: options.reason },
-      createdBy: options.actorId,
-    })
+    .values({ kind: spec.kind, status: "queued", progress: 0, total: spec.total, params: spec.params, createdBy: spec.actorId })
     .returning({ id: jobs.id })
     .get();
-  const promise = runRecalibration(db, job.id, ids, options.actorId, options.chunkSize ?? RECALIBRATION_CHUNK);
+  const promise = run(db, job.id, spec, handler);
   running.set(job.id, promise);
   void promise.finally(() => running.delete(job.id));
-  return { jobId: job.id, total: ids.length };
+  return { jobId: job.id, total: spec.total };
 }
 
-async function runRecalibration(db: Db, jobId: number, ids: number[], actorId: number | null, chunkSize: number) {
-  let calibrated = 0;
-  let failed = 0;
+async function run<P extends Record<string, unknown>>(db: Db, jobId: number, spec: JobSpec<P>, handler: JobHandler<P>) {
+  let done = 0;
+  const report = (n: number, message?: string) => {
+    done = n;
+    db.update(jobs)
+      .set({ progress: n, ...(message === undefined ? {} : { message }) })
+      .where(eq(jobs.id, jobId))
+      .run();
+  };
+  const ctx: JobContext<P> = {
+    db,
+    jobId,
+    params: spec.params,
+    actorId: spec.actorId,
+    total: spec.total,
+    report,
+    async inChunks(items, size, fn) {
+      for (let i = 0; i < items.length; i += size) {
+        fn(items.slice(i, i + size));
+        report(Math.min(i + size, items.length));
+        await nextTick();
+      }
+    },
+  };
   try {
     // Let the request that started the job finish before any work is done.
     await nextTick();
     db.update(jobs).set({ status: "running" }).where(eq(jobs.id, jobId)).run();
-    for (let i = 0; i < ids.length; i += chunkSize) {
-      const chunk = ids.slice(i, i + chunkSize);
-      const done = Math.min(i + chunkSize, ids.length);
-      db.$client.transaction(() => {
-        const r = calibrateDeterminations(db, chunk);
-        calibrated += r.calibrated;
-        failed += r.failed;
-        db.update(jobs).set({ progress: done }).where(eq(jobs.id, jobId)).run();
-      })();
-      await nextTick();
-    }
-    const message = `${calibrated} calibrated${failed ? `, ${failed} could not be calibrated (see each determination)` : ""}.`;
-    db.transaction((tx) => {
-      tx.update(jobs)
-        .set({ status: "done", progress: ids.length, message, finishedAt: new Date() })
-        .where(eq(jobs.id, jobId))
-        .run();
-      audit(tx, {
-        actorId,
-        action: "calibration.recalibrate",
-        entity: "job",
-        entityId: jobId,
-        after: { determinations: ids.length, calibrated, failed },
-      });
-    });
+    const message = await handler(ctx);
+    db.update(jobs)
+      .set({ status: "done", progress: spec.total, message, finishedAt: new Date() })
+      .where(eq(jobs.id, jobId))
+      .run();
   } catch (error) {
-    const message = `Stopped after ${calibrated + failed} of ${ids.length}: ${error instanceof Error ? error.message : String(error)}`;
+    const message = `Stopped after ${done} of ${spec.total}: ${error instanceof Error ? error.message : String(error)}`;
     console.error(`Job ${jobId} failed`, error);
     try {
       db.update(jobs).set({ status: "failed", message, finishedAt: new Date() }).where(eq(jobs.id, jobId)).run();
@@ -142,7 +132,7 @@ export function getJob(db: Db, id: number): JobView | null {
   const row = db.select().from(jobs).where(eq(jobs.id, id)).get();
   if (!row) return null;
   if ((row.status === "queued" || row.status === "running") && !running.has(id)) {
-    const message = `Interrupted by a server restart after ${row.progress} of ${row.total}; activate the curve version again to finish.`;
+    const message = `Interrupted by a server restart after ${row.progress} of ${row.total}; start it again to finish.`;
     db.update(jobs).set({ status: "failed", message, finishedAt: new Date() }).where(eq(jobs.id, id)).run();
     return view({ ...row, status: "failed", message, finishedAt: new Date() });
   }

@@ -1,5 +1,4 @@
-import { useEffect } from "react";
-import { data, Form, useFetcher, useNavigation, useRevalidator } from "react-router";
+import { data, Form, useNavigation } from "react-router";
 import { getFormProps, getInputProps, getSelectProps, getTextareaProps, useForm, type SubmissionResult } from "@conform-to/react";
 import { getZodConstraint, parseWithZod } from "@conform-to/zod/v4";
 import { z } from "zod";
@@ -9,7 +8,9 @@ import { ErrorView } from "#app/components/error-view.tsx";
 import { getDb } from "#app/db/client.server.ts";
 import { activateCurveVersion, addCurveVersion } from "#app/models/calibration/curve-versions.server.ts";
 import { CurveImportError, listCurves } from "#app/models/calibration/curves.server.ts";
-import { recentJobs, startRecalibration, type JobView } from "#app/models/jobs.server.ts";
+import { recentJobs } from "#app/models/jobs.server.ts";
+import { JobProgress } from "#app/components/ui/job-progress.tsx";
+import { startRecalibration } from "#app/models/calibration/recalibration.server.ts";
 import { groupThousands } from "#app/science/calendar.ts";
 import { DEFAULT_MAX_STEP } from "#app/science/curve.ts";
 import { env } from "#app/utils/env.server.ts";
@@ -223,7 +224,7 @@ export default function CurvesPage({ loaderData, actionData }: Route.ComponentPr
           <ul className="space-y-3">
             {jobs.map((job) => (
               <li key={job.id}>
-                <JobProgress job={job} />
+                <JobProgress job={job} unit="determinations" />
               </li>
             ))}
           </ul>
@@ -402,59 +403,6 @@ function Field({
             <li key={e}>{e}</li>
           ))}
         </ul>
-      ) : null}
-    </div>
-  );
-}
-
-/** A recalibration's progress; polls /api/jobs/:id while it runs and reloads the page when it ends. */
-function JobProgress({ job }: { job: JobView }) {
-  const fetcher = useFetcher<JobView>();
-  const revalidator = useRevalidator();
-  const current = fetcher.data && fetcher.data.id === job.id ? fetcher.data : job;
-  const finished = current.status === "done" || current.status === "failed";
-  useEffect(() => {
-    if (finished) return;
-    const timer = setInterval(() => {
-      if (fetcher.state === "idle") void fetcher.load(`/api/jobs/${job.id}`);
-    }, 1000);
-    return () => clearInterval(timer);
-    // eslint-disable-next-line react-hooks/exhaustive-deps
-  }, [finished, job.id]);
-  useEffect(() => {
-    if (
-      fetcher.data?.id === job.id &&
-      (fetcher.data.status === "done" || fetcher.data.status === "failed") &&
-      job.status !== fetcher.data.status
-    ) {
-      void revalidator.revalidate();
-    }
-    // eslint-disable-next-line react-hooks/exhaustive-deps
-  }, [fetcher.data?.status]);
-  const reason = typeof current.params?.reason === "string" ? current.params.reason : current.kind;
-  const pct = current.total ? Math.round((current.progress / current.total) * 100) : 100;
-  return (
-    <div className="card space-y-2" data-testid={`job-${job.id}`}>
-      <div className="flex flex-wrap items-baseline justify-between gap-2">
-        <span className="font-semibold">{reason}</span>
-        <span className="text-sm text-muted" role="status" aria-live="polite">
-          {current.status === "done"
-            ? `Done: ${current.message ?? ""}`
-            : current.status === "failed"
-              ? `Failed: ${current.message ?? ""}`
-              : `${groupThousands(current.progress)} of ${groupThousands(current.total)} determinations (${pct} %)`}
-        </span>
-      </div>
-      <progress
-        className="h-2 w-full accent-ice-600"
-        max={Math.max(current.total, 1)}
-        value={current.status === "done" ? Math.max(current.total, 1) : current.progress}
-        aria-label={`Recalibration progress: ${pct} %`}
-      />
-      {!finished ? (
-        <noscript>
-          <p className="text-sm text-muted">Reload the page to see how far it has got.</p>
-        </noscript>
       ) : null}
     </div>
   );
