@@ -278,6 +278,12 @@ for (const [kind, file] of [
   report(`upload ${kind}`, "end to end", `${(b.totalMs / 1000).toFixed(2)} s`, kind === "xlsx" ? "≤ 5 s" : undefined);
 }
 
+// ---------------------------------------------------------------- load (its own table)
+console.log("Load: 50 connections × 20 s per target, idle and during 5,000-row commits…");
+db.$client.pragma("wal_checkpoint(TRUNCATE)");
+const { runLoadBench, loadTable } = await import("./load.ts");
+const loadRows = await runLoadBench({ dbFile });
+
 // ---------------------------------------------------------------- table
 const w1 = Math.max(...table.map((r) => r.area.length));
 const w2 = Math.max(...table.map((r) => r.measure.length));
@@ -288,3 +294,4 @@ console.log(`|${"-".repeat(w1 + 2)}|${"-".repeat(w2 + 2)}|${"-".repeat(w3 + 2)}|
 for (const r of table)
   console.log(`| ${r.area.padEnd(w1)} | ${r.measure.padEnd(w2)} | ${r.value.padStart(w3)} | ${r.goal ?? ""} |`);
 db.$client.close();
+console.log(`\n${loadTable(loadRows)}`);

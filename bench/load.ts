@@ -1,0 +1,248 @@
+// The load section of `npm run bench`: the production server under bounded traffic on 127.0.0.1
+// (autocannon, 50 connections for 20 s per target), then the same while 5,000-row uploads are
+// committed back to back in the background. Standalone: `tsx bench/load.ts [--db file] [--port n]
+// [--seconds n]` against an existing database (set up and seeded); `bench/run.ts` calls it on its own.
+import { spawn, spawnSync, type ChildProcess } from "node:child_process";
+import fs from "node:fs";
+import net from "node:net";
+import path from "node:path";
+import autocannon from "autocannon";
+
+export type LoadRow = {
+  target: string;
+  background: string;
+  reqPerSec: number;
+  p50: number;
+  p95: number;
+  p99: number;
+  errors: number;
+  non2xx: number;
+  kbPerAnswer: number;
+};
+
+type Target = { name: string; path: string; headers: Record<string, string> };
+type Options = { dbFile: string; port?: number; seconds?: number; connections?: number };
+
+async function freePort(): Promise<number> {
+  return new Promise((resolve) => {
+    const srv = net.createServer();
+    srv.listen(0, "127.0.0.1", () => {
+      const { port } = srv.address() as net.AddressInfo;
+      srv.close(() => resolve(port));
+    });
+  });
+}
+
+function startServer(port: number, dbFile: string, log: string[]): ChildProcess {
+  const child = spawn(process.execPath, ["server.js"], {
+    env: {
+      ...process.env,
+      NODE_ENV: "production",
+      PORT: String(port),
+      HOST: "127.0.0.1",
+      DATABASE_URL: dbFile,
+      SECURE_COOKIES: "false",
+      RESEND_API_KEY: "re_fake_bench",
+      APP_URL: `http://127.0.0.1:${port}`,
+    },
+    stdio: ["ignore", "pipe", "pipe"],
+  });
+  const keep = (d: Buffer) => {
+    log.push(d.toString());
+    if (log.length > 200) log.splice(0, log.length - 200);
+  };
+  child.stdout!.on("data", keep);
+  child.stderr!.on("data", keep);
+  return child;
+}
+
+async function waitUp(base: string) {
+  for (let i = 0; i < 600; i++) {
+    try {
+      if ((await fetch(base)).ok) return;
+    } catch {
+      // not listening yet
+    }
+    await new Promise((r) => setTimeout(r, 100));
+  }
+  throw new Error(`The server at ${base} did not come up`);
+}
+
+/** A 5,000-row CSV of plausible radiocarbon rows, unique per call so commits never collide. */
+function commitSheet(tag: string, labPrefix: string, labName: string): string {
+  const headers = ["site_name", "latitude", "longitude", "sample_code", "material", "method", "lab_code", "lab_name",
+    "c14_age", "c14_error", "curve", "delta_r", "delta_r_error", "delta_r_curve", "constraint_kind"];
+  const rows = Array.from({ length: 5000 }, (_, i) => {
+    const marine = i % 3 === 0;
+    return [`Load Cove ${tag} ${i % 300}`, 57 + (i % 300) / 150, -64 - (i % 97) / 50, `LD-${tag}-${i}`,
+      marine ? "marine shell" : "plant macrofossil", "radiocarbon", `${labPrefix}-L${tag}${i}`, labName,
+      8000 + (i % 3000), 30 + (i % 50), marine ? "marine20" : "intcal20", marine ? 50 : "", marine ? 40 : "",
+      marine ? "marine20" : "", "minimum"].join(",");
+  });
+  return [headers.join(","), ...rows].join("\n");
+}
+
+/** Uploads and commits 5,000-row sheets one after another until told to stop. */
+function backgroundCommits(base: string, token: string, lab: { prefix: string; name: string }) {
+  let stop = false;
+  const done: { ms: number; ok: boolean; status: number }[] = [];
+  let n = 0;
+  const loop = (async () => {
+    while (!stop) {
+      const tag = `${Date.now().toString(36)}${n++}`;
+      const form = new FormData();
+      form.set("file", new Blob([commitSheet(tag, lab.prefix, lab.name)], { type: "text/csv" }), `load-${tag}.csv`);
+      const auth = { Authorization: `Bearer ${token}` };
+      const up = await fetch(`${base}/api/v1/uploads`, { method: "POST", headers: auth, body: form });
+      const upBody = (await up.json()) as { upload_id?: string };
+      if (!up.ok || !upBody.upload_id) {
+        done.push({ ms: 0, ok: false, status: up.status });
+        break;
+      }
+      const start = performance.now();
+      const res = await fetch(`${base}/api/v1/uploads/${upBody.upload_id}/commit`, {
+        method: "POST",
+        headers: { ...auth, "Content-Type": "application/json" },
+        body: JSON.stringify({ mode: "valid_only" }),
+      });
+      const body = (await res.json()) as { job?: string };
+      // A commit answered 202 runs as a job; wait for it to finish so the next one starts after it.
+      if (res.status === 202 && body.job) {
+        for (;;) {
+          const j = await fetch(`${base}${body.job}`, { headers: auth });
+          const state = (await j.json()) as { state?: string };
+          if (state.state === "done" || state.state === "failed") break;
+          await new Promise((r) => setTimeout(r, 200));
+        }
+      }
+      done.push({ ms: performance.now() - start, ok: res.ok, status: res.status });
+    }
+  })();
+  return {
+    async stop() {
+      stop = true;
+      await loop;
+      return done;
+    },
+  };
+}
+
+const percentile = (sorted: number[], p: number) =>
+  sorted.length ? sorted[Math.min(sorted.length - 1, Math.ceil((p / 100) * sorted.length) - 1)]! : NaN;
+
+async function hit(base: string, t: Target, seconds: number, connections: number) {
+  const times: number[] = [];
+  const instance = autocannon({
+    url: `${base}${t.path}`,
+    connections,
+    duration: seconds,
+    headers: { "Accept-Encoding": "gzip, br", ...t.headers },
+  }) as unknown as Promise<autocannon.Result> & { on: (event: "response", fn: (...args: never[]) => void) => void };
+  instance.on("response", (_client: unknown, _status: number, _bytes: number, ms: number) => times.push(ms));
+  const result = await instance;
+  times.sort((a, b) => a - b);
+  const round = (x: number) => Math.round(x);
+  return {
+    reqPerSec: result.requests.total / seconds,
+    p50: round(percentile(times, 50)),
+    p95: round(percentile(times, 95)),
+    p99: round(percentile(times, 99)),
+    errors: result.errors + result.timeouts,
+    non2xx: result.non2xx,
+    kbPerAnswer: result.requests.total ? result.throughput.total / result.requests.total / 1024 : 0,
+  };
+}
+
+async function credentials(dbFile: string) {
+  process.env.DATABASE_URL = dbFile;
+  const { getDb } = await import("#app/db/client.server.ts");
+  const { createSession } = await import("#app/auth/session.server.ts");
+  const { createToken } = await import("#app/models/tokens.server.ts");
+  const db = getDb();
+  const idOf = (email: string) =>
+    (db.$client.prepare("select id from users where email = ?").get(email) as { id: number } | undefined)?.id;
+  const modeller = idOf("modeller@example.org");
+  const contributor = idOf("contributor@example.org");
+  if (!modeller || !contributor) throw new Error(`${dbFile} has no demo people: seed it first`);
+  const session = await createSession(modeller, new Request("http://bench.local/"));
+  const modellerToken = createToken(db, modeller, "load bench", { actorId: modeller }).token;
+  const contributorToken = createToken(db, contributor, "load bench uploads", { actorId: contributor }).token;
+  const lab = db.$client.prepare("select name, code_prefix as prefix from labs limit 1").get() as { name: string; prefix: string };
+  db.$client.pragma("wal_checkpoint(TRUNCATE)");
+  return { cookie: session.cookie.split(";")[0]!, modellerToken, contributorToken, lab };
+}
+
+export async function runLoadBench(options: Options): Promise<LoadRow[]> {
+  const seconds = options.seconds ?? 20;
+  const connections = options.connections ?? 50;
+  if (!fs.existsSync("build/server/index.js")) {
+    spawnSync(path.resolve("node_modules/.bin/react-router"), ["build"], { stdio: "inherit" });
+  }
+  const creds = await credentials(options.dbFile);
+  const port = options.port ?? (await freePort());
+  const base = `http://127.0.0.1:${port}`;
+  const targets: Target[] = [
+    { name: "Explore page (signed in)", path: "/explore", headers: { Cookie: creds.cookie } },
+    { name: "map data /api/map-sites", path: "/api/map-sites", headers: { Cookie: creds.cookie } },
+    { name: "GET /api/v1/determinations", path: "/api/v1/determinations", headers: { Authorization: `Bearer ${creds.modellerToken}` } },
+  ];
+  const rows: LoadRow[] = [];
+  // Each measurement starts a server on a fresh copy of the database, so the commits of one
+  // measurement do not grow the registry the next one reads.
+  const work = path.join(path.dirname(options.dbFile), "load-work.db");
+  for (const withCommits of [false, true]) {
+    for (const t of targets) {
+      for (const suffix of ["", "-wal", "-shm"]) fs.rmSync(work + suffix, { force: true });
+      fs.copyFileSync(options.dbFile, work);
+      const log: string[] = [];
+      const server = startServer(port, work, log);
+      try {
+        await waitUp(base);
+        await hit(base, t, 2, 4); // warm caches and compiled paths
+        console.log(`  load: ${t.name}, ${connections} connections × ${seconds} s${withCommits ? " during 5,000-row commits" : ""}…`);
+        if (!withCommits) {
+          rows.push({ target: t.name, background: "idle", ...(await hit(base, t, seconds, connections)) });
+          continue;
+        }
+        const bg = backgroundCommits(base, creds.contributorToken, creds.lab);
+        const r = await hit(base, t, seconds, connections);
+        const commits = await bg.stop();
+        const ok = commits.filter((c) => c.ok);
+        const failed = commits.length - ok.length;
+        const longest = ok.length ? `, longest ${(Math.max(...ok.map((c) => c.ms)) / 1000).toFixed(1)} s` : "";
+        const label = `${ok.length} commit(s) of 5,000 rows${longest}${failed ? `, ${failed} failed (${commits.find((c) => !c.ok)?.status})` : ""}`;
+        rows.push({ target: t.name, background: label, ...r });
+      } finally {
+        server.kill("SIGTERM");
+        await new Promise((resolve) => server.once("exit", resolve));
+        if (process.env.BENCH_SHOW_SERVER_LOG) console.log(log.join(""));
+      }
+    }
+  }
+  for (const suffix of ["", "-wal", "-shm"]) fs.rmSync(work + suffix, { force: true });
+  return rows;
+}
+
+export function loadTable(rows: LoadRow[]): string {
+  const head = "| target | background | req/s | p50 ms | p95 ms | p99 ms | errors | non-2xx | KB/answer |";
+  const line = "|---|---|---:|---:|---:|---:|---:|---:|---:|";
+  const body = rows.map((r) =>
+    `| ${r.target} | ${r.background} | ${r.reqPerSec.toFixed(0)} | ${r.p50} | ${r.p95} | ${r.p99} | ${r.errors} | ${r.non2xx} | ${r.kbPerAnswer.toFixed(1)} |`,
+  );
+  return [head, line, ...body].join("\n");
+}
+
+if (import.meta.url === `file://${process.argv[1]}`) {
+  const arg = (name: string) => {
+    const i = process.argv.indexOf(`--${name}`);
+    return i > 0 ? process.argv[i + 1] : undefined;
+  };
+  const rows = await runLoadBench({
+    dbFile: path.resolve(arg("db") ?? process.env.DATABASE_URL ?? "tmp/bench/bench.db"),
+    port: arg("port") ? Number(arg("port")) : undefined,
+    seconds: arg("seconds") ? Number(arg("seconds")) : undefined,
+  });
+  console.log(`\nThawline load — ${new Date().toISOString()} — Node ${process.version}\n`);
+  console.log(loadTable(rows));
+  process.exit(0);
+}
