@@ -18,6 +18,7 @@ import { ErrorView } from "#app/components/error-view.tsx";
 import { getOptionalUser } from "#app/auth/session.server.ts";
 import { readFlash } from "#app/utils/flash.server.ts";
 import { navigationFor } from "#app/utils/navigation.ts";
+import { useNonce } from "#app/utils/nonce.ts";
 
 export const meta: Route.MetaFunction = () => [
   { title: "Thawline — a registry of ice-free dates" },
@@ -35,6 +36,7 @@ export async function loader({ request }: Route.LoaderArgs) {
 }
 
 export function Layout({ children }: { children: React.ReactNode }) {
+  const nonce = useNonce();
   return (
     <html lang="en">
       <head>
@@ -46,8 +48,8 @@ export function Layout({ children }: { children: React.ReactNode }) {
       </head>
       <body>
         {children}
-        <ScrollRestoration />
-        <Scripts />
+        <ScrollRestoration nonce={nonce} />
+        <Scripts nonce={nonce} />
       </body>
     </html>
   );

@@ -70,14 +70,42 @@ async function waitUp(base: string) {
 
 /** A 5,000-row CSV of plausible radiocarbon rows, unique per call so commits never collide. */
 function commitSheet(tag: string, labPrefix: string, labName: string): string {
-  const headers = ["site_name", "latitude", "longitude", "sample_code", "material", "method", "lab_code", "lab_name",
-    "c14_age", "c14_error", "curve", "delta_r", "delta_r_error", "delta_r_curve", "constraint_kind"];
+  const headers = [
+    "site_name",
+    "latitude",
+    "longitude",
+    "sample_code",
+    "material",
+    "method",
+    "lab_code",
+    "lab_name",
+    "c14_age",
+    "c14_error",
+    "curve",
+    "delta_r",
+    "delta_r_error",
+    "delta_r_curve",
+    "constraint_kind",
+  ];
   const rows = Array.from({ length: 5000 }, (_, i) => {
     const marine = i % 3 === 0;
-    return [`Load Cove ${tag} ${i % 300}`, 57 + (i % 300) / 150, -64 - (i % 97) / 50, `LD-${tag}-${i}`,
-      marine ? "marine shell" : "plant macrofossil", "radiocarbon", `${labPrefix}-L${tag}${i}`, labName,
-      8000 + (i % 3000), 30 + (i % 50), marine ? "marine20" : "intcal20", marine ? 50 : "", marine ? 40 : "",
-      marine ? "marine20" : "", "minimum"].join(",");
+    return [
+      `Load Cove ${tag} ${i % 300}`,
+      57 + (i % 300) / 150,
+      -64 - (i % 97) / 50,
+      `LD-${tag}-${i}`,
+      marine ? "marine shell" : "plant macrofossil",
+      "radiocarbon",
+      `${labPrefix}-L${tag}${i}`,
+      labName,
+      8000 + (i % 3000),
+      30 + (i % 50),
+      marine ? "marine20" : "intcal20",
+      marine ? 50 : "",
+      marine ? 40 : "",
+      marine ? "marine20" : "",
+      "minimum",
+    ].join(",");
   });
   return [headers.join(","), ...rows].join("\n");
 }
@@ -157,7 +185,7 @@ async function credentials(dbFile: string) {
   process.env.DATABASE_URL = dbFile;
   const { getDb } = await import("#app/db/client.server.ts");
   const { createSession } = await import("#app/auth/session.server.ts");
-  const { createToken } = await import("#app/models/tokens.server.ts");
+  const { createToken } = await import("#app/models/accounts/tokens.server.ts");
   const db = getDb();
   const idOf = (email: string) =>
     (db.$client.prepare("select id from users where email = ?").get(email) as { id: number } | undefined)?.id;
@@ -167,7 +195,10 @@ async function credentials(dbFile: string) {
   const session = await createSession(modeller, new Request("http://bench.local/"));
   const modellerToken = createToken(db, modeller, "load bench", { actorId: modeller }).token;
   const contributorToken = createToken(db, contributor, "load bench uploads", { actorId: contributor }).token;
-  const lab = db.$client.prepare("select name, code_prefix as prefix from labs limit 1").get() as { name: string; prefix: string };
+  const lab = db.$client.prepare("select name, code_prefix as prefix from labs limit 1").get() as {
+    name: string;
+    prefix: string;
+  };
   db.$client.pragma("wal_checkpoint(TRUNCATE)");
   return { cookie: session.cookie.split(";")[0]!, modellerToken, contributorToken, lab };
 }
@@ -184,7 +215,11 @@ export async function runLoadBench(options: Options): Promise<LoadRow[]> {
   const targets: Target[] = [
     { name: "Explore page (signed in)", path: "/explore", headers: { Cookie: creds.cookie } },
     { name: "map data /api/map-sites", path: "/api/map-sites", headers: { Cookie: creds.cookie } },
-    { name: "GET /api/v1/determinations", path: "/api/v1/determinations", headers: { Authorization: `Bearer ${creds.modellerToken}` } },
+    {
+      name: "GET /api/v1/determinations",
+      path: "/api/v1/determinations",
+      headers: { Authorization: `Bearer ${creds.modellerToken}` },
+    },
   ];
   const rows: LoadRow[] = [];
   // Each measurement starts a server on a fresh copy of the database, so the commits of one
@@ -199,7 +234,9 @@ export async function runLoadBench(options: Options): Promise<LoadRow[]> {
       try {
         await waitUp(base);
         await hit(base, t, 2, 4); // warm caches and compiled paths
-        console.log(`  load: ${t.name}, ${connections} connections × ${seconds} s${withCommits ? " during 5,000-row commits" : ""}…`);
+        console.log(
+          `  load: ${t.name}, ${connections} connections × ${seconds} s${withCommits ? " during 5,000-row commits" : ""}…`,
+        );
         if (!withCommits) {
           rows.push({ target: t.name, background: "idle", ...(await hit(base, t, seconds, connections)) });
           continue;
@@ -226,8 +263,9 @@ export async function runLoadBench(options: Options): Promise<LoadRow[]> {
 export function loadTable(rows: LoadRow[]): string {
   const head = "| target | background | req/s | p50 ms | p95 ms | p99 ms | errors | non-2xx | KB/answer |";
   const line = "|---|---|---:|---:|---:|---:|---:|---:|---:|";
-  const body = rows.map((r) =>
-    `| ${r.target} | ${r.background} | ${r.reqPerSec.toFixed(0)} | ${r.p50} | ${r.p95} | ${r.p99} | ${r.errors} | ${r.non2xx} | ${r.kbPerAnswer.toFixed(1)} |`,
+  const body = rows.map(
+    (r) =>
+      `| ${r.target} | ${r.background} | ${r.reqPerSec.toFixed(0)} | ${r.p50} | ${r.p95} | ${r.p99} | ${r.errors} | ${r.non2xx} | ${r.kbPerAnswer.toFixed(1)} |`,
   );
   return [head, line, ...body].join("\n");
 }

@@ -13,6 +13,7 @@ const env = {
   APP_URL: appUrl,
   DATABASE_URL: process.env.DATABASE_URL ?? "data/thawline.db",
   RESEND_API_KEY: process.env.RESEND_API_KEY ?? "re_fake_demo",
+  DEV_OUTBOX: process.env.DEV_OUTBOX ?? "true",
   RESEND_BASE_URL: process.env.RESEND_BASE_URL ?? `http://127.0.0.1:${mailPort}`,
   MAIL_FAKE_PORT: mailPort,
   MAIL_OUTBOX_DIR: process.env.MAIL_OUTBOX_DIR ?? "data/outbox",

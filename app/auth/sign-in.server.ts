@@ -124,10 +124,24 @@ function publicLink(link: string): string {
   return url.toString();
 }
 
-/** Only same-site paths; never back into the sign-in pages themselves. */
+/**
+ * A path on this site made only of the characters a URL may carry unescaped (RFC 3986), so it can
+ * go into a Location header as it is. Anything else (a tab, a newline, a non-Latin letter, a
+ * scheme, "//host", a backslash) is not a usable destination.
+ */
+const SAME_SITE_PATH = /^\/(?![/\\])[A-Za-z0-9\-._~!$&'()*+,;=:@/?#%]*$/;
+
+/** Only same-site paths; never back into the sign-in pages themselves. Anything else gives the fallback. */
 export function safeRedirect(to: unknown, fallback = "/"): string {
-  if (typeof to !== "string" || !to.startsWith("/") || to.startsWith("//") || to.startsWith("/\\")) return fallback;
-  if (to.startsWith(SIGN_IN_PATH) || to.startsWith("/sign-out")) return fallback;
+  if (typeof to !== "string" || to.length > 2000 || !SAME_SITE_PATH.test(to)) return fallback;
+  let resolved: URL;
+  try {
+    resolved = new URL(to, "http://thawline.invalid");
+  } catch {
+    return fallback;
+  }
+  if (resolved.origin !== "http://thawline.invalid") return fallback;
+  if (resolved.pathname.startsWith(SIGN_IN_PATH) || resolved.pathname.startsWith("/sign-out")) return fallback;
   return to;
 }
 

@@ -1,7 +1,7 @@
 import type { Route } from "./+types/dev.outbox";
 import { ErrorView } from "#app/components/error-view.tsx";
 import { readFakeOutbox } from "#app/mail/outbox.server.ts";
-import { usesMailFake } from "#app/utils/env.server.ts";
+import { devOutboxOpen } from "#app/utils/env.server.ts";
 import { notFound } from "#app/utils/http.server.ts";
 
 export const meta: Route.MetaFunction = () => [
@@ -12,7 +12,7 @@ export const meta: Route.MetaFunction = () => [
 export async function loader(_: Route.LoaderArgs) {
   // Exists only while mail goes to the local fake (development, demo, tests); with a real mail
   // key it is a 404. While it exists it is open to everyone: it is how one signs in without mail.
-  if (!usesMailFake()) notFound();
+  if (!devOutboxOpen()) notFound();
   const { entries, problem } = await readFakeOutbox();
   return {
     problem,

@@ -21,6 +21,8 @@ const schema = z.object({
   MAIL_OUTBOX_DIR: z.string().default("data/outbox"),
   /** Multiplies the sign-in code request limits; browser tests that sign in often raise it. */
   SIGN_IN_RATE_LIMIT_FACTOR: z.coerce.number().positive().default(1),
+  /** Opens /dev/outbox under a production build (the demo, browser tests); needs a re_fake key. */
+  DEV_OUTBOX: z.enum(["true", "false"]).default("false"),
   UPLOAD_MAX_BYTES: z.coerce
     .number()
     .int()
@@ -51,12 +53,21 @@ export function env(): Env {
   return cached;
 }
 
-/** The mail fake is in use whenever no real mail service is configured. */
+/** The mail fake is in use only when it is configured explicitly: a key starting with re_fake. */
 export function usesMailFake(): boolean {
-  const e = env();
-  return (
-    e.RESEND_API_KEY.startsWith("re_fake") ||
-    (e.RESEND_BASE_URL ?? "").includes("127.0.0.1") ||
-    (e.RESEND_BASE_URL ?? "").includes("localhost")
-  );
+  return env().RESEND_API_KEY.startsWith("re_fake");
+}
+
+/**
+ * Whether the local outbox page may open: only with the fake's key, and under a production build
+ * only when DEV_OUTBOX=true says so (the demo and the browser tests). A real key never opens it,
+ * wherever RESEND_BASE_URL points.
+ */
+export function outboxAllowed(e: Pick<Env, "NODE_ENV" | "RESEND_API_KEY" | "DEV_OUTBOX">): boolean {
+  if (!e.RESEND_API_KEY.startsWith("re_fake")) return false;
+  return e.NODE_ENV !== "production" || e.DEV_OUTBOX === "true";
+}
+
+export function devOutboxOpen(): boolean {
+  return outboxAllowed(env());
 }

@@ -66,6 +66,7 @@ export default async function setup(project: TestProject) {
     APP_URL: baseUrl,
     DATABASE_URL: databaseFile,
     RESEND_API_KEY: "re_fake_e2e",
+    DEV_OUTBOX: "true",
     RESEND_BASE_URL: mail.url,
     MAIL_OUTBOX_DIR: outboxDir,
     SECURE_COOKIES: "false",

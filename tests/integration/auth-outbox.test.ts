@@ -7,7 +7,7 @@ import { useMailFake } from "#tests/support/mail-fake.ts";
 const mailFake = vi.hoisted(() => ({ on: true }));
 vi.mock("#app/utils/env.server.ts", async (importOriginal) => {
   const original = await importOriginal<typeof import("#app/utils/env.server.ts")>();
-  return { ...original, usesMailFake: () => mailFake.on };
+  return { ...original, usesMailFake: () => mailFake.on, devOutboxOpen: () => mailFake.on };
 });
 
 const { sendEmail } = await import("#app/mail/send.server.ts");

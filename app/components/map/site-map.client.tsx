@@ -5,6 +5,7 @@ import L from "leaflet";
 import { MapContainer, useMap } from "react-leaflet";
 import { useNavigate } from "react-router";
 import type { Feature, FeatureCollection } from "geojson";
+import { textLabel } from "./text-label.client.ts";
 import { Basemap, FALLBACK_BOUNDS, SEA_COLOUR } from "./basemap.client.tsx";
 import { ageColourScale, gradeColour } from "#app/utils/map-colours.ts";
 import { gradeWord } from "#app/utils/labels.ts";
@@ -130,7 +131,7 @@ function SiteMarkers({
     markersRef.current = sites.map((site) => {
       const marker = L.circleMarker([site.lat, site.lon], { renderer, ...styleRef.current(site) });
       marker.bindPopup(() => popupHtml(site));
-      marker.bindTooltip(site.name, { direction: "top", offset: [0, -4] });
+      marker.bindTooltip(() => textLabel(site.name), { direction: "top", offset: [0, -4] });
       group.addLayer(marker);
       return { site, marker };
     });

@@ -3,6 +3,7 @@
 import { useEffect, useRef, useState } from "react";
 import L from "leaflet";
 import { MapContainer, useMap, useMapEvents } from "react-leaflet";
+import { textLabel } from "./text-label.client.ts";
 import { Basemap, FALLBACK_BOUNDS, SEA_COLOUR } from "./basemap.client.tsx";
 
 export type PickerSite = { id: number; name: string; latitude: number; longitude: number };
@@ -34,7 +35,7 @@ function RegistrySites({ sites }: { sites: PickerSite[] }) {
         fillColor: "#8bbad6",
         fillOpacity: 0.45,
       })
-        .bindTooltip(site.name, { direction: "top", offset: [0, -3] })
+        .bindTooltip(() => textLabel(site.name), { direction: "top", offset: [0, -3] })
         .addTo(group);
     }
     group.addTo(map);

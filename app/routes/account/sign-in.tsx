@@ -6,7 +6,7 @@ import type { Route } from "./+types/sign-in";
 import { ErrorView } from "#app/components/error-view.tsx";
 import { getOptionalUser } from "#app/auth/session.server.ts";
 import { CODE_MINUTES, completeSignIn, requestCode, restartSignIn, safeRedirect, signInState } from "#app/auth/sign-in.server.ts";
-import { usesMailFake } from "#app/utils/env.server.ts";
+import { devOutboxOpen } from "#app/utils/env.server.ts";
 import { FieldErrors } from "#app/components/ui/field-errors.tsx";
 
 export const meta: Route.MetaFunction = () => [{ title: "Sign in — Thawline" }];
@@ -34,7 +34,7 @@ export async function loader({ request }: Route.LoaderArgs) {
     error: state.error,
     redirectTo,
     suggestedEmail: (url.searchParams.get("email") ?? "").slice(0, 254),
-    showOutbox: usesMailFake(),
+    showOutbox: devOutboxOpen(),
     codeMinutes: CODE_MINUTES,
   };
 }

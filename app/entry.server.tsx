@@ -1,0 +1,72 @@
+import { PassThrough } from "node:stream";
+import type { AppLoadContext, EntryContext, HandleErrorFunction } from "react-router";
+import { isRouteErrorResponse, ServerRouter } from "react-router";
+import { createReadableStreamFromReadable } from "@react-router/node";
+import { isbot } from "isbot";
+import { renderToPipeableStream, type RenderToPipeableStreamOptions } from "react-dom/server";
+import { NonceContext } from "#app/utils/nonce.ts";
+import { logError } from "#app/http/request-log.js";
+
+/*
+ * React Router's default Node entry, plus the CSP nonce: server.js makes one per request and
+ * passes it in the load context; every inline script React or React Router writes carries it.
+ */
+
+export const streamTimeout = 5_000;
+
+export default function handleRequest(
+  request: Request,
+  responseStatusCode: number,
+  responseHeaders: Headers,
+  routerContext: EntryContext,
+  loadContext: AppLoadContext,
+) {
+  if (request.method.toUpperCase() === "HEAD") {
+    return new Response(null, { status: responseStatusCode, headers: responseHeaders });
+  }
+  const nonce = (loadContext as { cspNonce?: string } | undefined)?.cspNonce ?? "";
+  return new Promise((resolve, reject) => {
+    let shellRendered = false;
+    const userAgent = request.headers.get("user-agent");
+    const readyOption: keyof RenderToPipeableStreamOptions =
+      (userAgent && isbot(userAgent)) || routerContext.isSpaMode ? "onAllReady" : "onShellReady";
+    let timeoutId: ReturnType<typeof setTimeout> | undefined = setTimeout(() => abort(), streamTimeout + 1000);
+
+    const { pipe, abort } = renderToPipeableStream(
+      <NonceContext.Provider value={nonce}>
+        <ServerRouter context={routerContext} url={request.url} nonce={nonce || undefined} />
+      </NonceContext.Provider>,
+      {
+        nonce: nonce || undefined,
+        [readyOption]() {
+          shellRendered = true;
+          const body = new PassThrough({
+            final(callback) {
+              clearTimeout(timeoutId);
+              timeoutId = undefined;
+              callback();
+            },
+          });
+          responseHeaders.set("Content-Type", "text/html");
+          pipe(body);
+          resolve(new Response(createReadableStreamFromReadable(body), { headers: responseHeaders, status: responseStatusCode }));
+        },
+        onShellError(error: unknown) {
+          reject(error);
+        },
+        onError(error: unknown) {
+          responseStatusCode = 500;
+          if (shellRendered) logError(error, { where: "render" });
+        },
+      },
+    );
+  });
+}
+
+/** Real errors only, with their stack: a 4xx answer thrown on purpose or an aborted request is not one. */
+export const handleError: HandleErrorFunction = (error, { request }) => {
+  if (request.signal.aborted) return;
+  if (isRouteErrorResponse(error) && error.status < 500) return;
+  if (error instanceof Error && error.name === "BodyTooLarge") return;
+  logError(error, { method: request.method, path: new URL(request.url).pathname });
+};

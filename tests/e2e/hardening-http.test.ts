@@ -1,0 +1,100 @@
+import http from "node:http";
+import { expect, inject, test } from "vitest";
+import { useBrowser } from "./browser.ts";
+import { codeFrom, messagesFor, waitForMessage } from "./helpers.ts";
+
+/*
+ * Hardening corpus against the real production server (server.js): security headers with a
+ * nonce on every inline script (case 2), a streamed body past the limit refused (case 9), a
+ * hostile redirectTo after the code is spent (case 5), and no script blocked on the busiest page.
+ */
+
+const baseUrl = inject("baseUrl");
+const e2e = useBrowser();
+
+test("a page carries the CSP, and every inline script the nonce of that answer", async () => {
+  const res = await fetch(`${baseUrl}/sign-in`);
+  const csp = res.headers.get("content-security-policy")!;
+  const nonce = /'nonce-([^']+)'/.exec(csp)?.[1];
+  expect(nonce).toBeTruthy();
+  expect(csp).toContain("frame-ancestors 'none'");
+  expect(res.headers.get("x-content-type-options")).toBe("nosniff");
+  const html = await res.text();
+  const scripts = [...html.matchAll(/<script\b[^>]*>/g)].map((m) => m[0]);
+  expect(scripts.length).toBeGreaterThan(0);
+  for (const s of scripts) expect(s).toContain(`nonce="${nonce}"`);
+});
+
+test("a chunked 64 MB post to /sign-in is refused with 413 without being read", async () => {
+  const answer = await new Promise<{ status: number }>((resolve, reject) => {
+    const url = new URL(`${baseUrl}/sign-in`);
+    const req = http.request({
+      host: url.hostname,
+      port: url.port,
+      path: "/sign-in",
+      method: "POST",
+      headers: { "Content-Type": "application/x-www-form-urlencoded", Origin: baseUrl },
+    });
+    req.on("response", (res) => {
+      res.resume();
+      resolve({ status: res.statusCode! });
+    });
+    req.on("error", reject);
+    const chunk = Buffer.alloc(64 * 1024, 97);
+    let sent = 0;
+    const pump = () => {
+      while (sent < 64 * 1024 * 1024) {
+        sent += chunk.length;
+        if (!req.write(chunk)) return void req.once("drain", pump);
+      }
+      req.end();
+    };
+    req.write("intent=request&email=");
+    pump();
+  });
+  expect(answer.status).toBe(413);
+  // The server is still answering.
+  expect((await fetch(`${baseUrl}/sign-in`)).status).toBe(200);
+});
+
+test("signing in with a tab and a non-Latin letter in redirectTo lands on / (no 500 after the code is spent)", async () => {
+  const page = await e2e.browser.newPage();
+  const email = "reviewer@example.org";
+  const before = (await messagesFor(email)).length;
+  const response = await page.goto(`${baseUrl}/sign-in?redirectTo=${encodeURIComponent("/explore\tкарта")}`);
+  expect(response!.status()).toBe(200);
+  await page.fill('input[name="email"]', email);
+  await page.click('button[type="submit"]');
+  const message = await waitForMessage(email, before);
+  await page.waitForSelector('input[name="code"]');
+  await page.fill('input[name="code"]', codeFrom(message));
+  const [answer] = await Promise.all([
+    page.waitForResponse((r) => r.request().method() === "POST"),
+    page.click('button[type="submit"]'),
+  ]);
+  expect(answer.status()).toBeLessThan(500);
+  await page.waitForURL((url) => !url.pathname.startsWith("/sign-in"));
+  expect(new URL(page.url()).pathname).toBe("/");
+  await page.close();
+});
+
+test("the map page runs under the policy: no script or style refused", async () => {
+  const page = await e2e.browser.newPage();
+  const email = "modeller@example.org";
+  const before = (await messagesFor(email)).length;
+  await page.goto(`${baseUrl}/sign-in`);
+  await page.fill('input[name="email"]', email);
+  await page.click('button[type="submit"]');
+  const message = await waitForMessage(email, before);
+  await page.waitForSelector('input[name="code"]');
+  await page.fill('input[name="code"]', codeFrom(message));
+  await Promise.all([page.waitForURL((url) => !url.pathname.startsWith("/sign-in")), page.click('button[type="submit"]')]);
+  const refused: string[] = [];
+  page.on("console", (m) => {
+    if (/Content Security Policy/i.test(m.text())) refused.push(m.text());
+  });
+  await page.goto(`${baseUrl}/map`);
+  await page.getByTestId("map-ready").waitFor({ state: "attached", timeout: 30_000 });
+  expect(refused).toEqual([]);
+  await page.close();
+});
