@@ -643,6 +643,8 @@ interface PlannedSample extends ScenarioSample {
   bleachingResidualKa: number;
   /** Depth of the middle of the site's till, where reworked shells are put (null without till). */
   tillDepthCm: number | null;
+  /** The sample's 14C age before counting error (curve scatter and reservoir included), once drawn. */
+  sampleC14?: number;
 }
 
 /** The true deglaciation age (cal BP) of a point in a scenario, or null outside the former ice cover. */
@@ -812,7 +814,7 @@ export function generateScenario(inputs: ScenarioInputs, options: ScenarioOption
   }
 
   const scenarioSamples: ScenarioSample[] = samples.map(
-    ({ unit: _unit, detCount: _n, oldCarbonYr: _o, bleachingResidualKa: _b, tillDepthCm: _t, ...rest }) => rest,
+    ({ unit: _unit, detCount: _n, oldCarbonYr: _o, bleachingResidualKa: _b, tillDepthCm: _t, sampleC14: _c, ...rest }) => rest,
   );
   return {
     seed,
@@ -1009,10 +1011,12 @@ function simulateRadiocarbon(
   const curve = marine ? inputs.marine : inputs.intcal;
   const at = preparedCurveAt(curve, s.trueAgeCalBp);
   if (!at) throw new Error(`True age ${s.trueAgeCalBp} cal BP is outside the ${marine ? "marine" : "atmospheric"} curve.`);
-  let c14 = rng.normal(at.c14, at.sigma);
+  // The curve's own scatter and the local reservoir belong to the sample, not to each
+  // measurement: replicates on one sample share them and differ by counting error alone.
+  const sector = SECTOR_DELTA_R[coastalSector(site.longitude, site.latitude)];
+  s.sampleC14 ??= rng.normal(at.c14, at.sigma) + (marine ? rng.normal(sector.deltaR, sector.error) : 0);
+  let c14 = s.sampleC14;
   if (marine) {
-    const sector = SECTOR_DELTA_R[coastalSector(site.longitude, site.latitude)];
-    c14 += rng.normal(sector.deltaR, sector.error);
     d.curveName = "marine20";
     d.deltaRYr = sector.deltaR;
     d.deltaRErrorYr = sector.error;

@@ -1,6 +1,6 @@
 // Writes the demo scenario into a database: demo people, labs, publications, sites, samples,
 // determinations (each with its audit row), reviews, the scenario truth and the demo
-// reconstruction, all in one transaction; then calibrates every determination.
+// reconstruction, all in one transaction; then calibrates every determination and runs the checks.
 
 import fs from "node:fs";
 import { eq, inArray, sql } from "drizzle-orm";
@@ -16,6 +16,8 @@ import {
   insertSite,
 } from "#app/models/submission/determinations.server.ts";
 import { createUser } from "#app/models/accounts/users.server.ts";
+import { runAllChecks } from "#app/models/review/check-run.server.ts";
+import { demoReconstruction } from "./demo-reconstruction.ts";
 import { loadLand } from "./land.server.ts";
 import {
   DEFAULT_SEED,
@@ -112,6 +114,7 @@ export async function seedDemo(db: Db, options: SeedOptions): Promise<SeedResult
       calibrated = r.calibrated;
       calibrationFailures = r.failed;
     });
+    await stage("checks", () => runAllChecks(db));
   }
   return {
     summary: scenarioSummary(scenario),
@@ -216,12 +219,17 @@ function writeScenario(db: Db, scenario: Scenario) {
       }
     });
 
+    // Not the truth: an expert-like reconstruction drawn from it with smooth errors of a few hundred years.
+    const demo = demoReconstruction(scenario.retreat, scenario.seed);
+    db.update(reconstructions).set({ usedForChecks: false }).run();
     const reconstruction = db
       .insert(reconstructions)
       .values({
         name: DEMO_RECONSTRUCTION_NAME,
-        description: `Margin isochrones every 250 years of the synthetic demo ice cap (seed ${scenario.seed}); invented for the demo, not a real reconstruction.`,
-        geojson: scenario.isochrones,
+        description: `Margin isochrones every 250 years of the synthetic demo ice cap (seed ${scenario.seed}), drawn from the scenario's retreat history with smooth age errors of a few hundred years; stated uncertainty ± ${demo.uncertaintyYr} yr (1σ). Invented for the demo, not a real reconstruction.`,
+        geojson: demo.isochrones,
+        uncertaintyYr: demo.uncertaintyYr,
+        usedForChecks: true,
         isDemo: true,
         createdBy: userIds["modeller@example.org"],
       })

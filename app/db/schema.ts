@@ -21,8 +21,11 @@ export const LUMINESCENCE_SIGNALS = ["OSL", "IRSL", "TL", "pIRIR"] as const;
 export const CONSTRAINT_KINDS = ["minimum", "maximum", "direct"] as const;
 export type ConstraintKind = (typeof CONSTRAINT_KINDS)[number];
 
-/** Life of a determination: submitted → in_review → graded; withdrawn by its contributor before grading. */
-export const STATUSES = ["submitted", "in_review", "graded", "withdrawn"] as const;
+/**
+ * Life of a determination: submitted → in_review → graded; withdrawn by its contributor before grading.
+ * A reviewer's question puts it in awaiting_answer until the contributor answers (back to in_review).
+ */
+export const STATUSES = ["submitted", "in_review", "awaiting_answer", "graded", "withdrawn"] as const;
 export type Status = (typeof STATUSES)[number];
 
 export const CHECK_SEVERITIES = ["pass", "note", "warning", "conflict"] as const;
@@ -393,6 +396,15 @@ export const reviewMessages = sqliteTable(
   (t) => [index("review_messages_det_idx").on(t.determinationId)],
 );
 
+/** A reviewer's hold on a queue item, so two reviewers do not grade it at once; it lapses at expires_at. */
+export const reviewLeases = sqliteTable("review_leases", {
+  determinationId: integer("determination_id")
+    .primaryKey()
+    .references(() => determinations.id, { onDelete: "cascade" }),
+  reviewerId: integer("reviewer_id").notNull().references(() => users.id),
+  expiresAt: integer("expires_at", { mode: "timestamp_ms" }).notNull(),
+});
+
 export const checkResults = sqliteTable(
   "check_results",
   {
@@ -514,6 +526,10 @@ export const reconstructions = sqliteTable("reconstructions", {
   description: text("description"),
   geojson: text("geojson", { mode: "json" }).$type<FeatureCollection>().notNull(),
   isDemo: integer("is_demo", { mode: "boolean" }).notNull().default(false),
+  /** Stated 1σ uncertainty of the isochrone ages, years. */
+  uncertaintyYr: real("uncertainty_yr"),
+  /** The one reconstruction the reconstruction check uses (at most one row is true). */
+  usedForChecks: integer("used_for_checks", { mode: "boolean" }).notNull().default(false),
   createdBy: integer("created_by").references(() => users.id),
   createdAt: createdAt(),
 });

@@ -10,7 +10,7 @@ export type ExploreSort = (typeof EXPLORE_SORTS)[number];
 export const GRADE_FILTERS = ["3", "2", "1", "0", "ungraded"] as const;
 
 /** Status filter: absent = every status except withdrawn; "all" includes withdrawn too. */
-export const STATUS_FILTERS = ["submitted", "in_review", "graded", "withdrawn", "all"] as const;
+export const STATUS_FILTERS = ["submitted", "in_review", "awaiting_answer", "graded", "withdrawn", "all"] as const;
 // Kept literal so the browser bundle need not load the schema; this line fails to compile if they drift.
 type MissingStatus = Exclude<Status, (typeof STATUS_FILTERS)[number]>;
 /** @public a compile-time check that nothing reads */

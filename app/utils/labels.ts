@@ -15,6 +15,7 @@ export const CONSTRAINT_KIND_LABELS: Record<string, string> = {
 export const STATUS_LABELS: Record<string, string> = {
   submitted: "submitted",
   in_review: "in review",
+  awaiting_answer: "awaiting the contributor’s answer",
   graded: "graded",
   withdrawn: "withdrawn",
 };

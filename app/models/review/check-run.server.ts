@@ -1,0 +1,107 @@
+// Runs the seven checks and stores their results: for some determinations (after a commit, an
+// edit, a recalibration) or for the whole registry (a background job, the seed). Each run
+// replaces the results of the determinations it covers in one transaction.
+
+import type { Db } from "#app/db/client.server.ts";
+import { runChecks } from "#app/science/checks/run.ts";
+import type { CheckItem, CheckResult } from "#app/science/checks/types.ts";
+import { DEFAULT_NEIGHBOUR_RADIUS_KM } from "#app/science/checks/neighbours.ts";
+import { loadAllLabCodes, loadCheckItems, loadCheckItemsById, loadCheckReconstruction } from "./check-items.server.ts";
+
+export interface CheckRunSummary {
+  determinations: number;
+  bySeverity: Record<string, number>;
+}
+
+function radiusKm(): number {
+  const v = Number(process.env.CHECK_NEIGHBOUR_RADIUS_KM);
+  return Number.isFinite(v) && v > 0 ? v : DEFAULT_NEIGHBOUR_RADIUS_KM;
+}
+
+/** Replaces the stored results of the given determinations; runs in the caller's transaction if any. */
+export function storeCheckResults(db: Db, results: Map<number, CheckResult[]>): CheckRunSummary {
+  const sqlite = db.$client;
+  const del = sqlite.prepare("delete from check_results where determination_id = ?");
+  const ins = sqlite.prepare(
+    "insert into check_results (determination_id, \"check\", severity, message, details, suggested_flag) values (?, ?, ?, ?, ?, ?)",
+  );
+  const bySeverity: Record<string, number> = { pass: 0, note: 0, warning: 0, conflict: 0 };
+  const write = () => {
+    for (const [id, list] of results) {
+      del.run(id);
+      for (const r of list) {
+        ins.run(id, r.check, r.severity, r.message, JSON.stringify(r.details), r.suggestedFlag);
+        bySeverity[r.severity]++;
+      }
+    }
+  };
+  if (sqlite.inTransaction) write();
+  else sqlite.transaction(write)();
+  return { determinations: results.size, bySeverity };
+}
+
+/** Computes every determination's checks (no writing). */
+export function computeAllChecks(db: Db): Map<number, CheckResult[]> {
+  const items = loadCheckItems(db);
+  return runChecks(items, { radiusKm: radiusKm(), reconstruction: loadCheckReconstruction(db) });
+}
+
+export function runAllChecks(db: Db): CheckRunSummary {
+  return storeCheckResults(db, computeAllChecks(db));
+}
+
+const KM_PER_DEG_LAT = 110.574;
+
+/** Bounds `km` around every item. */
+function around(items: readonly CheckItem[], km: number) {
+  let south = Infinity;
+  let north = -Infinity;
+  let west = Infinity;
+  let east = -Infinity;
+  let maxAbsLat = 0;
+  for (const it of items) {
+    south = Math.min(south, it.latitude);
+    north = Math.max(north, it.latitude);
+    west = Math.min(west, it.longitude);
+    east = Math.max(east, it.longitude);
+    maxAbsLat = Math.max(maxAbsLat, Math.abs(it.latitude));
+  }
+  const dLat = km / KM_PER_DEG_LAT;
+  const dLon = km / (111.32 * Math.max(0.05, Math.cos(((Math.min(89, maxAbsLat + dLat)) * Math.PI) / 180)));
+  return { south: south - dLat, north: north + dLat, west: west - dLon, east: east + dLon };
+}
+
+/**
+ * Checks the given determinations and every determination whose results they can change: those
+ * within the neighbour radius (which includes the same site and sample) and those sharing a
+ * normalised lab code. Context is loaded from twice the radius, so the affected ones see all of
+ * their own neighbours. Runs in the caller's transaction when there is one.
+ */
+export function runChecksFor(db: Db, ids: readonly number[]): CheckRunSummary {
+  const seeds = loadCheckItemsById(db, ids);
+  // Withdrawn determinations lose their results; the neighbours they leave behind are rechecked.
+  const withdrawn = ids.filter((id) => !seeds.some((s) => s.id === id));
+  const sqlite = db.$client;
+  for (const id of withdrawn) sqlite.prepare("delete from check_results where determination_id = ?").run(id);
+  const sites = withdrawn.length
+    ? (sqlite
+        .prepare(
+          `select st.latitude, st.longitude from determinations d join samples s on s.id = d.sample_id join sites st on st.id = s.site_id where d.id in (${withdrawn.map(() => "?").join(",")})`,
+        )
+        .all(...withdrawn) as { latitude: number; longitude: number }[])
+    : [];
+  const anchors = [...seeds, ...sites.map((s) => ({ ...s }) as CheckItem)];
+  if (anchors.length === 0) return { determinations: 0, bySeverity: {} };
+  const r = radiusKm();
+  const context = loadCheckItems(db, around(anchors, 2 * r + 1));
+  const near = around(anchors, r + 0.5);
+  const targets = new Set<number>(seeds.map((s) => s.id));
+  const codes = loadAllLabCodes(db);
+  for (const it of context) {
+    if (it.latitude >= near.south && it.latitude <= near.north && it.longitude >= near.west && it.longitude <= near.east) {
+      targets.add(it.id);
+    }
+  }
+  const results = runChecks(context, { radiusKm: r, reconstruction: loadCheckReconstruction(db), allCodes: codes, targets });
+  return storeCheckResults(db, results);
+}
