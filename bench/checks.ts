@@ -60,9 +60,16 @@ export function formatCheckBench(b: CheckBench, label: string): string[] {
       .sort((a, c) => c[1] - a[1])
       .map(([k, v]) => `${k} ${v}`)
       .join(", ");
-  const lines = [`${label}: ${b.determinations} determinations, checks computed in ${(b.computeMs / 1000).toFixed(2)} s, stored in ${(b.storeMs / 1000).toFixed(2)} s`];
+  const lines = [
+    `${label}: ${b.determinations} determinations, checks computed in ${(b.computeMs / 1000).toFixed(2)} s, stored in ${(b.storeMs / 1000).toFixed(2)} s`,
+  ];
   lines.push("  fault kind           n   recall (warning or conflict)   by check");
-  for (const f of b.faults) lines.push(`  ${f.fault.padEnd(18)} ${String(f.count).padStart(4)}   ${pct(f.flagged, f.count).padStart(8)}                       ${by(f.byCheck)}`);
-  lines.push(`  ${"clean (false alarm)".padEnd(18)} ${String(b.clean.count).padStart(4)}   ${pct(b.clean.flagged, b.clean.count).padStart(8)}                       ${by(b.clean.byCheck)}`);
+  for (const f of b.faults)
+    lines.push(
+      `  ${f.fault.padEnd(18)} ${String(f.count).padStart(4)}   ${pct(f.flagged, f.count).padStart(8)}                       ${by(f.byCheck)}`,
+    );
+  lines.push(
+    `  ${"clean (false alarm)".padEnd(18)} ${String(b.clean.count).padStart(4)}   ${pct(b.clean.flagged, b.clean.count).padStart(8)}                       ${by(b.clean.byCheck)}`,
+  );
   return lines;
 }

@@ -217,6 +217,33 @@ for (let r = 0; r < 6; r++) {
 server.kill();
 report("calibration API", "POST /api/v1/calibrate, 1,000 items, median of 5 warm", ms(median(apiRuns)));
 
+// ---------------------------------------------------------------- automatic checks (issue 9)
+{
+  const { benchChecks } = await import("./checks.ts");
+  const { openDatabase } = await import("#app/db/client.server.ts");
+  const pct = (n: number, d: number) => (d ? `${((100 * n) / d).toFixed(1)} %` : "–");
+  const reportChecks = (label: string, b: ReturnType<typeof benchChecks>, timed: boolean) => {
+    if (timed) {
+      report(
+        "checks",
+        `whole-registry run, ${b.determinations} determinations (compute)`,
+        `${(b.computeMs / 1000).toFixed(2)} s`,
+        "≤ 2 s",
+      );
+      report("checks", "whole-registry run (store, one transaction)", `${(b.storeMs / 1000).toFixed(2)} s`);
+    }
+    for (const f of b.faults) report(`checks ${label}`, `recall: ${f.fault} (n = ${f.count})`, pct(f.flagged, f.count));
+    report(`checks ${label}`, `false alarms: clean (n = ${b.clean.count})`, pct(b.clean.flagged, b.clean.count));
+  };
+  reportChecks("seed default", benchChecks(db), true);
+  const otherFile = path.join(dir, "bench-seed-7.db");
+  const other = openDatabase(otherFile);
+  migrateDatabase(other);
+  await seedDemo(other, { size: "full", seed: 7 });
+  reportChecks("seed 7", benchChecks(other), false);
+  other.$client.close();
+}
+
 // ---------------------------------------------------------------- uploads
 console.log("Uploading a 5,500-row sheet as XLSX and as CSV…");
 const headers = [

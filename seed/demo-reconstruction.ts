@@ -52,7 +52,8 @@ export function demoReconstruction(retreat: RetreatParams, seed: number): DemoRe
   const scale = ERROR_SD_YR / Math.sqrt(variance);
   const errorAt = (theta: number, calBp: number) => {
     let e = 0;
-    for (const t of raw) e += t.amplitude * Math.cos(t.k * theta + t.phase) * Math.cos((2 * Math.PI * t.timeFreq * calBp) / 10000 + t.timePhase);
+    for (const t of raw)
+      e += t.amplitude * Math.cos(t.k * theta + t.phase) * Math.cos((2 * Math.PI * t.timeFreq * calBp) / 10000 + t.timePhase);
     return e * scale;
   };
   const features: Feature<Polygon, { age_cal_bp: number; age_uncertainty_yr: number }>[] = [];

@@ -401,7 +401,9 @@ export const reviewLeases = sqliteTable("review_leases", {
   determinationId: integer("determination_id")
     .primaryKey()
     .references(() => determinations.id, { onDelete: "cascade" }),
-  reviewerId: integer("reviewer_id").notNull().references(() => users.id),
+  reviewerId: integer("reviewer_id")
+    .notNull()
+    .references(() => users.id),
   expiresAt: integer("expires_at", { mode: "timestamp_ms" }).notNull(),
 });
 

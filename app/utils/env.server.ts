@@ -28,6 +28,14 @@ const schema = z.object({
     .int()
     .positive()
     .default(10 * 1024 * 1024),
+  /** Radius of the neighbours check, km. */
+  CHECK_NEIGHBOUR_RADIUS_KM: z.coerce.number().positive().max(500).default(25),
+  /** Largest accepted margin reconstruction file, bytes. */
+  RECONSTRUCTION_MAX_BYTES: z.coerce
+    .number()
+    .int()
+    .positive()
+    .default(8 * 1024 * 1024),
   SECURE_COOKIES: z
     .enum(["true", "false"])
     .optional()

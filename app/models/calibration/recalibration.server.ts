@@ -1,6 +1,7 @@
 import { and, eq, isNull, or, sql } from "drizzle-orm";
 import type { Db } from "#app/db/client.server.ts";
 import { determinations } from "#app/db/schema.ts";
+import { runAllChecks } from "#app/models/review/check-run.server.ts";
 import { audit } from "#app/models/audit.server.ts";
 import { calibrateDeterminations } from "#app/models/calibration/calibrations.server.ts";
 import type { JobHandler } from "#app/models/jobs.server.ts";
@@ -52,7 +53,9 @@ export const recalibrateJob: JobHandler<RecalibrateParams> = async (ctx) => {
     entityId: ctx.jobId,
     after: { determinations: ids.length, calibrated, failed },
   });
-  return `${calibrated} calibrated${failed ? `, ${failed} could not be calibrated (see each determination)` : ""}.`;
+  // Calendar ages changed, so every check that compares them runs again.
+  runAllChecks(db);
+  return `${calibrated} calibrated${failed ? `, ${failed} could not be calibrated (see each determination)` : ""}; checks run again.`;
 };
 
 /**

@@ -1,6 +1,6 @@
 import { z } from "zod";
 import type { Db } from "#app/db/client.server.ts";
-import { CONSTRAINT_KINDS, METHODS, STATUSES } from "#app/db/schema.ts";
+import { CHECK_SEVERITIES, CONSTRAINT_KINDS, METHODS, STATUSES, type CheckSeverity } from "#app/db/schema.ts";
 import {
   defaultDirection,
   EXPLORE_PAGE_SIZE,
@@ -30,6 +30,8 @@ export const exploreFiltersSchema = z.object({
   kind: z.preprocess(blankToUndefined, z.enum(CONSTRAINT_KINDS).optional()),
   status: z.preprocess(blankToUndefined, z.enum(STATUS_FILTERS).optional()),
   grade: z.preprocess(blankToUndefined, z.enum(GRADE_FILTERS).optional()),
+  /** The worst result among a determination's automatic checks. */
+  worst_check: z.preprocess(blankToUndefined, z.enum(CHECK_SEVERITIES).optional()),
   /** Measured age window in years: ¹⁴C years BP, or luminescence years (De / dose rate). */
   ageFrom: years,
   ageTo: years,
@@ -91,6 +93,8 @@ export type ExploreRow = {
     curveLabel: string | null;
     constraintKind: (typeof CONSTRAINT_KINDS)[number];
     grade: number | null;
+    /** Worst automatic check result; null before the checks have run. */
+    worstCheck: CheckSeverity | null;
     status: (typeof STATUSES)[number];
     labName: string;
     createdAt: number;
@@ -127,6 +131,11 @@ export const MEASURED_AGE_SQL = `(case d.method
   when 'radiocarbon' then coalesce(d.c14_age_yr, case when d.f14c > 0 then -8033.0 * ln(d.f14c) end)
   when 'luminescence' then d.de_gy / nullif(d.dose_rate_gy_per_ka, 0) * 1000.0
 end)`;
+
+/** The worst check result of determination `d` as 0–3 (pass … conflict), null when it has none. */
+export const WORST_CHECK_RANK_SQL = `(select max(case cr.severity when 'conflict' then 3 when 'warning' then 2 when 'note' then 1 else 0 end)
+  from check_results cr where cr.determination_id = d.id)`;
+const RANK_TO_SEVERITY_SQL = `case ${WORST_CHECK_RANK_SQL} when 3 then 'conflict' when 2 then 'warning' when 1 then 'note' when 0 then 'pass' end`;
 
 const SORT_SQL: Record<ExploreSort, string> = {
   labCode: "d.lab_code",
@@ -192,6 +201,10 @@ function whereClause(f: ExploreFilters): { sql: string; params: unknown[] } {
     parts.push("d.grade >= ?");
     params.push(Number(f.grade));
   }
+  if (f.worst_check) {
+    parts.push(`${WORST_CHECK_RANK_SQL} = ?`);
+    params.push(CHECK_SEVERITIES.indexOf(f.worst_check));
+  }
   if (f.ageFrom != null || f.ageTo != null) {
     const [lo, hi] = ordered(f.ageFrom, f.ageTo);
     if (lo != null) {
@@ -254,7 +267,8 @@ export function exploreDeterminations(db: Db, filters: ExploreFilters): ExploreR
          ${MEASURED_AGE_SQL} as measuredAgeYr,
          c.median_cal_bp as medianCalBp, c.hpd95_from_bp as hpd95FromBp, c.hpd95_to_bp as hpd95ToBp,
          coalesce(json_array_length(c.hpd95), 0) as hpd95Parts, c.curve_label as curveLabel,
-         d.constraint_kind as constraintKind, d.grade, d.status, l.name as labName, d.created_at as createdAt
+         d.constraint_kind as constraintKind, d.grade, ${RANK_TO_SEVERITY_SQL} as worstCheck,
+         d.status, l.name as labName, d.created_at as createdAt
        from (select d.id as pageId ${narrowFrom(filters, true)} ${where.sql} ${orderBy} limit ? offset ?) p
        join determinations d on d.id = p.pageId
        join samples s on s.id = d.sample_id

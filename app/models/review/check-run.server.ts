@@ -3,9 +3,9 @@
 // replaces the results of the determinations it covers in one transaction.
 
 import type { Db } from "#app/db/client.server.ts";
+import { env } from "#app/utils/env.server.ts";
 import { runChecks } from "#app/science/checks/run.ts";
 import type { CheckItem, CheckResult } from "#app/science/checks/types.ts";
-import { DEFAULT_NEIGHBOUR_RADIUS_KM } from "#app/science/checks/neighbours.ts";
 import { loadAllLabCodes, loadCheckItems, loadCheckItemsById, loadCheckReconstruction } from "./check-items.server.ts";
 
 export interface CheckRunSummary {
@@ -13,9 +13,8 @@ export interface CheckRunSummary {
   bySeverity: Record<string, number>;
 }
 
-function radiusKm(): number {
-  const v = Number(process.env.CHECK_NEIGHBOUR_RADIUS_KM);
-  return Number.isFinite(v) && v > 0 ? v : DEFAULT_NEIGHBOUR_RADIUS_KM;
+export function neighbourRadiusKm(): number {
+  return env().CHECK_NEIGHBOUR_RADIUS_KM;
 }
 
 /** Replaces the stored results of the given determinations; runs in the caller's transaction if any. */
@@ -23,7 +22,7 @@ export function storeCheckResults(db: Db, results: Map<number, CheckResult[]>): 
   const sqlite = db.$client;
   const del = sqlite.prepare("delete from check_results where determination_id = ?");
   const ins = sqlite.prepare(
-    "insert into check_results (determination_id, \"check\", severity, message, details, suggested_flag) values (?, ?, ?, ?, ?, ?)",
+    'insert into check_results (determination_id, "check", severity, message, details, suggested_flag) values (?, ?, ?, ?, ?, ?)',
   );
   const bySeverity: Record<string, number> = { pass: 0, note: 0, warning: 0, conflict: 0 };
   const write = () => {
@@ -43,7 +42,7 @@ export function storeCheckResults(db: Db, results: Map<number, CheckResult[]>): 
 /** Computes every determination's checks (no writing). */
 export function computeAllChecks(db: Db): Map<number, CheckResult[]> {
   const items = loadCheckItems(db);
-  return runChecks(items, { radiusKm: radiusKm(), reconstruction: loadCheckReconstruction(db) });
+  return runChecks(items, { radiusKm: neighbourRadiusKm(), reconstruction: loadCheckReconstruction(db) });
 }
 
 export function runAllChecks(db: Db): CheckRunSummary {
@@ -67,7 +66,7 @@ function around(items: readonly CheckItem[], km: number) {
     maxAbsLat = Math.max(maxAbsLat, Math.abs(it.latitude));
   }
   const dLat = km / KM_PER_DEG_LAT;
-  const dLon = km / (111.32 * Math.max(0.05, Math.cos(((Math.min(89, maxAbsLat + dLat)) * Math.PI) / 180)));
+  const dLon = km / (111.32 * Math.max(0.05, Math.cos((Math.min(89, maxAbsLat + dLat) * Math.PI) / 180)));
   return { south: south - dLat, north: north + dLat, west: west - dLon, east: east + dLon };
 }
 
@@ -92,7 +91,7 @@ export function runChecksFor(db: Db, ids: readonly number[]): CheckRunSummary {
     : [];
   const anchors = [...seeds, ...sites.map((s) => ({ ...s }) as CheckItem)];
   if (anchors.length === 0) return { determinations: 0, bySeverity: {} };
-  const r = radiusKm();
+  const r = neighbourRadiusKm();
   const context = loadCheckItems(db, around(anchors, 2 * r + 1));
   const near = around(anchors, r + 0.5);
   const targets = new Set<number>(seeds.map((s) => s.id));

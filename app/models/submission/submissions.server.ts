@@ -8,6 +8,7 @@ import type { Db } from "#app/db/client.server.ts";
 import { determinations, labs, materials, publications, samples, sites, type Method, type Status } from "#app/db/schema.ts";
 import { audit } from "#app/models/audit.server.ts";
 import { calendarOutcome, calibrateDeterminations, interpretMeasurement } from "#app/models/calibration/calibrations.server.ts";
+import { runChecksFor } from "#app/models/review/check-run.server.ts";
 import { activeCurve, listCurves, type CurveRow } from "#app/models/calibration/curves.server.ts";
 import { LISTED_MEASUREMENT_SQL, type ListedMeasurement } from "#app/models/registry/query.server.ts";
 import { findSite } from "#app/models/submission/uploads.server.ts";
@@ -300,6 +301,7 @@ export function createSubmission(db: Db, value: SubmissionValue, actor: Actor): 
       actor.userId,
     );
     const cal = calibrateDeterminations(db, [det.id]);
+    runChecksFor(db, [det.id]);
     return { id: det.id, createdSite: placed.createdSite, joinedSample: placed.joinedSample, calendarAge: cal.calibrated === 1 };
   })();
 }
@@ -399,6 +401,7 @@ export function updateSubmission(db: Db, id: number, value: SubmissionValue, act
     });
     if (placed.sampleId !== before.sampleId) removeIfOrphaned(db, before.sampleId, actor);
     calibrateDeterminations(db, [id]);
+    runChecksFor(db, [id]);
     return { changed: true, version: after.version };
   })();
 }
@@ -443,6 +446,7 @@ export function withdrawSubmission(db: Db, id: number, actor: Actor): StoredDete
       after: auditSnapshot(after),
       ip: actor.ip,
     });
+    runChecksFor(db, [id]);
     return after;
   })();
 }

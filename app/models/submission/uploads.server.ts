@@ -27,6 +27,7 @@ import {
 } from "#app/db/schema.ts";
 import { audit } from "#app/models/audit.server.ts";
 import { calibrateDeterminations, interpretMeasurement } from "#app/models/calibration/calibrations.server.ts";
+import { runChecksFor } from "#app/models/review/check-run.server.ts";
 import { activeCurve, listCurves, preparedCurve, type CurveRow } from "#app/models/calibration/curves.server.ts";
 import { curveAgeLimits } from "#app/science/calibration.ts";
 import {
@@ -933,6 +934,7 @@ function writeRows(
   });
   const t1 = performance.now();
   calibrateDeterminations(db, ids);
+  runChecksFor(db, ids);
   const t2 = performance.now();
   if (options.timings) {
     options.timings.insertMs = t1 - t0;

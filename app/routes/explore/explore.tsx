@@ -3,6 +3,7 @@ import { Form, Link, useLocation, useNavigation, useSubmit } from "react-router"
 import type { Route } from "./+types/explore";
 import { requireUser } from "#app/auth/session.server.ts";
 import { ErrorView } from "#app/components/error-view.tsx";
+import { CheckBadge } from "#app/components/check-badge.tsx";
 import { GradeBadge } from "#app/components/grade-badge.tsx";
 import { getDb } from "#app/db/client.server.ts";
 import {
@@ -27,7 +28,21 @@ export async function loader({ request }: Route.LoaderArgs) {
 type Filters = Route.ComponentProps["loaderData"]["filters"];
 
 /** Filter inputs that are not part of the sort or the page. */
-const FILTER_KEYS = ["q", "method", "material", "lab", "site", "kind", "status", "grade", "ageFrom", "ageTo", "calFrom", "calTo"];
+const FILTER_KEYS = [
+  "q",
+  "method",
+  "material",
+  "lab",
+  "site",
+  "kind",
+  "status",
+  "grade",
+  "worst_check",
+  "ageFrom",
+  "ageTo",
+  "calFrom",
+  "calTo",
+];
 
 export default function Explore({ loaderData }: Route.ComponentProps) {
   const { filters, result, options } = loaderData;
@@ -89,6 +104,7 @@ export default function Explore({ loaderData }: Route.ComponentProps) {
                   <SortHeader filters={filters} sort="grade">
                     Grade
                   </SortHeader>
+                  <th scope="col">Worst check</th>
                   <th scope="col">Status</th>
                   <SortHeader filters={filters} sort="created">
                     Added
@@ -148,6 +164,9 @@ function ResultRow({ row }: { row: ExploreRow }) {
       </td>
       <td>
         <GradeBadge grade={row.grade} />
+      </td>
+      <td>
+        <CheckBadge severity={row.worstCheck} />
       </td>
       <td className="whitespace-nowrap">{STATUS_LABELS[row.status]}</td>
       <td className="whitespace-nowrap text-muted">{new Date(row.createdAt).toISOString().slice(0, 10)}</td>
@@ -376,6 +395,22 @@ function FilterForm({
           <option value="1">1 doubtful or better</option>
           <option value="0">Any grade (graded only)</option>
           <option value="ungraded">Ungraded</option>
+        </select>
+      </div>
+      <div className="field">
+        <label htmlFor="f-worst-check">Worst check</label>
+        <select
+          id="f-worst-check"
+          name="worst_check"
+          className="input"
+          defaultValue={str(filters.worst_check)}
+          onChange={autoSubmit}
+        >
+          <option value="">Any</option>
+          <option value="conflict">conflict</option>
+          <option value="warning">warning</option>
+          <option value="note">note</option>
+          <option value="pass">pass (all checks)</option>
         </select>
       </div>
       <fieldset className="sm:col-span-1 lg:col-span-2">

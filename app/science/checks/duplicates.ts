@@ -38,7 +38,10 @@ export interface DuplicateIndex {
  * `codes` may hold every lab code in the registry (cheap to load) while `items` holds only the
  * determinations whose values are compared.
  */
-export function buildDuplicateIndex(items: readonly CheckItem[], codes: readonly { id: number; labCode: string }[]): DuplicateIndex {
+export function buildDuplicateIndex(
+  items: readonly CheckItem[],
+  codes: readonly { id: number; labCode: string }[],
+): DuplicateIndex {
   const byCode = new Map<string, { id: number; labCode: string }[]>();
   for (const c of codes) {
     const k = normaliseLabCode(c.labCode);
@@ -75,7 +78,11 @@ export function checkDuplicates(item: CheckItem, index: DuplicateIndex): CheckRe
       CHECK,
       "conflict",
       `The lab code ${item.labCode} is already in the registry as ${same.map((s) => s.labCode).join(", ")} (the same code written another way).`,
-      { labCodes: same.map((s) => s.labCode), determinationIds: same.map((s) => s.id), normalised: normaliseLabCode(item.labCode) },
+      {
+        labCodes: same.map((s) => s.labCode),
+        determinationIds: same.map((s) => s.id),
+        normalised: normaliseLabCode(item.labCode),
+      },
     );
   }
   const copies = index.sameValues(item).filter((o) => o.material === item.material && km(item, o) <= SAME_PLACE_KM);

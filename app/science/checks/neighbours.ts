@@ -80,7 +80,10 @@ export interface OutlierTest {
  * floored at the neighbours' typical dating error so that a tight cluster of few dates does not
  * make every small difference an outlier; the date's own σ adds in quadrature.
  */
-export function robustOutlier(value: { mean: number; sd: number }, reference: readonly { mean: number; sd: number }[]): OutlierTest {
+export function robustOutlier(
+  value: { mean: number; sd: number },
+  reference: readonly { mean: number; sd: number }[],
+): OutlierTest {
   const m = median(reference.map((r) => r.mean));
   const mad = median(reference.map((r) => Math.abs(r.mean - m)));
   const spread = Math.max(MAD_TO_SD * mad, median(reference.map((r) => r.sd)));
@@ -99,13 +102,16 @@ export function checkNeighbours(item: CheckItem, index: NeighbourIndex): CheckRe
   const near = index.near(item).filter((n) => n.item.calendar);
   const within = `within ${index.radiusKm} km`;
   if (near.length === 0) return result(CHECK, "pass", `No dated neighbour ${within}.`, { neighbours: 0 });
-  const kind = kindConflicts(item, near, within);
+  const kind = kindConflicts(item, near);
   const outlier = saysIceFree(item.constraintKind) ? outOfLine(item, near, within) : null;
   const candidates = [kind, outlier].filter((r): r is CheckResult => r !== null);
   const rank = { pass: 0, note: 1, warning: 2, conflict: 3 };
   const worst = candidates.sort((a, b) => rank[b.severity] - rank[a.severity])[0];
   if (worst && worst.severity !== "pass") {
-    return { ...worst, details: { ...worst.details, neighbours: near.length, also: candidates.filter((c) => c !== worst).map((c) => c.message) } };
+    return {
+      ...worst,
+      details: { ...worst.details, neighbours: near.length, also: candidates.filter((c) => c !== worst).map((c) => c.message) },
+    };
   }
   return result(CHECK, "pass", outlier?.message ?? `In line with the ${near.length} dated neighbours ${within}.`, {
     neighbours: near.length,
@@ -114,7 +120,7 @@ export function checkNeighbours(item: CheckItem, index: NeighbourIndex): CheckRe
 }
 
 /** (a) Minimum-limiting older than maximum-limiting nearby: the two cannot both hold. */
-function kindConflicts(item: CheckItem, near: { item: CheckItem; km: number }[], within: string): CheckResult | null {
+function kindConflicts(item: CheckItem, near: { item: CheckItem; km: number }[]): CheckResult | null {
   const isMin = item.constraintKind === "minimum";
   const isMax = item.constraintKind === "maximum";
   if (!isMin && !isMax) return null;
@@ -128,7 +134,12 @@ function kindConflicts(item: CheckItem, near: { item: CheckItem; km: number }[],
     if (p > worst.p) worst = { p, other: o };
   }
   const other = worst.other.item;
-  const details = { pKindConflict: worst.p, otherLabCode: other.labCode, otherDeterminationId: other.id, otherKm: worst.other.km };
+  const details = {
+    pKindConflict: worst.p,
+    otherLabCode: other.labCode,
+    otherDeterminationId: other.id,
+    otherKm: worst.other.km,
+  };
   if (worst.p < KIND_WARNING) return result(CHECK, "pass", "", details);
   const text = isMin
     ? `P(this minimum-limiting age is older than the maximum-limiting ${other.labCode}, ${worst.other.km.toFixed(1)} km away) = ${prob(worst.p)}: the ice cannot have left before it arrived`
@@ -150,8 +161,17 @@ function outOfLine(item: CheckItem, near: { item: CheckItem; km: number }[], wit
   }
   if (reference.length < MIN_REFERENCE) return null;
   const self = { mean: item.calendar!.meanCalBp, sd: item.calendar!.sdYears };
-  const t = robustOutlier(self, reference.map((r) => ({ mean: r.item.calendar!.meanCalBp, sd: r.item.calendar!.sdYears })));
-  const details = { z: t.z, referenceMedianCalBp: t.referenceMedian, referenceSpreadYr: t.referenceSpread, referenceCount: t.n, referenceBasis: basis };
+  const t = robustOutlier(
+    self,
+    reference.map((r) => ({ mean: r.item.calendar!.meanCalBp, sd: r.item.calendar!.sdYears })),
+  );
+  const details = {
+    z: t.z,
+    referenceMedianCalBp: t.referenceMedian,
+    referenceSpreadYr: t.referenceSpread,
+    referenceCount: t.n,
+    referenceBasis: basis,
+  };
   const diff = self.mean - t.referenceMedian;
   const described = `${yr(Math.abs(diff))} yr ${diff > 0 ? "older" : "younger"} than the median of ${t.n} ${basis} ice-free neighbours ${within} (${yr(t.referenceMedian)} cal BP, robust spread ± ${yr(t.referenceSpread)}; z = ${t.z.toFixed(1)})`;
   const az = Math.abs(t.z);

@@ -57,7 +57,10 @@ export function parseReconstruction(json: unknown): ReconstructionParse {
   const features = json.features as unknown[];
   if (features.length === 0) return { ok: false, errors: ["The FeatureCollection has no features."] };
   if (features.length > MAX_RECONSTRUCTION_FEATURES) {
-    return { ok: false, errors: [`The file has ${features.length} features; at most ${MAX_RECONSTRUCTION_FEATURES} isochrones are accepted.`] };
+    return {
+      ok: false,
+      errors: [`The file has ${features.length} features; at most ${MAX_RECONSTRUCTION_FEATURES} isochrones are accepted.`],
+    };
   }
   const errors: string[] = [];
   const isochrones: ParsedIsochrone[] = [];
@@ -72,7 +75,9 @@ export function parseReconstruction(json: unknown): ReconstructionParse {
     const props = isObj(f.properties) ? f.properties : {};
     const age = props.age_cal_bp;
     if (typeof age !== "number" || !Number.isFinite(age) || age < 0 || age > 60000) {
-      errors.push(`${where}: age_cal_bp must be a number of years cal BP between 0 and 60,000 (found ${JSON.stringify(age ?? null)}).`);
+      errors.push(
+        `${where}: age_cal_bp must be a number of years cal BP between 0 and 60,000 (found ${JSON.stringify(age ?? null)}).`,
+      );
     }
     const u = props.age_uncertainty_yr;
     if (u !== undefined) {
@@ -84,9 +89,11 @@ export function parseReconstruction(json: unknown): ReconstructionParse {
     if (g.problem) errors.push(g.problem);
     else if (typeof age === "number") isochrones.push({ ageCalBp: age, geometry: f.geometry as Polygon | MultiPolygon });
   });
-  if (vertices > MAX_RECONSTRUCTION_VERTICES) errors.push(`The isochrones have ${vertices} positions; at most ${MAX_RECONSTRUCTION_VERTICES} are accepted.`);
+  if (vertices > MAX_RECONSTRUCTION_VERTICES)
+    errors.push(`The isochrones have ${vertices} positions; at most ${MAX_RECONSTRUCTION_VERTICES} are accepted.`);
   const ages = isochrones.map((x) => x.ageCalBp);
-  if (new Set(ages).size < ages.length) errors.push("Two isochrones share an age_cal_bp; give each age one feature (use a MultiPolygon for several parts).");
+  if (new Set(ages).size < ages.length)
+    errors.push("Two isochrones share an age_cal_bp; give each age one feature (use a MultiPolygon for several parts).");
   if (errors.length) return { ok: false, errors };
   const statedUncertaintyYr = uncertainties.size ? Math.max(...uncertainties) : null;
   return { ok: true, isochrones, statedUncertaintyYr, vertices };

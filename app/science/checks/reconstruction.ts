@@ -132,14 +132,23 @@ export function checkReconstruction(
 ): CheckResult {
   if (!recon) return result(CHECK, "pass", "No margin reconstruction is chosen for this check.");
   if (!saysIceFree(item.constraintKind)) {
-    return result(CHECK, "pass", "A maximum-limiting date is expected to be older than deglaciation; no reconstruction test applies.");
+    return result(
+      CHECK,
+      "pass",
+      "A maximum-limiting date is expected to be older than deglaciation; no reconstruction test applies.",
+    );
   }
   if (!item.calendar) return result(CHECK, "pass", "No calendar age to compare with the reconstruction.");
   const where = local(item);
   if (where.kind === "never-covered") {
-    return result(CHECK, "pass", `The site lies outside ${recon.name}'s ice at its oldest isochrone (${yr(where.oldestCalBp)} cal BP).`, {
-      reconstruction: recon.name,
-    });
+    return result(
+      CHECK,
+      "pass",
+      `The site lies outside ${recon.name}'s ice at its oldest isochrone (${yr(where.oldestCalBp)} cal BP).`,
+      {
+        reconstruction: recon.name,
+      },
+    );
   }
   const p = probabilityUnderIce(item, where);
   const details = {
@@ -151,7 +160,14 @@ export function checkReconstruction(
     medianCalBp: item.calendar.medianCalBp,
   };
   const text = `P(site still under ice at this age) = ${prob(p)} by ${recon.name}, which frees the site at ${yr(where.ageCalBp)} ± ${yr(where.sdYears)} cal BP; the date's median is ${yr(item.calendar.medianCalBp)} cal BP.`;
-  if (p >= RECON_CONFLICT) return result(CHECK, "conflict", text, details, item.method === "luminescence" ? "partial_bleaching" : item.marineMaterial ? "reworked" : "old_carbon");
+  if (p >= RECON_CONFLICT)
+    return result(
+      CHECK,
+      "conflict",
+      text,
+      details,
+      item.method === "luminescence" ? "partial_bleaching" : item.marineMaterial ? "reworked" : "old_carbon",
+    );
   if (p >= RECON_WARNING) return result(CHECK, "warning", text, details);
   if (p >= RECON_NOTE) return result(CHECK, "note", text, details);
   return result(CHECK, "pass", text, details);

@@ -32,7 +32,10 @@ export function replicateValue(item: CheckItem): AgeWithError | null {
   if (item.method === "luminescence") {
     const { deGy, doseRateGyPerKa, deErrorGy, doseRateErrorGyPerKa } = item;
     if (!(deGy! > 0) || !(doseRateGyPerKa! > 0)) return null;
-    const a = luminescenceAge({ value: deGy!, error: deErrorGy ?? 0 }, { value: doseRateGyPerKa!, error: doseRateErrorGyPerKa ?? 0 });
+    const a = luminescenceAge(
+      { value: deGy!, error: deErrorGy ?? 0 },
+      { value: doseRateGyPerKa!, error: doseRateErrorGyPerKa ?? 0 },
+    );
     if (!(a.errorKa > 0)) return null;
     const bp = luminescenceAgeToCalBp(a.ageKa, a.errorKa, item.measurementYear ?? 1950);
     return { age: bp.calBp / 1000, error: bp.error / 1000 };

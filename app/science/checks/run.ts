@@ -21,6 +21,20 @@ export interface RunOptions {
 export function runChecks(items: readonly CheckItem[], options: RunOptions = {}): Map<number, CheckResult[]> {
   const targets = options.targets;
   const wanted = targets ? items.filter((i) => targets.has(i.id)) : items;
+  const check = prepareChecks(items, options);
+  const out = new Map<number, CheckResult[]>();
+  for (const it of wanted) out.set(it.id, check(it));
+  return out;
+}
+
+/**
+ * Builds the shared indexes over `items` once and returns the function that checks one of them,
+ * so a background run can work through the registry in chunks.
+ */
+export function prepareChecks(
+  items: readonly CheckItem[],
+  options: Omit<RunOptions, "targets"> = {},
+): (it: CheckItem) => CheckResult[] {
   const neighbours = buildNeighbourIndex(items, options.radiusKm ?? DEFAULT_NEIGHBOUR_RADIUS_KM);
   const duplicates = buildDuplicateIndex(items, options.allCodes ?? items);
   const replicates = replicateGroups(items);
@@ -51,21 +65,19 @@ export function runChecks(items: readonly CheckItem[], options: RunOptions = {})
     return r;
   };
   const suspect = (it: CheckItem) => independentOf(it).some((r) => r.severity === "warning" || r.severity === "conflict");
-  const out = new Map<number, CheckResult[]>();
-  for (const it of wanted) {
+  return (it: CheckItem) => {
     let inv = inversions.get(it.siteId);
     if (!inv) {
       inv = siteInversions(bySite.get(it.siteId) ?? [it]);
       inversions.set(it.siteId, inv);
     }
-    out.set(it.id, [
+    return [
       checkValueRange(it),
       checkMarine(it),
       checkReplicates(it, replicates.get(it.id)),
       checkStratigraphy(it, inv, suspect),
       ...independentOf(it),
       checkDuplicates(it, duplicates),
-    ]);
-  }
-  return out;
+    ];
+  };
 }

@@ -15,7 +15,8 @@ export const STRAT_CONFLICT = 0.95;
  * section); depth decides within one unit, or when a unit's position is not given.
  */
 export function deeperThan(a: CheckItem, b: CheckItem): number {
-  if (a.stratOrder !== null && b.stratOrder !== null && a.stratOrder !== b.stratOrder) return a.stratOrder > b.stratOrder ? 1 : -1;
+  if (a.stratOrder !== null && b.stratOrder !== null && a.stratOrder !== b.stratOrder)
+    return a.stratOrder > b.stratOrder ? 1 : -1;
   if (a.depthCm !== null && b.depthCm !== null && a.depthCm !== b.depthCm) return a.depthCm > b.depthCm ? 1 : -1;
   return 0;
 }
@@ -39,7 +40,9 @@ export function siteInversions(siteItems: readonly CheckItem[]): Map<number, Inv
       const order = deeperThan(a, b);
       if (order === 0) continue;
       const [deep, shallow] = order > 0 ? [a, b] : [b, a];
-      const p = clearlyYounger(shallow.calendar!, deep.calendar!) ? 0 : probabilityOlder(shallow.calendar!.density, deep.calendar!.density);
+      const p = clearlyYounger(shallow.calendar!, deep.calendar!)
+        ? 0
+        : probabilityOlder(shallow.calendar!.density, deep.calendar!.density);
       out.get(a.id)!.push({ other: b, p, selfDeeper: order > 0 });
       out.get(b.id)!.push({ other: a, p, selfDeeper: order < 0 });
     }
@@ -68,7 +71,12 @@ export function checkStratigraphy(
   const count = (id: number) => (inversions.get(id) ?? []).filter((x) => x.p >= STRAT_WARNING).length;
   const worst = mine.reduce((w, x) => (x.p > w.p ? x : w));
   const details = {
-    pairs: mine.map((x) => ({ labCode: x.other.labCode, determinationId: x.other.id, pDeeperYounger: x.p, selfDeeper: x.selfDeeper })),
+    pairs: mine.map((x) => ({
+      labCode: x.other.labCode,
+      determinationId: x.other.id,
+      pDeeperYounger: x.p,
+      selfDeeper: x.selfDeeper,
+    })),
     worstP: worst.p,
   };
   if (worst.p < STRAT_WARNING) {
@@ -85,22 +93,33 @@ export function checkStratigraphy(
   const mineCount = count(item.id);
   const theirs = count(worst.other.id);
   if (theirs > mineCount) {
-    return result(CHECK, "note", `${sentence}; ${worst.other.labCode} is out of order with ${theirs} levels, this one with ${mineCount}.`, {
-      ...details,
-      likelierCulprit: worst.other.labCode,
-    });
+    return result(
+      CHECK,
+      "note",
+      `${sentence}; ${worst.other.labCode} is out of order with ${theirs} levels, this one with ${mineCount}.`,
+      {
+        ...details,
+        likelierCulprit: worst.other.labCode,
+      },
+    );
   }
   if (suspect(worst.other) && !suspect(item)) {
-    return result(CHECK, "note", `${sentence}; ${worst.other.labCode} is also out of line with its neighbours or the reconstruction, this one is not.`, {
-      ...details,
-      likelierCulprit: worst.other.labCode,
-    });
+    return result(
+      CHECK,
+      "note",
+      `${sentence}; ${worst.other.labCode} is also out of line with its neighbours or the reconstruction, this one is not.`,
+      {
+        ...details,
+        likelierCulprit: worst.other.labCode,
+      },
+    );
   }
   // Within one unit, samples a few decimetres apart date nearly the same event: depth order there
   // is informative only when the ages are clearly resolved, so the levels step down by one.
   const sameUnit = item.stratOrder !== null && item.stratOrder === worst.other.stratOrder;
   if (sameUnit) {
-    if (worst.p >= STRAT_CONFLICT) return result(CHECK, "warning", `${sentence}, within one unit.`, { ...details, sameUnit }, "weak_stratigraphy");
+    if (worst.p >= STRAT_CONFLICT)
+      return result(CHECK, "warning", `${sentence}, within one unit.`, { ...details, sameUnit }, "weak_stratigraphy");
     return result(CHECK, "note", `${sentence}, within one unit, where samples overlap in age.`, { ...details, sameUnit });
   }
   const severity = worst.p >= STRAT_CONFLICT ? "conflict" : "warning";

@@ -67,12 +67,6 @@ export interface CheckResult {
 
 export const SEVERITY_RANK: Readonly<Record<CheckSeverity, number>> = { pass: 0, note: 1, warning: 2, conflict: 3 };
 
-export function worstSeverity(severities: Iterable<CheckSeverity>): CheckSeverity {
-  let worst: CheckSeverity = "pass";
-  for (const s of severities) if (SEVERITY_RANK[s] > SEVERITY_RANK[worst]) worst = s;
-  return worst;
-}
-
 export function result(
   check: CheckKind,
   severity: CheckSeverity,

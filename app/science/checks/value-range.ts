@@ -82,9 +82,17 @@ function luminescenceRange(item: CheckItem): CheckResult {
   if (deGy === null || doseRateGyPerKa === null || !(deGy > 0) || !(doseRateGyPerKa > 0)) {
     return result(CHECK, "note", `No age: ${item.calibrationError ?? "De and dose rate are both needed"}.`);
   }
-  const age = luminescenceAge({ value: deGy, error: deErrorGy ?? 0 }, { value: doseRateGyPerKa, error: doseRateErrorGyPerKa ?? 0 });
+  const age = luminescenceAge(
+    { value: deGy, error: deErrorGy ?? 0 },
+    { value: doseRateGyPerKa, error: doseRateErrorGyPerKa ?? 0 },
+  );
   const doseRateRel = (doseRateErrorGyPerKa ?? 0) / doseRateGyPerKa;
-  const details = { ageKa: age.ageKa, errorKa: age.errorKa, relativeError: age.relativeError, doseRateRelativeError: doseRateRel };
+  const details = {
+    ageKa: age.ageKa,
+    errorKa: age.errorKa,
+    relativeError: age.relativeError,
+    doseRateRelativeError: doseRateRel,
+  };
   if (doseRateRel < VALUE_LIMITS.minDoseRateRelativeError) {
     return result(
       CHECK,

@@ -60,7 +60,15 @@ describe("replicates (Ward & Wilson 1978, from memory; CHECK_VALUES A7)", () => 
   it("tests luminescence replicates in ka", () => {
     // 20.0 ± 1.28 ka and 30.0 ± 1.92 ka: T = 18.8 ≫ 10.83 [derived]
     const lum = (de: number) =>
-      item({ sampleId: 700, method: "luminescence", deGy: de, deErrorGy: de * 0.05, doseRateGyPerKa: 2.5, doseRateErrorGyPerKa: 0.1, measurementYear: 1950 });
+      item({
+        sampleId: 700,
+        method: "luminescence",
+        deGy: de,
+        deErrorGy: de * 0.05,
+        doseRateGyPerKa: 2.5,
+        doseRateErrorGyPerKa: 0.1,
+        measurementYear: 1950,
+      });
     const a = lum(50);
     const b = lum(75);
     const r = checkReplicates(a, replicateGroups([a, b]).get(a.id));
@@ -110,18 +118,24 @@ describe("stratigraphic order", () => {
 
   it("the fast pair probability equals the plain one", () => {
     fc.assert(
-      fc.property(fc.integer({ min: 5000, max: 15000 }), fc.integer({ min: -800, max: 800 }), fc.integer({ min: 20, max: 600 }), (m, d, sd) => {
-        const a = normalDensity(m, sd);
-        const b = normalDensity(m + d, sd * 1.5);
-        expect(olderThan(a, b)).toBeCloseTo(probabilityOlder(a, b), 9);
-      }),
+      fc.property(
+        fc.integer({ min: 5000, max: 15000 }),
+        fc.integer({ min: -800, max: 800 }),
+        fc.integer({ min: 20, max: 600 }),
+        (m, d, sd) => {
+          const a = normalDensity(m, sd);
+          const b = normalDensity(m + d, sd * 1.5);
+          expect(olderThan(a, b)).toBeCloseTo(probabilityOlder(a, b), 9);
+        },
+      ),
       { numRuns: 40 },
     );
   });
 });
 
 describe("neighbours", () => {
-  const at = (lat: number, lon: number, over: Partial<CheckItem> & { age?: [number, number] }) => item({ latitude: lat, longitude: lon, ...over });
+  const at = (lat: number, lon: number, over: Partial<CheckItem> & { age?: [number, number] }) =>
+    item({ latitude: lat, longitude: lon, ...over });
 
   it("a minimum-limiting age older than a maximum-limiting one nearby is a conflict; the maximum gets a note", () => {
     const min = at(57, -65, { age: [12000, 100] });
@@ -172,7 +186,15 @@ describe("neighbours", () => {
 describe("reconstruction", () => {
   const square = (half: number) => ({
     type: "Polygon" as const,
-    coordinates: [[[-65 - half, 57 - half], [-65 + half, 57 - half], [-65 + half, 57 + half], [-65 - half, 57 + half], [-65 - half, 57 - half]]],
+    coordinates: [
+      [
+        [-65 - half, 57 - half],
+        [-65 + half, 57 - half],
+        [-65 + half, 57 + half],
+        [-65 - half, 57 + half],
+        [-65 - half, 57 - half],
+      ],
+    ],
   });
   const recon = makeReconstruction("test margins", 200, [
     { ageCalBp: 12000, geometry: square(1) },

@@ -41,7 +41,14 @@ describe("value range", () => {
   it("passes a luminescence age of 20.0 ± 1.28 ka", () => {
     // 50 Gy ± 5 % / 2.5 Gy/ka ± 4 % → 20.0 ka ± 6.40 % (CHECK_VALUES B1, Aitken 1985, from memory)
     const r = checkValueRange(
-      item({ method: "luminescence", deGy: 50, deErrorGy: 2.5, doseRateGyPerKa: 2.5, doseRateErrorGyPerKa: 0.1, measurementYear: 2015 }),
+      item({
+        method: "luminescence",
+        deGy: 50,
+        deErrorGy: 2.5,
+        doseRateGyPerKa: 2.5,
+        doseRateErrorGyPerKa: 0.1,
+        measurementYear: 2015,
+      }),
     );
     expect(r.severity).toBe("pass");
     expect(r.details.ageKa).toBeCloseTo(20, 9);
@@ -51,7 +58,14 @@ describe("value range", () => {
   it("warns on a dose-rate error below 3 %", () => {
     // below about 3 % is implausible for field samples (CHECK_VALUES B7, common practice)
     const r = checkValueRange(
-      item({ method: "luminescence", deGy: 50, deErrorGy: 2.5, doseRateGyPerKa: 2.5, doseRateErrorGyPerKa: 0.05, measurementYear: 2015 }),
+      item({
+        method: "luminescence",
+        deGy: 50,
+        deErrorGy: 2.5,
+        doseRateGyPerKa: 2.5,
+        doseRateErrorGyPerKa: 0.05,
+        measurementYear: 2015,
+      }),
     );
     expect(r.severity).toBe("warning");
     expect(r.suggestedFlag).toBe("dose_rate_uncertain");
@@ -59,7 +73,14 @@ describe("value range", () => {
 });
 
 describe("marine caveats", () => {
-  const shell = { material: "marine shell", marineMaterial: true, curveName: "marine20", deltaRYr: 15, deltaRErrorYr: 45, deltaRCurve: "marine20" };
+  const shell = {
+    material: "marine shell",
+    marineMaterial: true,
+    curveName: "marine20",
+    deltaRYr: 15,
+    deltaRErrorYr: 45,
+    deltaRCurve: "marine20",
+  };
 
   it("passes a shell with a Marine20 ΔR in the Holocene", () => {
     expect(checkMarine(item({ ...shell, age: [9000, 80] })).severity).toBe("pass");
