@@ -24,7 +24,13 @@ export const checkRunJob: JobHandler<CheckRunParams> = async (ctx) => {
   });
   const summary = db.$client.transaction(() => {
     const s = storeCheckResults(db, results);
-    audit(db, { actorId: ctx.actorId, action: "checks.run", entity: "job", entityId: ctx.jobId, after: { determinations: s.determinations, ...s.bySeverity } });
+    audit(db, {
+      actorId: ctx.actorId,
+      action: "checks.run",
+      entity: "job",
+      entityId: ctx.jobId,
+      after: { determinations: s.determinations, ...s.bySeverity },
+    });
     return s;
   })();
   const s = summary.bySeverity;
