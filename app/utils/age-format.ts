@@ -18,6 +18,65 @@ export type MeasuredAgeFields = {
 
 const LIBBY_MEAN_LIFE = 8033;
 
+/**
+ * The units every page writes, once each. Radiocarbon years are "¹⁴C yr BP" (ages) and "¹⁴C yr"
+ * (errors, offsets); calendar ages always carry "cal BP"; the 1σ is said once, beside the error.
+ */
+export const UNITS = {
+  c14Age: "¹⁴C yr BP",
+  c14Years: "¹⁴C yr",
+  calBp: "cal BP",
+  ka: "ka",
+  gy: "Gy",
+  gyPerKa: "Gy/ka",
+  permil: "‰",
+  f14c: "F¹⁴C",
+  oneSigma: "1σ",
+} as const;
+
+/** A count with thousands separators: "3,042". */
+export function formatCount(n: number | null | undefined): string {
+  return n == null ? "" : groupThousands(Math.round(n));
+}
+
+/** Decimals that keep two significant figures of an error (never negative, at most six). */
+export function decimalsForError(error: number): number {
+  if (!(error > 0) || !Number.isFinite(error)) return 0;
+  return Math.min(6, Math.max(0, 1 - Math.floor(Math.log10(error))));
+}
+
+function fixed(x: number, decimals: number): string {
+  const s = x.toFixed(decimals);
+  if (decimals > 0) return s.replace(/^(-?)(\d+)/, (_m, sign: string, int: string) => sign + groupThousands(Number(int)));
+  return groupThousands(Number(s));
+}
+
+/**
+ * A value and its 1σ at honest precision: the error to two significant figures, the value to the
+ * same decimal place. "2.069 ± 0.017", "10,250 ± 45". Whole units never show decimals when the
+ * error is a whole number of units or more.
+ */
+export function formatValueError(value: number, error: number | null | undefined, unit = ""): string {
+  const u = unit ? ` ${unit}` : "";
+  if (error == null || !(error > 0)) return `${formatPlain(value)}${u}`;
+  const d = decimalsForError(error);
+  return `${fixed(value, d)} ± ${fixed(error, d)}${u}`;
+}
+
+/** A lone measured value: at most four significant figures, thousands grouped, no trailing zeros. */
+export function formatPlain(value: number | null | undefined, unit = ""): string {
+  if (value == null || !Number.isFinite(value)) return "—";
+  const u = unit ? ` ${unit}` : "";
+  if (Math.abs(value) >= 1000) return `${groupThousands(Math.round(value))}${u}`;
+  const s = String(Number(value.toPrecision(4)));
+  return `${s}${u}`;
+}
+
+/** A calendar age with its unit: "12,345 cal BP". */
+export function formatCalBpAge(n: number | null | undefined): string {
+  return n == null ? "—" : `${formatYears(n)} ${UNITS.calBp}`;
+}
+
 /** Radiocarbon ages are conventionally rounded to 5 or 10 years; show the nearest whole year, grouped. */
 export function formatYears(n: number): string {
   return groupThousands(Math.round(n));

@@ -56,3 +56,97 @@ export const GRADE_FILL: Record<number, string> = {
   1: "#8bbad6",
   0: "#dcebf4",
 };
+
+// ---------------------------------------------------------------- more stored codes
+
+/** Curve short names as stored on a determination ("intcal20") and the words people read. */
+export const CURVE_LABELS: Record<string, string> = {
+  intcal20: "IntCal20 (2020)",
+  marine20: "Marine20 (2020)",
+};
+
+/** A stored curve short name in words; an editor's own curve keeps its name. */
+export function curveWords(name: string | null | undefined): string {
+  if (name == null || name === "") return "IntCal20 (2020)";
+  return CURVE_LABELS[name.toLowerCase()] ?? name;
+}
+
+/**
+ * A calibration's stored label in words. Radiocarbon labels already read "IntCal20 (2020)";
+ * a luminescence age has no curve, its calendar density is a normal distribution.
+ */
+export function calendarModelWords(label: string | null | undefined): string {
+  if (label == null || label === "") return "—";
+  if (label === "luminescence (normal)") return "Luminescence age as a normal distribution (no curve)";
+  return CURVE_LABELS[label.toLowerCase()] ?? label;
+}
+
+/** Dose-rate conversion factor sets, named by their publication. */
+export const CONVERSION_FACTOR_LABELS: Record<string, string> = {
+  guerin2011: "Guérin, Mercier & Adamiec (2011)",
+  adamiec1998: "Adamiec & Aitken (1998)",
+};
+
+export function conversionFactorWords(key: string | null | undefined): string {
+  if (key == null || key === "") return "—";
+  return CONVERSION_FACTOR_LABELS[key] ?? key;
+}
+
+export const SIGNAL_LABELS: Record<string, string> = {
+  OSL: "OSL (optically stimulated)",
+  IRSL: "IRSL (infrared stimulated)",
+  TL: "TL (thermoluminescence)",
+  pIRIR: "post-IR IRSL",
+};
+
+export const ROLE_LABELS: Record<string, string> = {
+  contributor: "Contributor",
+  reviewer: "Reviewer",
+  modeller: "Modeller",
+  editor: "Editor",
+};
+
+export const CHECK_SEVERITY_LABELS: Record<string, string> = {
+  pass: "pass",
+  note: "note",
+  warning: "warning",
+  conflict: "conflict",
+};
+
+/** Audit actions as the verb of a sentence: "<verb> by <person>". */
+export const AUDIT_ACTION_VERBS: Record<string, string> = {
+  "determination.create": "Submitted",
+  "determination.update": "Edited",
+  "determination.withdraw": "Withdrawn",
+  "determination.delete": "Deleted",
+  "determination.grade": "Graded",
+  "calibration.recalibrate": "Recalibrated",
+  "sample.delete": "Sample removed",
+  "lab.create": "Lab registered",
+  "curve.import": "Curve imported",
+  "curve.activate": "Curve made current",
+  "upload.commit": "Upload committed",
+  "upload.undo": "Upload undone",
+  "user.invite": "Invited",
+  "user.roles": "Roles changed",
+  "user.deactivate": "Deactivated",
+  "user.reactivate": "Reactivated",
+  "auth.sign_in": "Signed in",
+  "session.revoke": "Session ended",
+  "session.revoke_others": "Other sessions ended",
+  "token.create": "API token created",
+  "token.revoke": "API token revoked",
+  "review.create": "Reviewed",
+  "review.question": "Question asked",
+  "review.answer": "Question answered",
+  "release.publish": "Release published",
+};
+
+/** "determination.some_new_thing" → "Some new thing", so an unlisted action still reads as words. */
+export function auditActionVerb(action: string): string {
+  const known = AUDIT_ACTION_VERBS[action];
+  if (known) return known;
+  const tail = action.split(".").pop() ?? action;
+  const words = tail.replace(/_/g, " ");
+  return words.charAt(0).toUpperCase() + words.slice(1);
+}
