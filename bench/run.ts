@@ -179,7 +179,7 @@ async function freePort(): Promise<number> {
 }
 if (!fs.existsSync("build/server/index.js")) {
   console.log("Building the app for the API round trip…");
-  spawnSync(path.resolve("node_modules/.bin/react-router"), ["build"], { stdio: "inherit" });
+  spawnSync(path.resolve("node_modules/.bin/vite"), ["build"], { stdio: "inherit" });
 }
 const port = await freePort();
 const server = spawn(process.execPath, ["server.js"], {

@@ -46,7 +46,7 @@ function vitest(project: string) {
 
 vitest("unit");
 vitest("integration");
-if (step("build", bin("react-router"), ["build"])) vitest("e2e");
+if (step("build", bin("vite"), ["build"])) vitest("e2e");
 
 console.log(`\n${totals.passed} passed, ${totals.failed} failed, ${totals.skipped} skipped`);
 if (totals.passed === 0) ok = false;

@@ -1,8 +1,9 @@
-import { useId } from "react";
+import { useId, useRef } from "react";
 import { scaleLinear } from "d3-scale";
 import { area, line } from "d3-shape";
 import { formatCalBp, formatCalendarYear, groupThousands } from "#app/science/calendar.ts";
 import { formatProbability } from "#app/utils/age-format.ts";
+import { FigureDownloads } from "#app/components/ui/figure-downloads.tsx";
 
 /*
  * The calibration plot: the curve as a ±1σ band over the calendar window of the result, the
@@ -47,11 +48,16 @@ export function formatRange(r: PlotRange, scale: CalendarScale): string {
   return `${groupThousands(Math.round(r.from))}–${groupThousands(Math.round(r.to))} cal BP`;
 }
 
-const W = 760;
-const H = 470;
-const M = { left: 78, right: 18, top: 18, bottom: 56 };
-const BELL_WIDTH = 70;
-const DENSITY_HEIGHT = 96;
+// Drawn at 880 × 540 user units and shown at that size where the page has room, so the axis text
+// (14–15 units) reads at 12 px or more down to a 760 px wide figure, and prints at a paper's scale.
+const W = 880;
+const H = 540;
+const M = { left: 92, right: 22, top: 22, bottom: 74 };
+const BELL_WIDTH = 80;
+const DENSITY_HEIGHT = 110;
+/** Text sizes in user units, shared by every calendar picture. */
+export const TICK_TEXT = 14;
+export const AXIS_TEXT = 15;
 
 export function CalibrationPlot({
   curve,
@@ -59,7 +65,6 @@ export function CalibrationPlot({
   calibration,
   scale = "bp",
   heading,
-  compact = false,
 }: {
   curve: PlotCurve;
   measurement: PlotMeasurement;
@@ -67,10 +72,12 @@ export function CalibrationPlot({
   scale?: CalendarScale;
   /** What is being calibrated, e.g. a lab code; used in the accessible name. */
   heading?: string;
+  /** No longer narrows the plot (it is always drawn legibly); accepted so callers keep working. */
   compact?: boolean;
 }) {
   const titleId = useId();
   const descId = useId();
+  const figureRef = useRef<HTMLElement>(null);
   const { density } = calibration;
   const window = plotWindow(density);
   const deltaR = curve.kind === "marine" ? (measurement.deltaR ?? 0) : 0;
@@ -154,7 +161,7 @@ export function CalibrationPlot({
     `${formatCalAge(calibration.medianCalBp, scale)}; 95.4 % range ${rangesText(calibration.hpd95)}.`;
 
   return (
-    <figure className={compact ? "max-w-2xl" : "max-w-4xl"}>
+    <figure ref={figureRef} className="max-w-[880px]">
       <svg
         viewBox={`0 0 ${W} ${H}`}
         role="img"
@@ -200,25 +207,31 @@ export function CalibrationPlot({
           />
         </g>
         {/* calendar axis */}
-        <CalendarAxis x={x} ticks={xTicks} y={bottom} from={M.left} to={W - M.right} labelY={H - 12} scale={scale} />
+        <CalendarAxis x={x} ticks={xTicks} y={bottom} from={M.left} to={W - M.right} labelY={H - 16} scale={scale} />
         {/* radiocarbon axis */}
         <line x1={M.left} x2={M.left} y1={top} y2={bottom} stroke="#1c2a36" />
         {yTicks.map((t) => (
           <g key={`y${t}`} transform={`translate(${M.left},${y(t)})`}>
             <line x2={-5} stroke="#1c2a36" />
-            <text x={-8} dy="0.32em" textAnchor="end" fontSize={12} fill="#1c2a36">
+            <text x={-8} dy="0.32em" textAnchor="end" fontSize={TICK_TEXT} fill="#1c2a36">
               {groupThousands(t)}
             </text>
           </g>
         ))}
-        <text transform={`translate(16,${(top + bottom) / 2}) rotate(-90)`} textAnchor="middle" fontSize={13} fill="#1c2a36">
+        <text
+          transform={`translate(20,${(top + bottom) / 2}) rotate(-90)`}
+          textAnchor="middle"
+          fontSize={AXIS_TEXT}
+          fill="#1c2a36"
+        >
           ¹⁴C yr BP
         </text>
-        <text x={W - M.right - 6} y={top + 16} textAnchor="end" fontSize={12} fill="#1f4e72">
+        <text x={W - M.right - 8} y={top + 20} textAnchor="end" fontSize={TICK_TEXT} fill="#1f4e72">
           {curveName}
           {offset}
         </text>
       </svg>
+      <FigureDownloads figure={figureRef} fileName={`calibration-${heading ?? "age"}`} />
       <figcaption className="mt-3 space-y-1 text-sm">
         <p>
           <span className="font-semibold">{measured}</span>
@@ -251,7 +264,27 @@ function RangeList({ label, ranges, scale, tone }: { label: string; ranges: Plot
   );
 }
 
-/** The calendar axis shared by the calibration plot and the luminescence density: cal BP or BC/AD. */
+/**
+ * Thawline's one time convention, said on every calendar axis: older to the left, time running
+ * left to right. The unit in the middle, the direction at each end.
+ */
+export function TimeDirection({ from, to, y, unit }: { from: number; to: number; y: number; unit: string }) {
+  return (
+    <g fontSize={AXIS_TEXT} fill="#1c2a36" data-time-direction="older-left">
+      <text x={from} y={y} textAnchor="start" fill="#5b6975">
+        ← older
+      </text>
+      <text x={(from + to) / 2} y={y} textAnchor="middle">
+        {unit}
+      </text>
+      <text x={to} y={y} textAnchor="end" fill="#5b6975">
+        younger →
+      </text>
+    </g>
+  );
+}
+
+/** The calendar axis shared by the calibration plot and the luminescence density: cal BP or BC/AD, older left. */
 export function CalendarAxis({
   x,
   ticks,
@@ -275,14 +308,12 @@ export function CalendarAxis({
       {ticks.map((t) => (
         <g key={`x${t}`} transform={`translate(${x(t)},${y})`}>
           <line y2={5} stroke="#1c2a36" />
-          <text y={19} textAnchor="middle" fontSize={12} fill="#1c2a36">
+          <text y={21} textAnchor="middle" fontSize={TICK_TEXT} fill="#1c2a36">
             {scale === "bcad" ? formatCalendarYear(t) : groupThousands(t)}
           </text>
         </g>
       ))}
-      <text x={(from + to) / 2} y={labelY} textAnchor="middle" fontSize={13} fill="#1c2a36">
-        {scale === "bcad" ? "Calendar year (BC/AD)" : "cal BP"}
-      </text>
+      <TimeDirection from={from} to={to} y={labelY} unit={scale === "bcad" ? "Calendar year (BC/AD)" : "cal BP"} />
     </g>
   );
 }

@@ -6,7 +6,8 @@ import { formatYears } from "#app/utils/age-format.ts";
 /*
  * A stratigraphic column beside an age axis: units stacked from the uppermost down, and each
  * date drawn at its unit's level as its median with the 95.4 % range. A deeper unit dated
- * younger than a shallower one shows up as a step back to the left.
+ * younger than a shallower one shows up as a step to the right (older is to the left, as on
+ * every calendar axis).
  */
 
 export type ColumnDate = {
@@ -45,7 +46,7 @@ export function StratColumn({ units }: { units: ColumnUnit[] }) {
   const hi = Math.max(...ages);
   const pad = Math.max(100, (hi - lo) * 0.05);
   const x = scaleLinear()
-    .domain([lo - pad, hi + pad])
+    .domain([hi + pad, lo - pad])
     .range([PLOT_X0, PLOT_X1])
     .nice();
 
@@ -63,12 +64,12 @@ export function StratColumn({ units }: { units: ColumnUnit[] }) {
         height={height}
         role="img"
         aria-labelledby="strat-title strat-desc"
-        className="font-serif text-[12px]"
+        className="font-serif text-[13px]"
       >
         <title id="strat-title">Stratigraphic column with dates</title>
         <desc id="strat-desc">
           Units from the uppermost down on the left; each date's median and 95.4 % range in cal BP on the right, older to the
-          right.
+          left.
         </desc>
         {/* age axis */}
         <line x1={PLOT_X0} x2={PLOT_X1} y1={AXIS_H - 6} y2={AXIS_H - 6} stroke="#5b6975" />
@@ -80,8 +81,14 @@ export function StratColumn({ units }: { units: ColumnUnit[] }) {
             </text>
           </g>
         ))}
+        <text x={PLOT_X0} y={12} textAnchor="start" fill="#5b6975">
+          ← older
+        </text>
+        <text x={(PLOT_X0 + PLOT_X1) / 2} y={12} textAnchor="middle" fill="#1c2a36">
+          cal BP
+        </text>
         <text x={PLOT_X1} y={12} textAnchor="end" fill="#5b6975">
-          cal BP, older →
+          younger →
         </text>
         <text x={0} y={AXIS_H - 14} fill="#5b6975">
           Unit (uppermost first)
