@@ -23,7 +23,12 @@ function buildSummary(): Plugin {
     generateBundle(_options, bundle) {
       for (const item of Object.values(bundle)) {
         files += 1;
-        bytes += item.type === "chunk" ? Buffer.byteLength(item.code) : typeof item.source === "string" ? Buffer.byteLength(item.source) : item.source.byteLength;
+        bytes +=
+          item.type === "chunk"
+            ? Buffer.byteLength(item.code)
+            : typeof item.source === "string"
+              ? Buffer.byteLength(item.source)
+              : item.source.byteLength;
       }
     },
     closeBundle() {

@@ -18,7 +18,7 @@ const databaseUrl = process.env.DATABASE_URL ?? "data/thawline.db";
  */
 function demoSecrets(): { SESSION_SECRET: string; TOTP_SECRET: string; said: string } {
   const file = path.join(path.dirname(databaseUrl), "demo-secrets.json");
-  let stored: { SESSION_SECRET?: string; TOTP_SECRET?: string } = {};
+  let stored: { SESSION_SECRET?: string; TOTP_SECRET?: string };
   let said = `the random ones kept in ${file}`;
   try {
     stored = JSON.parse(fs.readFileSync(file, "utf8"));

@@ -1,3 +1,5 @@
+import { formatValueError } from "#app/utils/age-format.ts";
+
 /** A two-column definition list for a record's fields; missing values read as an em dash. */
 export function DetailList({ items }: { items: [label: React.ReactNode, value: React.ReactNode][] }) {
   return (
@@ -19,10 +21,9 @@ export function showNumber(x: number | null | undefined, unit?: string): string 
   return unit ? `${s} ${unit}` : s;
 }
 
-/** "value ± error unit", or the value alone when there is no error. */
+/** "value ± error unit" at honest precision (the error to two significant figures), or the value alone. */
 export function showWithError(x: number | null | undefined, err: number | null | undefined, unit?: string): string | null {
   if (x === null || x === undefined) return null;
-  const v = x.toLocaleString("en", { maximumFractionDigits: 6 });
-  const e = err === null || err === undefined ? "" : ` ± ${err.toLocaleString("en", { maximumFractionDigits: 6 })}`;
-  return `${v}${e}${unit ? ` ${unit}` : ""}`;
+  if (err === null || err === undefined) return showNumber(x, unit);
+  return formatValueError(x, err, unit ?? "");
 }

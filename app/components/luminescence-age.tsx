@@ -152,7 +152,7 @@ function NormalDensityPlot({
       const inside = pts.filter((d) => d[0] <= r.from && d[0] >= r.to);
       // close the shape exactly at the range's ends
       const at = (t: number): [number, number] => [t, Math.exp(-0.5 * ((t - mean) / sd) ** 2)];
-      return { key: `${r.from}-${r.to}`, path: shape([at(r.from), ...inside, at(r.to)]) ?? "" };
+      return { key: `${r.from}-${r.to}`, path: shape([at(r.to), ...inside, at(r.from)]) ?? "" };
     });
   const ticks = x.ticks(7);
   const label =

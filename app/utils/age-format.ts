@@ -72,11 +72,6 @@ export function formatPlain(value: number | null | undefined, unit = ""): string
   return `${s}${u}`;
 }
 
-/** A calendar age with its unit: "12,345 cal BP". */
-export function formatCalBpAge(n: number | null | undefined): string {
-  return n == null ? "—" : `${formatYears(n)} ${UNITS.calBp}`;
-}
-
 /** Radiocarbon ages are conventionally rounded to 5 or 10 years; show the nearest whole year, grouped. */
 export function formatYears(n: number): string {
   return groupThousands(Math.round(n));
@@ -91,7 +86,7 @@ export function luminescenceKa(d: MeasuredAgeFields): { ageKa: number; errorKa: 
   return { ageKa, errorKa: ageKa * rel };
 }
 
-/** "10,250 ± 45 ¹⁴C BP", "> 45,000 ¹⁴C BP", "12.3 ± 0.8 ka"; an em dash when nothing is measured. */
+/** "10,250 ± 45 ¹⁴C yr BP", "> 45,000 ¹⁴C yr BP", "12.3 ± 0.8 ka"; an em dash when nothing is measured. */
 export function formatMeasuredAge(d: MeasuredAgeFields): string {
   if (d.method === "radiocarbon") {
     let age = d.c14AgeYr;
@@ -101,15 +96,14 @@ export function formatMeasuredAge(d: MeasuredAgeFields): string {
       error = d.f14cError != null ? (LIBBY_MEAN_LIFE * d.f14cError) / d.f14c : null;
     }
     if (age == null) return "—";
-    if (d.isLimit) return `> ${formatYears(age)} ¹⁴C BP`;
-    return error != null ? `${formatYears(age)} ± ${formatYears(error)} ¹⁴C BP` : `${formatYears(age)} ¹⁴C BP`;
+    if (d.isLimit) return `> ${formatYears(age)} ${UNITS.c14Age}`;
+    return error != null ? `${formatYears(age)} ± ${formatYears(error)} ${UNITS.c14Age}` : `${formatYears(age)} ${UNITS.c14Age}`;
   }
   if (d.method === "luminescence") {
     const lum = luminescenceKa(d);
     if (!lum) return "—";
-    const digits = lum.ageKa < 10 ? 2 : 1;
-    const age = lum.ageKa.toFixed(digits);
-    return lum.errorKa != null ? `${age} ± ${lum.errorKa.toFixed(digits)} ka` : `${age} ka`;
+    // the error to two significant figures, the age to the same place (as everywhere)
+    return formatValueError(lum.ageKa, lum.errorKa, UNITS.ka);
   }
   return "—";
 }

@@ -92,7 +92,13 @@ const QUIET = new Set(["id", "version", "createdAt", "updatedAt", "created_at", 
 const SHADOWED = new Set(["siteId"]);
 
 export function fieldLabel(field: string): string {
-  return FIELD_WORDS[field]?.label ?? field.replace(/([a-z])([A-Z])/g, "$1 $2").replace(/_/g, " ").toLowerCase();
+  return (
+    FIELD_WORDS[field]?.label ??
+    field
+      .replace(/([a-z])([A-Z])/g, "$1 $2")
+      .replace(/_/g, " ")
+      .toLowerCase()
+  );
 }
 
 /** A stored value in words; empty values read "nothing". */
@@ -140,9 +146,7 @@ export function changeSentences(before: Snapshot, after: Snapshot): string[] {
   const b = flatten(before);
   const a = flatten(after);
   const keys = [...new Set([...Object.keys(b), ...Object.keys(a)])];
-  return keys
-    .filter((k) => !QUIET.has(k) && !SHADOWED.has(k) && !same(b[k], a[k]))
-    .map((k) => changeSentence(k, b[k], a[k]));
+  return keys.filter((k) => !QUIET.has(k) && !SHADOWED.has(k) && !same(b[k], a[k])).map((k) => changeSentence(k, b[k], a[k]));
 }
 
 export type AuditStory = {
@@ -167,4 +171,26 @@ export function auditStory(action: string, actorName: string | null | undefined,
   }
   if (before == null || after == null) return { headline: `${verb} by ${who}`, details: [] };
   return { headline: `${verb} by ${who}`, details: changeSentences(before, after) };
+}
+
+/**
+ * The same story from a field-by-field diff (what the determination page's loader computes):
+ * a nested sample placement reads field by field, a creation or removal is its headline alone.
+ */
+export function storyFromChanges(
+  action: string,
+  actorName: string | null | undefined,
+  changes: { field: string; before: unknown; after: unknown }[],
+  whole: "created" | "removed" | null,
+): AuditStory {
+  const who = actorName ? actorName : "the system";
+  const headline = `${auditActionVerb(action)} by ${who}`;
+  if (whole) return { headline, details: [] };
+  const details = changes.flatMap((c) => {
+    const nested = (v: unknown) => (v && typeof v === "object" && !Array.isArray(v) ? (v as Record<string, unknown>) : null);
+    if (c.field === "sample" && (nested(c.before) || nested(c.after))) return changeSentences(nested(c.before), nested(c.after));
+    if (QUIET.has(c.field)) return [];
+    return [changeSentence(c.field, c.before, c.after)];
+  });
+  return { headline, details };
 }

@@ -99,20 +99,6 @@ export const SIGNAL_LABELS: Record<string, string> = {
   pIRIR: "post-IR IRSL",
 };
 
-export const ROLE_LABELS: Record<string, string> = {
-  contributor: "Contributor",
-  reviewer: "Reviewer",
-  modeller: "Modeller",
-  editor: "Editor",
-};
-
-export const CHECK_SEVERITY_LABELS: Record<string, string> = {
-  pass: "pass",
-  note: "note",
-  warning: "warning",
-  conflict: "conflict",
-};
-
 /** Audit actions as the verb of a sentence: "<verb> by <person>". */
 export const AUDIT_ACTION_VERBS: Record<string, string> = {
   "determination.create": "Submitted",

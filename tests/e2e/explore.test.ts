@@ -84,7 +84,7 @@ describe("exploring the registry", () => {
     const labCode = (await firstLink.textContent())!.trim();
     await Promise.all([page.waitForURL(/\/determinations\/\d+$/), firstLink.click()]);
     await page.getByRole("heading", { level: 1, name: labCode }).waitFor();
-    expect(await page.getByTestId("measured-age").textContent()).toMatch(/¹⁴C BP$/);
+    expect(await page.getByTestId("measured-age").textContent()).toMatch(/¹⁴C yr BP$/);
     await page.getByRole("heading", { name: "Related determinations" }).waitFor();
 
     // The map: wait for the markers, one per dated site.

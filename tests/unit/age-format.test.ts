@@ -13,22 +13,24 @@ const none = {
 };
 
 describe("formatMeasuredAge", () => {
-  it("writes radiocarbon ages with grouped thousands and the ¹⁴C BP unit", () => {
-    expect(formatMeasuredAge({ ...none, method: "radiocarbon", c14AgeYr: 10250.4, c14ErrorYr: 45 })).toBe("10,250 ± 45 ¹⁴C BP");
+  it("writes radiocarbon ages with grouped thousands and the ¹⁴C yr BP unit", () => {
+    expect(formatMeasuredAge({ ...none, method: "radiocarbon", c14AgeYr: 10250.4, c14ErrorYr: 45 })).toBe(
+      "10,250 ± 45 ¹⁴C yr BP",
+    );
   });
 
   it("writes greater-than ages as limits", () => {
-    expect(formatMeasuredAge({ ...none, method: "radiocarbon", c14AgeYr: 45000, isLimit: true })).toBe("> 45,000 ¹⁴C BP");
+    expect(formatMeasuredAge({ ...none, method: "radiocarbon", c14AgeYr: 45000, isLimit: true })).toBe("> 45,000 ¹⁴C yr BP");
   });
 
   it("derives the age from F¹⁴C when only that was given", () => {
     // -8033 ln(0.5) = 5568
-    expect(formatMeasuredAge({ ...none, method: "radiocarbon", f14c: 0.5, f14cError: 0.002 })).toBe("5,568 ± 32 ¹⁴C BP");
+    expect(formatMeasuredAge({ ...none, method: "radiocarbon", f14c: 0.5, f14cError: 0.002 })).toBe("5,568 ± 32 ¹⁴C yr BP");
   });
 
   it("writes luminescence ages in ka from De / dose rate with errors in quadrature", () => {
     const d = { ...none, method: "luminescence", deGy: 24.6, deErrorGy: 1.2, doseRateGyPerKa: 2, doseRateErrorGyPerKa: 0.1 };
-    expect(formatMeasuredAge(d)).toBe("12.3 ± 0.9 ka");
+    expect(formatMeasuredAge(d)).toBe("12.30 ± 0.87 ka");
     expect(luminescenceKa(d)!.errorKa).toBeCloseTo(12.3 * Math.hypot(1.2 / 24.6, 0.1 / 2), 10);
   });
 

@@ -1,4 +1,5 @@
-import { useEffect, useState, type RefObject } from "react";
+import { useState, type RefObject } from "react";
+import { useHydrated } from "#app/utils/use-hydrated.ts";
 
 /*
  * "Download SVG" and "Download PNG" for a picture drawn as inline SVG, so a figure can go
@@ -71,9 +72,8 @@ export function figureFileName(base: string): string {
 }
 
 export function FigureDownloads({ figure, fileName }: { figure: RefObject<HTMLElement | null>; fileName: string }) {
-  const [ready, setReady] = useState(false);
+  const ready = useHydrated();
   const [problem, setProblem] = useState<string | null>(null);
-  useEffect(() => setReady(true), []);
   if (!ready) return null;
   const name = figureFileName(fileName);
   const svg = () => figure.current?.querySelector("svg") ?? null;

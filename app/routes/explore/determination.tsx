@@ -12,7 +12,18 @@ import type { HpdRange } from "#app/db/schema.ts";
 import { determinationDetail, type DeterminationDetail } from "#app/models/registry/determination-page.server.ts";
 import { formatCal, formatCalRange, formatMeasuredAge, formatProbability } from "#app/utils/age-format.ts";
 import { notFound } from "#app/utils/http.server.ts";
-import { CHECK_LABELS, CONSTRAINT_KIND_LABELS, FLAG_LABELS, STATUS_LABELS } from "#app/utils/labels.ts";
+import {
+  calendarModelWords,
+  CHECK_LABELS,
+  CONSTRAINT_KIND_LABELS,
+  conversionFactorWords,
+  curveWords,
+  FLAG_LABELS,
+  METHOD_LABELS,
+  SIGNAL_LABELS,
+  STATUS_LABELS,
+} from "#app/utils/labels.ts";
+import { storyFromChanges } from "#app/utils/audit-sentences.ts";
 
 export const meta: Route.MetaFunction = ({ data }) => [
   { title: data ? `${data.detail.determination.labCode} · Thawline` : "Determination · Thawline" },
@@ -47,12 +58,12 @@ export default function DeterminationPage({ loaderData }: Route.ComponentProps) 
         <span className="rounded border border-rule px-2 text-sm">{STATUS_LABELS[d.status]}</span>
       </header>
       <p className="mt-1 text-muted">
-        {d.method}
+        {METHOD_LABELS[d.method] ?? d.method}
         {d.signal ? ` (${d.signal})` : ""} on {detail.sample.material} from{" "}
         <Link to={`/sites/${detail.site.id}`}>{detail.site.name}</Link>, {CONSTRAINT_KIND_LABELS[d.constraintKind]} constraint
       </p>
 
-      <div className="mt-8 grid gap-6 lg:grid-cols-2">
+      <div className="mt-8 grid grid-flow-row-dense gap-6 lg:grid-cols-2">
         <section className="card" aria-labelledby="measurement-heading">
           <h2 id="measurement-heading">Measurement</h2>
           <div className="mt-3">
@@ -138,7 +149,7 @@ export default function DeterminationPage({ loaderData }: Route.ComponentProps) 
 
 function MeasurementFields({ d }: { d: Detail["determination"] }) {
   const common: [string, React.ReactNode][] = [
-    ["Method", d.method],
+    ["Method", METHOD_LABELS[d.method] ?? d.method],
     ["Constraint kind", CONSTRAINT_KIND_LABELS[d.constraintKind]],
   ];
   if (d.method === "radiocarbon") {
@@ -156,9 +167,9 @@ function MeasurementFields({ d }: { d: Detail["determination"] }) {
           ["δ¹³C-normalised", d.ageNormalised ? "yes (conventional age)" : "no (normalised on calibration)"],
           ["Greater-than age", d.isLimit ? "yes — a limit, not calibrated" : "no"],
           ["Pretreatment", d.pretreatment],
-          ["Curve", d.curveName],
-          ["ΔR", showWithError(d.deltaRYr, d.deltaRErrorYr, "yr")],
-          ["ΔR derived against", d.deltaRCurve],
+          ["Curve", curveWords(d.curveName)],
+          ["ΔR", showWithError(d.deltaRYr, d.deltaRErrorYr, "¹⁴C yr")],
+          ["ΔR derived against", d.deltaRCurve ? curveWords(d.deltaRCurve) : null],
         ]}
       />
     );
@@ -169,7 +180,7 @@ function MeasurementFields({ d }: { d: Detail["determination"] }) {
         items={[
           ...common,
           ["Age", formatMeasuredAge(d)],
-          ["Signal", d.signal],
+          ["Signal", d.signal ? (SIGNAL_LABELS[d.signal] ?? d.signal) : null],
           ["Mineral", d.mineral],
           ["De", showWithError(d.deGy, d.deErrorGy, "Gy")],
           ["Dose rate", showWithError(d.doseRateGyPerKa, d.doseRateErrorGyPerKa, "Gy/ka")],
@@ -180,7 +191,7 @@ function MeasurementFields({ d }: { d: Detail["determination"] }) {
           ["Grain size", showNumber(d.grainSizeUm, "µm")],
           ["Burial depth", showNumber(d.burialDepthM, "m")],
           ["Density", showNumber(d.densityGPerCm3, "g/cm³")],
-          ["Conversion factors", d.conversionFactors],
+          ["Conversion factors", d.conversionFactors ? conversionFactorWords(d.conversionFactors) : null],
           ["Year of measurement", d.measurementYear != null ? String(d.measurementYear) : null],
           ["Aliquots", showNumber(d.aliquots)],
           ["Age model", d.ageModel],
@@ -210,7 +221,7 @@ function CalibrationSection({ detail, plot }: { detail: Detail; plot: Route.Comp
   const cal = detail.calibration;
   const d = detail.determination;
   return (
-    <section className="card" aria-labelledby="calibration-heading" data-testid="calibration-summary">
+    <section className="card lg:col-span-2" aria-labelledby="calibration-heading" data-testid="calibration-summary">
       <h2 id="calibration-heading">Calendar age</h2>
       <div className="mt-3">
         {cal ? (
@@ -219,7 +230,7 @@ function CalibrationSection({ detail, plot }: { detail: Detail; plot: Route.Comp
           ) : (
             <DetailList
               items={[
-                ["Curve", cal.curveLabel],
+                ["Curve", calendarModelWords(cal.curveLabel)],
                 ["Median", cal.medianCalBp != null ? `${formatCal(cal.medianCalBp)} cal BP` : null],
                 ["68.3 % range", <RangeList ranges={cal.hpd68} />],
                 ["95.4 % range", <RangeList ranges={cal.hpd95} />],
@@ -234,11 +245,19 @@ function CalibrationSection({ detail, plot }: { detail: Detail; plot: Route.Comp
         )}
         {plot ? (
           <div className="mt-4">
-            <CalibrationPlot {...plot} heading={d.labCode} compact />
+            <CalibrationPlot {...plot} heading={d.labCode} />
           </div>
         ) : d.method === "luminescence" ? (
           <div className="mt-4">
-            <LuminescenceAge fields={d} />
+            <LuminescenceAge
+              fields={d}
+              heading={d.labCode}
+              summary={
+                cal && !cal.error && cal.medianCalBp != null
+                  ? { medianCalBp: cal.medianCalBp, hpd68: cal.hpd68 ?? [], hpd95: cal.hpd95 ?? [] }
+                  : null
+              }
+            />
           </div>
         ) : null}
         {detail.earlierCalibrations.length > 0 ? (
@@ -247,7 +266,7 @@ function CalibrationSection({ detail, plot }: { detail: Detail; plot: Route.Comp
             <ul className="mt-2 text-sm">
               {detail.earlierCalibrations.map((c) => (
                 <li key={c.id}>
-                  {c.curveLabel}: {c.medianCalBp != null ? `${formatCal(c.medianCalBp)} cal BP` : "no result"}{" "}
+                  {calendarModelWords(c.curveLabel)}: {c.medianCalBp != null ? `${formatCal(c.medianCalBp)} cal BP` : "no result"}{" "}
                   <span className="text-muted">({formatTime(c.createdAt)})</span>
                 </li>
               ))}
@@ -402,12 +421,6 @@ function SiblingsSection({ detail }: { detail: Detail }) {
   );
 }
 
-function showValue(v: unknown): string {
-  if (v === null || v === undefined || v === "") return "—";
-  if (typeof v === "string" || typeof v === "number" || typeof v === "boolean") return String(v);
-  return JSON.stringify(v);
-}
-
 function HistorySection({ history }: { history: DeterminationDetail["history"] }) {
   return (
     <section className="mt-10" aria-labelledby="history-heading">
@@ -416,50 +429,26 @@ function HistorySection({ history }: { history: DeterminationDetail["history"] }
         <p className="mt-2 text-muted">No recorded changes.</p>
       ) : (
         <ol className="mt-3 space-y-4" data-testid="audit-history">
-          {history.map((h) => (
-            <li key={h.id} className="border-l-2 border-ice-300 pl-4">
-              <p>
-                <span className="font-semibold">{h.action}</span> by {h.actorName ?? "the system"}{" "}
-                <span className="text-muted">on {formatTime(h.at)}</span>
-              </p>
-              {h.whole ? (
-                <p className="text-sm text-muted">
-                  {h.whole === "created" ? "Record created" : "Record removed"} ({h.changes.length} fields).
+          {history.map((h) => {
+            const story = storyFromChanges(h.action, h.actorName, h.changes, h.whole);
+            return (
+              <li key={h.id} className="border-l-2 border-ice-300 pl-4">
+                <p>
+                  <span className="font-semibold">{story.headline}</span>{" "}
+                  <span className="text-muted">on {formatTime(h.at)}</span>
                 </p>
-              ) : h.changes.length === 0 ? (
-                <p className="text-sm text-muted">No field changed.</p>
-              ) : (
-                <table className="mt-1 text-sm">
-                  <thead className="sr-only">
-                    <tr>
-                      <th scope="col">Field</th>
-                      <th scope="col">Before</th>
-                      <th scope="col">Changed to</th>
-                      <th scope="col">After</th>
-                    </tr>
-                  </thead>
-                  <tbody>
-                    {h.changes.map((c) => (
-                      <tr key={c.field}>
-                        <th scope="row" className="pr-3 text-left font-mono font-normal text-muted">
-                          {c.field}
-                        </th>
-                        <td className="pr-2">
-                          <del className="text-muted">{showValue(c.before)}</del>
-                        </td>
-                        <td aria-hidden="true" className="pr-2 text-muted">
-                          →
-                        </td>
-                        <td>
-                          <ins className="no-underline">{showValue(c.after)}</ins>
-                        </td>
-                      </tr>
+                {story.details.length > 0 ? (
+                  <ul className="mt-1 list-disc pl-5 text-sm">
+                    {story.details.map((line, k) => (
+                      <li key={k}>{line}</li>
                     ))}
-                  </tbody>
-                </table>
-              )}
-            </li>
-          ))}
+                  </ul>
+                ) : !h.whole ? (
+                  <p className="text-sm text-muted">No field changed.</p>
+                ) : null}
+              </li>
+            );
+          })}
         </ol>
       )}
     </section>
