@@ -30,7 +30,7 @@ describe("formatMeasuredAge", () => {
 
   it("writes luminescence ages in ka from De / dose rate with errors in quadrature", () => {
     const d = { ...none, method: "luminescence", deGy: 24.6, deErrorGy: 1.2, doseRateGyPerKa: 2, doseRateErrorGyPerKa: 0.1 };
-    expect(formatMeasuredAge(d)).toBe("12.30 ± 0.87 ka");
+    expect(formatMeasuredAge(d)).toBe("12.30 ± 0.86 ka");
     expect(luminescenceKa(d)!.errorKa).toBeCloseTo(12.3 * Math.hypot(1.2 / 24.6, 0.1 / 2), 10);
   });
 
