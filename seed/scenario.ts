@@ -5,7 +5,9 @@
 // Everything here is invented and plainly fictional.
 
 import { preparedCurveAt, type PreparedCurve } from "#app/science/curve.ts";
-import { doseRate, type ConversionFactorKey } from "#app/science/luminescence.ts";
+import { type ConversionFactorKey } from "#app/science/luminescence.ts";
+import { doseRateFromFields } from "#app/science/dose-rate-fields.ts";
+import type { FullDoseRate } from "#app/science/dose-rate.ts";
 import { f14cFromAge } from "#app/science/radiocarbon.ts";
 import { buildLandIndex, type Bounds, type LandGeometry, type LandIndex } from "./land.ts";
 import { authorList, initials, siteName } from "./names.ts";
@@ -775,7 +777,7 @@ export function generateScenario(inputs: ScenarioInputs, options: ScenarioOption
       const base = blankDetermination(sampleIndex, labIndex, site.publicationIndex, s);
       base.labCode = `${DEMO_LABS[labIndex].codePrefix}-${nextNumber[labIndex]}`;
       base.submittedDaysAgo = simRng.int(1, 900);
-      if (lum) simulateLuminescence(simRng, base, s);
+      if (lum) simulateLuminescence(simRng, base, s, site);
       else simulateRadiocarbon(simRng, base, s, site, DEMO_LABS[labIndex], inputs);
       determinations.push(base);
     }
@@ -1046,7 +1048,7 @@ function simulateRadiocarbon(
  * Luminescence backwards: De = age (ka, before the year of measurement) × dose rate, plus
  * measurement scatter; a partially bleached sample carries a residual dose on top.
  */
-function simulateLuminescence(rng: Rng, d: ScenarioDetermination, s: PlannedSample) {
+function simulateLuminescence(rng: Rng, d: ScenarioDetermination, s: PlannedSample, site: ScenarioSite) {
   const quartz = s.material === "quartz";
   const year = rng.int(2005, 2024);
   const ageKa = (s.trueAgeCalBp + (year - 1950)) / 1000;
@@ -1062,21 +1064,29 @@ function simulateLuminescence(rng: Rng, d: ScenarioDetermination, s: PlannedSamp
     let u = 0;
     let th = 0;
     let w = 0;
-    let br = null as ReturnType<typeof doseRate> | null;
+    const grain = rng.pick([150, 180, 212, 250]);
+    let br = null as FullDoseRate | null;
     for (let i = 0; i < 50; i++) {
       k = round(rng.uniform(0.8, 2.3), 2);
       u = round(rng.uniform(0.7, 2.8), 2);
       th = round(rng.uniform(2.5, 9.5), 2);
       w = round(rng.uniform(0.05, 0.25), 3);
-      br = doseRate({
-        k: { value: k, error: 0.04 * k },
-        u: { value: u, error: 0.07 * u },
-        th: { value: th, error: 0.06 * th },
-        water: { value: w, error: 0.05 },
-        burial: { depthM, density },
-        factors,
+      // The stored path's own reading of the fields the row keeps, so the page recomputes the same.
+      const r = doseRateFromFields({
+        signal: "OSL",
+        mineral: "quartz",
+        kPercent: k,
+        uPpm: u,
+        thPpm: th,
+        waterContentFraction: w,
+        grainSizeUm: grain,
+        burialDepthM: depthM,
+        densityGPerCm3: density,
+        conversionFactors: factors,
+        site: { latitude: site.latitude, longitude: site.longitude, elevationM: site.elevationM },
       });
-      if (br.total >= 1.5 && br.total <= 3.5) break;
+      br = r?.ok ? r.result : null;
+      if (br && br.total >= 1.5 && br.total <= 3.5) break;
     }
     rate = br!.total;
     rateError = br!.totalError;
@@ -1086,7 +1096,7 @@ function simulateLuminescence(rng: Rng, d: ScenarioDetermination, s: PlannedSamp
     d.waterContentFraction = w;
     d.burialDepthM = depthM;
     d.densityGPerCm3 = density;
-    d.grainSizeUm = rng.pick([150, 180, 212, 250]);
+    d.grainSizeUm = grain;
   } else {
     rate = rng.uniform(1.5, 3.5);
     rateError = rate * rng.uniform(0.04, 0.07);

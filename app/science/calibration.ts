@@ -91,7 +91,7 @@ export function beyondCurve(prepared: PreparedCurve, input: CalibrationInput): s
     const fOld = ageToF(lim.max);
     const sCurve = (fOld * Math.hypot(prepared.maxC14Sigma, drs)) / LIBBY;
     if (input.f14c! + REACH_SD * Math.hypot(input.f14cError!, sCurve) < fOld) {
-      return `F14C ${input.f14c!.toPrecision(3)} ± ${input.f14cError!.toPrecision(2)} cannot overlap the curve: even F14C + 2σ is below ${name}'s oldest value (${fOld.toPrecision(3)}); ${covers}.`;
+      return `F14C ${input.f14c!.toPrecision(3)} ± ${input.f14cError!.toPrecision(2)} is beyond the curve and cannot overlap it: even F14C + 2σ is below ${name}'s oldest value (${fOld.toPrecision(3)}); ${covers}.`;
     }
     return null;
   }

@@ -1,4 +1,5 @@
 import { beforeAll, describe, expect, it } from "vitest";
+import { doseRateFromFields } from "#app/science/dose-rate-fields.ts";
 import { getDb } from "#app/db/client.server.ts";
 import * as submitPage from "#app/routes/contribute/submit.tsx";
 import * as editPage from "#app/routes/contribute/submission-edit.tsx";
@@ -442,6 +443,29 @@ describe("edit and withdraw", () => {
     const after = detRow(lum) as Record<string, unknown>;
     expect(after).toMatchObject({ version: 2, k_percent: 2.1, conversion_factors: "guerin2011" });
     expect(after.dose_rate_gy_per_ka as number).toBeGreaterThan(rateBefore);
+  });
+
+  it("stores a computed dose rate with every term and every error propagated", async () => {
+    const lum = idFrom((await submit(luminescenceForm({ elevation_m: "320" }))).location);
+    const row = detRow(lum) as Record<string, number>;
+    // The same fields through the science on their own: grain size, Rb, etch and the site's cosmic scaling.
+    const expected = doseRateFromFields({
+      signal: "OSL",
+      mineral: "quartz",
+      kPercent: 1.6,
+      uPpm: 1.2,
+      thPpm: 4.5,
+      waterContentFraction: 0.15,
+      grainSizeUm: 180,
+      burialDepthM: 1.5,
+      densityGPerCm3: 1.8,
+      site: { latitude: 57.9402, longitude: -66.1037, elevationM: 320 },
+    });
+    if (!expected?.ok) throw new Error("expected a dose rate");
+    expect(row.dose_rate_gy_per_ka).toBeCloseTo(expected.result.total, 9);
+    expect(row.dose_rate_error_gy_per_ka).toBeCloseTo(expected.result.totalError, 9);
+    // No longer the cosmic-only allowance (well under 2 %): the concentrations' and water's errors count.
+    expect(row.dose_rate_error_gy_per_ka / row.dose_rate_gy_per_ka).toBeGreaterThan(0.04);
   });
 
   it("keeps the conversion factors recorded with a lab's own dose rate when the dose rate is not changed", async () => {

@@ -1,6 +1,7 @@
 import { afterAll, beforeAll, describe, expect, it, vi } from "vitest";
 import { prepareCurve, preparedCurveAt, type PreparedCurve } from "#app/science/curve.ts";
-import { doseRate, luminescenceAgeToCalBp, type ConversionFactorKey } from "#app/science/luminescence.ts";
+import { luminescenceAgeToCalBp } from "#app/science/luminescence.ts";
+import { doseRateFromFields } from "#app/science/dose-rate-fields.ts";
 import { loadLand } from "#seed/land.server.ts";
 import { pointInRing } from "#seed/retreat.ts";
 import {
@@ -262,15 +263,26 @@ describe("simulated determinations", () => {
     const withComponents = full.determinations.filter((d) => d.kPercent !== null);
     expect(withComponents.length).toBeGreaterThan(100);
     for (const d of withComponents) {
-      const r = doseRate({
-        k: { value: d.kPercent!, error: 0.04 * d.kPercent! },
-        u: { value: d.uPpm!, error: 0.07 * d.uPpm! },
-        th: { value: d.thPpm!, error: 0.06 * d.thPpm! },
-        water: { value: d.waterContentFraction!, error: 0.05 },
-        burial: { depthM: d.burialDepthM!, density: d.densityGPerCm3! },
-        factors: d.conversionFactors as ConversionFactorKey,
+      const site = full.sites[full.samples[d.sampleIndex].siteIndex];
+      const r = doseRateFromFields({
+        signal: d.signal,
+        mineral: d.mineral,
+        kPercent: d.kPercent,
+        uPpm: d.uPpm,
+        thPpm: d.thPpm,
+        waterContentFraction: d.waterContentFraction,
+        grainSizeUm: d.grainSizeUm,
+        burialDepthM: d.burialDepthM,
+        densityGPerCm3: d.densityGPerCm3,
+        conversionFactors: d.conversionFactors,
+        site: { latitude: site.latitude, longitude: site.longitude, elevationM: site.elevationM },
       });
-      expect(r.total).toBeCloseTo(d.doseRateGyPerKa!, 9);
+      expect(r?.ok).toBe(true);
+      if (!r?.ok) continue;
+      expect(r.result.total).toBeCloseTo(d.doseRateGyPerKa!, 9);
+      expect(r.result.totalError).toBeCloseTo(d.doseRateErrorGyPerKa!, 9);
+      // Every input's error propagated: a field sample's dose rate is not known to better than ~3 %.
+      expect(d.doseRateErrorGyPerKa! / d.doseRateGyPerKa!).toBeGreaterThan(0.03);
     }
   });
 

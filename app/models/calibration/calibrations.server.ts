@@ -1,7 +1,8 @@
 import { and, eq, inArray } from "drizzle-orm";
 import type { Db } from "#app/db/client.server.ts";
 import { calibrations, curves, determinations, type HpdRange } from "#app/db/schema.ts";
-import { calibrate, CalibrationError } from "#app/science/calibration.ts";
+import { calibrate, CalibrationError, type CalibrationInput } from "#app/science/calibration.ts";
+import { appliedOffset } from "#app/science/reservoir.ts";
 import { normalDensity, summariseDensity, type CalendarDensity, type DensitySummary } from "#app/science/density.ts";
 import { luminescenceAge, luminescenceAgeToCalBp } from "#app/science/luminescence.ts";
 import { interpretRadiocarbon } from "#app/science/radiocarbon.ts";
@@ -78,6 +79,31 @@ export function radiocarbonAgeFields(
   };
 }
 
+/**
+ * What calibration is given for a measurement on a curve: the age (and F14C, used near
+ * background), the curve's offset (ΔR on a marine curve), and the curve's name for messages.
+ * calendarOutcome and the upload check share it, so both refuse the same measurements.
+ */
+export function calibrationInputFor(
+  curve: CurveRow,
+  d: Pick<MeasurementFields, "deltaRYr" | "deltaRErrorYr">,
+  interpreted: { age: number; error: number; f14c: number; f14cError: number },
+): CalibrationInput {
+  const offset = appliedOffset(curve.kind === "marine" ? "marine" : "atmospheric", {
+    deltaR: d.deltaRYr,
+    deltaRError: d.deltaRErrorYr,
+  });
+  return {
+    age: interpreted.age,
+    error: interpreted.error,
+    f14c: interpreted.f14c,
+    f14cError: interpreted.f14cError,
+    deltaR: offset.deltaR,
+    deltaRError: offset.deltaRError,
+    curveLabel: curve.displayName,
+  };
+}
+
 export function curveLabel(curve: CurveRow, deltaR?: number | null, deltaRError?: number | null): string {
   const base = `${curve.displayName} (${curve.version})`;
   if (curve.kind !== "marine") return base;
@@ -107,13 +133,7 @@ export function calendarOutcome(
     const interpreted = interpretMeasurement(d);
     if (interpreted.kind !== "age") return { ok: false, curve, label, error: interpreted.message };
     try {
-      const marine = curve.kind === "marine";
-      const result = calibrate(preparedCurve(db, curve.id), {
-        age: interpreted.age,
-        error: interpreted.error,
-        deltaR: marine ? (d.deltaRYr ?? 0) : 0,
-        deltaRError: marine ? (d.deltaRErrorYr ?? 0) : 0,
-      });
+      const result = calibrate(preparedCurve(db, curve.id), calibrationInputFor(curve, d, interpreted));
       return { ok: true, curve, label, summary: result, density: result.density };
     } catch (e) {
       if (e instanceof CalibrationError) return { ok: false, curve, label, error: e.message };

@@ -9,7 +9,8 @@ import type { SQLiteTable } from "drizzle-orm/sqlite-core";
 import type { Db } from "#app/db/client.server.ts";
 import { auditLog, determinations, labs, publications, samples, sites, type Method } from "#app/db/schema.ts";
 import type { MeasurementFields } from "#app/models/calibration/calibrations.server.ts";
-import { DEFAULT_CONVERSION_FACTORS, doseRate } from "#app/science/luminescence.ts";
+import { doseRateFromFields, type DoseRateFields } from "#app/science/dose-rate-fields.ts";
+import { DEFAULT_CONVERSION_FACTORS } from "#app/science/luminescence.ts";
 import type { DeterminationRow as ValidatedRow } from "#app/utils/determination-input.ts";
 
 export type NewLab = typeof labs.$inferInsert;
@@ -63,21 +64,33 @@ export function sampleValues(row: ValidatedRow) {
   } satisfies Partial<NewSample>;
 }
 
-/** The dose rate a luminescence row is calibrated with: given, or computed from K, U, Th. */
+/** A row's dose-rate fields as the one reading of them (dose-rate-fields.ts) takes them. */
+export function rowDoseRateFields(row: ValidatedRow): DoseRateFields {
+  return {
+    signal: row.signal ?? null,
+    mineral: row.mineral ?? null,
+    kPercent: row.k_percent ?? null,
+    uPpm: row.u_ppm ?? null,
+    thPpm: row.th_ppm ?? null,
+    waterContentFraction: row.water_content ?? null,
+    grainSizeUm: row.grain_size_um ?? null,
+    burialDepthM: row.burial_depth_m ?? null,
+    densityGPerCm3: row.density_g_cm3 ?? null,
+    site: { latitude: row.latitude, longitude: row.longitude, elevationM: row.elevation_m ?? null },
+  };
+}
+
+/**
+ * The dose rate a luminescence row is calibrated with: given, or computed from K, U, Th and
+ * water with every term and every error (defaults assumed where the lab gave none).
+ */
 export function rowDoseRate(row: ValidatedRow): { value: number; error: number; computed: boolean } | null {
   if (row.dose_rate_gy_per_ka != null) {
     return { value: row.dose_rate_gy_per_ka, error: row.dose_rate_error_gy_per_ka ?? 0, computed: false };
   }
-  if (row.k_percent == null || row.u_ppm == null || row.th_ppm == null || row.water_content == null) return null;
-  if (row.burial_depth_m == null || row.density_g_cm3 == null) return null;
-  const r = doseRate({
-    k: { value: row.k_percent, error: 0 },
-    u: { value: row.u_ppm, error: 0 },
-    th: { value: row.th_ppm, error: 0 },
-    water: { value: row.water_content, error: 0 },
-    burial: { depthM: row.burial_depth_m, density: row.density_g_cm3 },
-  });
-  return { value: r.total, error: r.totalError, computed: true };
+  const r = doseRateFromFields(rowDoseRateFields(row));
+  if (!r?.ok) return null;
+  return { value: r.result.total, error: r.result.totalError, computed: true };
 }
 
 /**

@@ -26,10 +26,14 @@ import {
   type UploadRowError,
 } from "#app/db/schema.ts";
 import { audit } from "#app/models/audit.server.ts";
-import { calibrateDeterminations, interpretMeasurement } from "#app/models/calibration/calibrations.server.ts";
+import {
+  calibrateDeterminations,
+  calibrationInputFor,
+  interpretMeasurement,
+} from "#app/models/calibration/calibrations.server.ts";
 import { runChecksFor } from "#app/models/review/check-run.server.ts";
 import { activeCurve, listCurves, preparedCurve, type CurveRow } from "#app/models/calibration/curves.server.ts";
-import { curveAgeLimits } from "#app/science/calibration.ts";
+import { beyondCurve } from "#app/science/calibration.ts";
 import {
   auditSnapshot,
   determinationValues,
@@ -409,7 +413,7 @@ function loadRegistry(db: Db, labCodes: string[]): Registry {
  * Can the registry give this row a calendar age? Limits and post-bomb ages are stored without
  * one (the checks report them); anything else that would fail at calibration — above all an age
  * beyond the curve — is a row error. Radiocarbon rows get the test `calibrate` itself applies
- * (curveAgeLimits after ΔR) and luminescence rows the age formula, without building a calendar
+ * (beyondCurve, with the same input calibrate gets) and luminescence rows the age formula, without building a calendar
  * density (calendarOutcome would, and that dominated the time of a 5,500-row file).
  */
 function calendarProblem(db: Db, row: DeterminationRow, curveFor: (n: string) => CurveRow | undefined): RowIssue | null {
@@ -421,16 +425,8 @@ function calendarProblem(db: Db, row: DeterminationRow, curveFor: (n: string) =>
     if (interpreted.kind !== "age") return null;
     const curve = curveFor(fields.curveName ?? "intcal20");
     if (!curve) return { column: "curve", message: `No active curve named "${fields.curveName}".` };
-    const marine = curve.kind === "marine";
-    const deltaR = marine ? (row.delta_r ?? 0) : 0;
-    const limits = curveAgeLimits(preparedCurve(db, curve.id), deltaR);
-    if (interpreted.age < limits.min || interpreted.age > limits.max) {
-      const shown = Math.round(interpreted.age).toLocaleString("en-GB");
-      return {
-        column: ageColumn,
-        message: `${shown} 14C yr BP is beyond the curve: ${curve.displayName} covers ${Math.round(limits.min).toLocaleString("en-GB")}–${Math.round(limits.max).toLocaleString("en-GB")} 14C yr BP${deltaR ? ` with ΔR ${deltaR}` : ""} (${curve.calMinBp.toLocaleString("en-GB")}–${curve.calMaxBp.toLocaleString("en-GB")} cal BP).`,
-      };
-    }
+    const refusal = beyondCurve(preparedCurve(db, curve.id), calibrationInputFor(curve, fields, interpreted));
+    if (refusal) return { column: ageColumn, message: refusal };
     return null;
   }
   if (fields.deGy == null || fields.doseRateGyPerKa == null) return null;

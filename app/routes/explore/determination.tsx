@@ -250,7 +250,7 @@ function CalibrationSection({ detail, plot }: { detail: Detail; plot: Route.Comp
         ) : d.method === "luminescence" ? (
           <div className="mt-4">
             <LuminescenceAge
-              fields={d}
+              fields={{ ...d, site: detail.site }}
               heading={d.labCode}
               summary={
                 cal && !cal.error && cal.medianCalBp != null
