@@ -486,7 +486,10 @@ export const releases = sqliteTable(
     version: text("version").notNull().default("1"),
     description: text("description"),
     filter: text("filter", { mode: "json" }).$type<Record<string, unknown>>().notNull(),
-    curveVersions: text("curve_versions", { mode: "json" }).$type<string[]>().notNull(),
+    /** The curves the items were calibrated on, with their citations and how many items use each. */
+    curveVersions: text("curve_versions", { mode: "json" })
+      .$type<{ curve: string; version: string | null; citation: string | null; doi: string | null; count: number }[]>()
+      .notNull(),
     itemCount: integer("item_count").notNull(),
     checksum: text("checksum").notNull(),
     /** Name of the canonical serialisation the checksum was computed by (see docs/releases-checksum.md). */
@@ -515,6 +518,9 @@ export const releaseItems = sqliteTable(
       .references(() => determinations.id),
     /** The row exactly as released (measurement, calibration summary, grade, flags); never updated. */
     frozen: text("frozen", { mode: "json" }).$type<Record<string, unknown>>().notNull(),
+    /** A copy of the calendar density as released (the registry's calibration may later be replaced). */
+    densityStartCalBp: integer("density_start_cal_bp"),
+    density: blob("density", { mode: "buffer" }),
   },
   (t) => [primaryKey({ columns: [t.releaseId, t.determinationId] }), index("release_items_det_idx").on(t.determinationId)],
 );

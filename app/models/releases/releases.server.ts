@@ -1,0 +1,205 @@
+// Releases: a frozen, named, citable constraint set. Publishing copies every selected item (and
+// its calendar density) into release_items in one transaction; nothing here ever updates or
+// deletes a release or its items, so edits, regrades and withdrawals in the registry leave
+// published releases exactly as they were.
+import { createHash } from "node:crypto";
+import type { Db } from "#app/db/client.server.ts";
+import { CHECKSUM_RULE, releaseChecksum, roundForFreezing } from "#app/models/releases/canonical.server.ts";
+import { usageOf, type CurveUse } from "#app/models/releases/downloads.server.ts";
+import { densitiesFor, selectionIds, selectionItems, type ConstraintItem } from "#app/models/releases/selection.server.ts";
+import { filterRecord, type ConstraintFilter } from "#app/utils/constraint-filter.ts";
+
+export type DensityRef = { calibration_id: number; start_cal_bp: number; step: 1; length: number; sha256: string };
+export type FrozenItem = ConstraintItem & { density_ref: DensityRef | null };
+
+export type ReleaseRow = {
+  id: number;
+  slug: string;
+  name: string;
+  version: string;
+  description: string | null;
+  filter: Record<string, unknown>;
+  curves: CurveUse[];
+  itemCount: number;
+  checksum: string;
+  checksumRule: string;
+  citation: string;
+  previousReleaseId: number | null;
+  publishedAt: number;
+  publishedBy: string;
+};
+
+export class PublishRefused extends Error {
+  constructor(
+    message: string,
+    readonly field: "name" | "version" | "filter" | "description",
+  ) {
+    super(message);
+  }
+}
+
+export function slugFor(name: string, version: string): string {
+  const part = (s: string) =>
+    s
+      .normalize("NFKD")
+      .replace(/[\u0300-\u036f]/g, "")
+      .toLowerCase()
+      .replace(/[^a-z0-9]+/g, "-")
+      .replace(/^-+|-+$/g, "")
+      .slice(0, 60);
+  return `${part(name) || "release"}-v${part(version) || "1"}`;
+}
+
+export function citationText(r: { name: string; version: string; publishedAt: Date; count: number; checksum: string; url: string }): string {
+  const year = r.publishedAt.getUTCFullYear();
+  const day = r.publishedAt.toISOString().slice(0, 10);
+  return (
+    `Thawline contributors (${year}). ${r.name}, version ${r.version}: ${r.count.toLocaleString("en")} ice-free constraints ` +
+    `[data set]. Thawline registry, published ${day}. ${r.url} (SHA-256 ${r.checksum}). ` +
+    "Please also cite the source publications listed with the release."
+  );
+}
+
+export type PublishInput = {
+  name: string;
+  version: string;
+  description?: string | null;
+  filter: ConstraintFilter;
+  userId: number;
+  constraintSetId?: number | null;
+  /** Absolute URL of the release page without the slug, e.g. https://host/releases/ */
+  baseUrl: string;
+  now?: Date;
+};
+
+/** Publishes a release in one transaction; refuses an empty selection or a name and version already used. */
+export function publishRelease(db: Db, input: PublishInput): { id: number; slug: string; checksum: string; count: number } {
+  const name = input.name.trim();
+  const version = input.version.trim() || "1";
+  if (!name) throw new PublishRefused("Give the release a name.", "name");
+  const slug = slugFor(name, version);
+  const sqlite = db.$client;
+  return sqlite.transaction(() => {
+    const clash = sqlite.prepare("select slug from releases where (name = ? and version = ?) or slug = ?").get(name, version, slug);
+    if (clash) throw new PublishRefused(`A release named “${name}” version ${version} already exists; give a new version.`, "version");
+    const rows = [...selectionItems(db, selectionIds(db, input.filter))];
+    if (rows.length === 0) throw new PublishRefused("The filter selects no determinations; a release cannot be empty.", "filter");
+    const blobs = densitiesFor(db, rows.map((r) => r.calibrationId));
+    const frozen = rows.map((r) => {
+      const b = blobs.get(r.calibrationId);
+      const ref: DensityRef | null = b
+        ? {
+            calibration_id: r.calibrationId,
+            start_cal_bp: b.start,
+            step: 1,
+            length: b.blob.byteLength / 4,
+            sha256: createHash("sha256").update(b.blob).digest("hex"),
+          }
+        : null;
+      return { item: roundForFreezing({ ...r.item, density_ref: ref }) as FrozenItem, density: b ?? null };
+    });
+    const checksum = releaseChecksum(frozen.map((f) => f.item));
+    const now = input.now ?? new Date();
+    const { curves } = usageOf(db, rows);
+    const previous = sqlite
+      .prepare(
+        `select id from releases order by (name = ?) desc, published_at desc, id desc limit 1`,
+      )
+      .get(name) as { id: number } | undefined;
+    const filter: Record<string, unknown> = filterRecord(input.filter);
+    if (input.filter.geometry) filter.geometry = input.filter.geometry;
+    const citation = citationText({ name, version, publishedAt: now, count: rows.length, checksum, url: `${input.baseUrl}${slug}` });
+    const { lastInsertRowid } = sqlite
+      .prepare(
+        `insert into releases (slug, name, version, description, filter, curve_versions, item_count, checksum, checksum_rule,
+           citation, previous_release_id, constraint_set_id, created_by, published_at)
+         values (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)`,
+      )
+      .run(
+        slug,
+        name,
+        version,
+        input.description?.trim() || null,
+        JSON.stringify(filter),
+        JSON.stringify(curves),
+        rows.length,
+        checksum,
+        CHECKSUM_RULE,
+        citation,
+        previous?.id ?? null,
+        input.constraintSetId ?? null,
+        input.userId,
+        now.getTime(),
+      );
+    const releaseId = Number(lastInsertRowid);
+    const insert = sqlite.prepare(
+      "insert into release_items (release_id, determination_id, frozen, density_start_cal_bp, density) values (?, ?, ?, ?, ?)",
+    );
+    for (const f of frozen) insert.run(releaseId, f.item.id, JSON.stringify(f.item), f.density?.start ?? null, f.density?.blob ?? null);
+    sqlite
+      .prepare("insert into audit_log (actor_id, action, entity, entity_id, after) values (?, 'release.publish', 'release', ?, ?)")
+      .run(input.userId, String(releaseId), JSON.stringify({ slug, name, version, count: rows.length, checksum }));
+    return { id: releaseId, slug, checksum, count: rows.length };
+  })();
+}
+
+const RELEASE_SELECT = `select r.id, r.slug, r.name, r.version, r.description, r.filter, r.curve_versions as curves,
+    r.item_count as itemCount, r.checksum, r.checksum_rule as checksumRule, r.citation,
+    r.previous_release_id as previousReleaseId, r.published_at as publishedAt, u.name as publishedBy
+  from releases r join users u on u.id = r.created_by`;
+
+type RawRelease = Omit<ReleaseRow, "filter" | "curves"> & { filter: string; curves: string };
+const parseRelease = (r: RawRelease): ReleaseRow => ({
+  ...r,
+  filter: JSON.parse(r.filter) as Record<string, unknown>,
+  curves: JSON.parse(r.curves) as CurveUse[],
+});
+
+export function listReleases(db: Db): ReleaseRow[] {
+  return (db.$client.prepare(`${RELEASE_SELECT} order by r.published_at desc, r.id desc`).all() as RawRelease[]).map(parseRelease);
+}
+
+export function releaseBySlug(db: Db, slug: string): ReleaseRow | null {
+  const r = db.$client.prepare(`${RELEASE_SELECT} where r.slug = ?`).get(slug) as RawRelease | undefined;
+  return r ? parseRelease(r) : null;
+}
+
+export function releaseById(db: Db, id: number): ReleaseRow | null {
+  const r = db.$client.prepare(`${RELEASE_SELECT} where r.id = ?`).get(id) as RawRelease | undefined;
+  return r ? parseRelease(r) : null;
+}
+
+/** The frozen items of a release in id order, as the text stored at publication. */
+export function releaseItemTexts(db: Db, releaseId: number): string[] {
+  return (
+    db.$client.prepare("select frozen from release_items where release_id = ? order by determination_id").all(releaseId) as {
+      frozen: string;
+    }[]
+  ).map((r) => r.frozen);
+}
+
+export function releaseItems(db: Db, releaseId: number): FrozenItem[] {
+  return releaseItemTexts(db, releaseId).map((t) => JSON.parse(t) as FrozenItem);
+}
+
+/** The frozen densities of a release's items, a few hundred at a time, in id order. */
+export function* releaseItemsWithDensities(db: Db, releaseId: number, batch = 500) {
+  const stmt = db.$client.prepare(
+    `select determination_id as id, frozen, density_start_cal_bp as start, density as blob from release_items
+     where release_id = ? and determination_id > ? order by determination_id limit ?`,
+  );
+  let after = -1;
+  for (;;) {
+    const rows = stmt.all(releaseId, after, batch) as { id: number; frozen: string; start: number | null; blob: Buffer | null }[];
+    if (rows.length === 0) return;
+    for (const r of rows) {
+      const copy = r.blob ? new Uint8Array(r.blob.byteLength) : null;
+      if (copy && r.blob) copy.set(r.blob);
+      yield {
+        item: JSON.parse(r.frozen) as FrozenItem,
+        density: copy && r.start != null ? { start: r.start, values: new Float32Array(copy.buffer) } : null,
+      };
+    }
+    after = rows[rows.length - 1]!.id;
+  }
+}

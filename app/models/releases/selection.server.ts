@@ -1,0 +1,261 @@
+// The constraint-set query: which determinations a filter selects, their count, and each one as
+// a constraint item (the shape of the API, the downloads and a release's frozen items).
+// One SQL statement for the ids (plus a point-in-polygon pass for a drawn region), one for the
+// rows; no per-row queries.
+import booleanPointInPolygon from "@turf/boolean-point-in-polygon";
+import type { Db } from "#app/db/client.server.ts";
+import type { HpdRange } from "#app/db/schema.ts";
+import {
+  orderedWindow,
+  regionGeometry,
+  severitiesWorseThan,
+  type ConstraintFilter,
+  type RegionGeometry,
+} from "#app/utils/constraint-filter.ts";
+import { gradeWord } from "#app/utils/labels.ts";
+
+type Where = { joins: string[]; parts: string[]; params: unknown[] };
+
+const placeholders = (n: number) => Array.from({ length: n }, () => "?").join(",");
+
+/** Bounding box of a GeoJSON region, [W, S, E, N], for the SQL pre-filter. */
+function geometryBbox(g: RegionGeometry): [number, number, number, number] {
+  const polys = g.type === "Polygon" ? [g.coordinates] : g.coordinates;
+  let [w, s, e, n] = [Infinity, Infinity, -Infinity, -Infinity];
+  for (const poly of polys)
+    for (const ring of poly)
+      for (const [x, y] of ring) {
+        w = Math.min(w, x!);
+        e = Math.max(e, x!);
+        s = Math.min(s, y!);
+        n = Math.max(n, y!);
+      }
+  return [w, s, e, n];
+}
+
+/**
+ * The WHERE clause of a filter. Only determinations that are not withdrawn and have a current
+ * calendar age are constraints. The time window (cal BP, either order) keeps a determination
+ * whose 95.4 % range overlaps it, or with time_mode=median whose median lies in it.
+ */
+export function constraintWhere(f: ConstraintFilter): Where {
+  const w: Where = { joins: [], parts: ["d.status != 'withdrawn'", "c.median_cal_bp is not null"], params: [] };
+  const add = (sql: string, ...params: unknown[]) => {
+    w.parts.push(sql);
+    w.params.push(...params);
+  };
+  const boxes: [number, number, number, number][] = [];
+  if (f.bbox) boxes.push(f.bbox);
+  const region = regionGeometry(f);
+  if (region) boxes.push(geometryBbox(region));
+  for (const [west, south, east, north] of boxes) {
+    add("t.longitude between ? and ? and t.latitude between ? and ?", west, east, south, north);
+  }
+  const [young, old] = orderedWindow(f);
+  if (f.time_mode === "median") {
+    if (young != null) add("c.median_cal_bp >= ?", young);
+    if (old != null) add("c.median_cal_bp <= ?", old);
+  } else {
+    if (young != null) add("c.hpd95_from_bp >= ?", young);
+    if (old != null) add("c.hpd95_to_bp <= ?", old);
+  }
+  if (f.methods) add(`d.method in (${placeholders(f.methods.length)})`, ...f.methods);
+  if (f.materials) add(`s.material in (${placeholders(f.materials.length)})`, ...f.materials);
+  if (f.kinds) add(`d.constraint_kind in (${placeholders(f.kinds.length)})`, ...f.kinds);
+  if (f.min_grade != null) add("d.grade >= ?", f.min_grade);
+  if (f.exclude_flags) {
+    add(
+      `not exists (select 1 from reviews r, json_each(r.flags) fl
+         where r.id = (select max(id) from reviews where determination_id = d.id)
+           and fl.value in (${placeholders(f.exclude_flags.length)}))`,
+      ...f.exclude_flags,
+    );
+  }
+  if (f.worst_check) {
+    const worse = severitiesWorseThan(f.worst_check);
+    if (worse.length > 0) {
+      add(
+        `not exists (select 1 from check_results k where k.determination_id = d.id and k.severity in (${placeholders(worse.length)}))`,
+        ...worse,
+      );
+    }
+  }
+  if (f.curve) add("c.curve_id in (select id from curves where name = ?)", f.curve);
+  return w;
+}
+
+const SELECTION_FROM = `from determinations d
+  join samples s on s.id = d.sample_id
+  join sites t on t.id = s.site_id
+  join calibrations c on c.determination_id = d.id and c.is_current = 1`;
+
+/** Ids of the selected determinations, ascending. */
+export function selectionIds(db: Db, f: ConstraintFilter): number[] {
+  const w = constraintWhere(f);
+  const region = regionGeometry(f);
+  const sql = `select d.id, t.longitude as lon, t.latitude as lat ${SELECTION_FROM} where ${w.parts.join(" and ")} order by d.id`;
+  const rows = db.$client.prepare(sql).all(...w.params) as { id: number; lon: number; lat: number }[];
+  if (!region) return rows.map((r) => r.id);
+  return rows.filter((r) => booleanPointInPolygon([r.lon, r.lat], region)).map((r) => r.id);
+}
+
+/** How many determinations the filter selects (the live count). */
+export function selectionCount(db: Db, f: ConstraintFilter): number {
+  if (regionGeometry(f)) return selectionIds(db, f).length;
+  const w = constraintWhere(f);
+  return (db.$client.prepare(`select count(*) as n ${SELECTION_FROM} where ${w.parts.join(" and ")}`).get(...w.params) as { n: number }).n;
+}
+
+export type CheckSummary = { check: string; severity: string };
+
+/** One constraint: what the API answers, the downloads write and a release freezes. */
+export type ConstraintItem = {
+  id: number;
+  lab_code: string;
+  lab: string;
+  site_id: number;
+  site_name: string;
+  latitude: number;
+  longitude: number;
+  elevation_m: number | null;
+  sample_code: string;
+  material: string;
+  depth_cm: number | null;
+  method: string;
+  signal: string | null;
+  constraint_kind: string;
+  grade: number | null;
+  grade_name: string;
+  flags: string[];
+  checks: CheckSummary[];
+  worst_check: string | null;
+  determination_version: number;
+  c14_age: number | null;
+  c14_error: number | null;
+  f14c: number | null;
+  f14c_error: number | null;
+  d13c: number | null;
+  delta_r: number | null;
+  delta_r_error: number | null;
+  de_gy: number | null;
+  de_error_gy: number | null;
+  dose_rate_gy_per_ka: number | null;
+  dose_rate_error_gy_per_ka: number | null;
+  measurement_year: number | null;
+  calibration_curve: string;
+  median_cal_bp: number;
+  hpd68: HpdRange[];
+  hpd95: HpdRange[];
+  publication: { citation: string; doi: string | null } | null;
+};
+
+type Row = Omit<ConstraintItem, "grade_name" | "flags" | "checks" | "worst_check" | "hpd68" | "hpd95" | "publication"> & {
+  flags: string | null;
+  checks: string | null;
+  hpd68: string | null;
+  hpd95: string | null;
+  pub_citation: string | null;
+  pub_doi: string | null;
+  calibration_id: number;
+  curve_id: number | null;
+};
+
+const WORST: Record<string, number> = { pass: 0, note: 1, warning: 2, conflict: 3 };
+
+function toItem(r: Row): ConstraintItem {
+  const checks = (r.checks ? (JSON.parse(r.checks) as CheckSummary[]) : []).sort((a, b) =>
+    a.check === b.check ? WORST[b.severity]! - WORST[a.severity]! : a.check < b.check ? -1 : 1,
+  );
+  let worst: string | null = null;
+  for (const c of checks) if (worst === null || WORST[c.severity]! > WORST[worst]!) worst = c.severity;
+  return {
+    id: r.id,
+    lab_code: r.lab_code,
+    lab: r.lab,
+    site_id: r.site_id,
+    site_name: r.site_name,
+    latitude: r.latitude,
+    longitude: r.longitude,
+    elevation_m: r.elevation_m,
+    sample_code: r.sample_code,
+    material: r.material,
+    depth_cm: r.depth_cm,
+    method: r.method,
+    signal: r.signal,
+    constraint_kind: r.constraint_kind,
+    grade: r.grade,
+    grade_name: gradeWord(r.grade),
+    flags: r.flags ? (JSON.parse(r.flags) as string[]).sort() : [],
+    checks,
+    worst_check: worst,
+    determination_version: r.determination_version,
+    c14_age: r.c14_age,
+    c14_error: r.c14_error,
+    f14c: r.f14c,
+    f14c_error: r.f14c_error,
+    d13c: r.d13c,
+    delta_r: r.delta_r,
+    delta_r_error: r.delta_r_error,
+    de_gy: r.de_gy,
+    de_error_gy: r.de_error_gy,
+    dose_rate_gy_per_ka: r.dose_rate_gy_per_ka,
+    dose_rate_error_gy_per_ka: r.dose_rate_error_gy_per_ka,
+    measurement_year: r.measurement_year,
+    calibration_curve: r.calibration_curve,
+    median_cal_bp: r.median_cal_bp,
+    hpd68: r.hpd68 ? (JSON.parse(r.hpd68) as HpdRange[]) : [],
+    hpd95: r.hpd95 ? (JSON.parse(r.hpd95) as HpdRange[]) : [],
+    publication: r.pub_citation == null ? null : { citation: r.pub_citation, doi: r.pub_doi },
+  };
+}
+
+export type SelectedRow = { item: ConstraintItem; calibrationId: number; curveId: number | null };
+
+const CHUNK = 900; // below SQLite's bound-parameter limit
+
+/** The items for the given ids, in the order given, read in chunks of a few hundred. */
+export function* selectionItems(db: Db, ids: readonly number[]): Generator<SelectedRow> {
+  const stmt = (n: number) =>
+    db.$client.prepare(
+      `select d.id, d.lab_code, l.name as lab, t.id as site_id, t.name as site_name, t.latitude, t.longitude,
+         t.elevation_m, s.field_code as sample_code, s.material, s.depth_cm, d.method, d.signal, d.constraint_kind,
+         d.grade, d.version as determination_version,
+         (select r.flags from reviews r where r.determination_id = d.id order by r.id desc limit 1) as flags,
+         (select json_group_array(json_object('check', k."check", 'severity', k.severity))
+            from check_results k where k.determination_id = d.id) as checks,
+         d.c14_age_yr as c14_age, d.c14_error_yr as c14_error, d.f14c, d.f14c_error, d.d13c_permil as d13c,
+         d.delta_r_yr as delta_r, d.delta_r_error_yr as delta_r_error, d.de_gy, d.de_error_gy,
+         d.dose_rate_gy_per_ka, d.dose_rate_error_gy_per_ka, d.measurement_year,
+         c.id as calibration_id, c.curve_id, c.curve_label as calibration_curve, c.median_cal_bp, c.hpd68, c.hpd95,
+         p.citation as pub_citation, p.doi as pub_doi
+       from determinations d
+       join samples s on s.id = d.sample_id
+       join sites t on t.id = s.site_id
+       join labs l on l.id = d.lab_id
+       join calibrations c on c.determination_id = d.id and c.is_current = 1
+       left join publications p on p.id = d.publication_id
+       where d.id in (${placeholders(n)})`,
+    );
+  for (let i = 0; i < ids.length; i += CHUNK) {
+    const chunk = ids.slice(i, i + CHUNK);
+    const rows = stmt(chunk.length).all(...chunk) as Row[];
+    const byId = new Map(rows.map((r) => [r.id, r]));
+    for (const id of chunk) {
+      const r = byId.get(id);
+      if (r) yield { item: toItem(r), calibrationId: r.calibration_id, curveId: r.curve_id };
+    }
+  }
+}
+
+/** The stored density of each calibration (youngest year first), read in chunks. */
+export function densitiesFor(db: Db, calibrationIds: readonly number[]): Map<number, { start: number; blob: Buffer }> {
+  const out = new Map<number, { start: number; blob: Buffer }>();
+  for (let i = 0; i < calibrationIds.length; i += CHUNK) {
+    const chunk = calibrationIds.slice(i, i + CHUNK);
+    const rows = db.$client
+      .prepare(`select id, density_start_cal_bp as start, density as blob from calibrations where id in (${placeholders(chunk.length)})`)
+      .all(...chunk) as { id: number; start: number | null; blob: Buffer | null }[];
+    for (const r of rows) if (r.blob && r.start != null) out.set(r.id, { start: r.start, blob: r.blob });
+  }
+  return out;
+}
