@@ -31,8 +31,16 @@ export default [
 
   layout("routes/admin/layout.tsx", [route("people", "routes/admin/people.tsx"), route("curves", "routes/admin/curves.tsx")]),
 
+  layout("routes/constraints/layout.tsx", [route("constraints", "routes/constraints/constraints.tsx")]),
+  layout("routes/releases/layout.tsx", [
+    route("releases", "routes/releases/index.tsx"),
+    route("releases/:slug", "routes/releases/release.tsx"),
+  ]),
+
   // Cookie-session resource routes: CSV and spreadsheet downloads, previews, job progress, map data.
   route("api/map-sites", "routes/resources/map-sites.ts"),
+  route("constraints/summary", "routes/resources/constraints-summary.ts"),
+  route("constraints/download", "routes/resources/constraints-download.ts"),
   route("api/curve-window", "routes/resources/curve-window.ts"),
   route("api/jobs/:id", "routes/resources/jobs.ts"),
   route("api/determination-preview", "routes/resources/determination-preview.ts"),
@@ -49,5 +57,8 @@ export default [
     route("uploads", "routes/api/v1/uploads.ts"),
     route("uploads/:uploadId/commit", "routes/api/v1/uploads.commit.ts"),
     route("determinations", "routes/api/v1/determinations.ts"),
+    route("constraints", "routes/api/v1/constraints.ts"),
+    route("releases", "routes/api/v1/releases.ts"),
+    route("releases/:slug", "routes/api/v1/release.ts"),
   ]),
 ] satisfies RouteConfig;

@@ -40,7 +40,6 @@ export const FILTER_PARAMS = [
   "curve",
 ] as const;
 
-export type Bbox = [west: number, south: number, east: number, north: number];
 /** A closed ring of [longitude, latitude] vertices (first vertex not repeated). */
 export type Ring = [number, number][];
 
@@ -69,7 +68,13 @@ const bboxSchema = z.preprocess(
 
 /** Polygon in a URL: vertices "lon,lat" separated by semicolons, e.g. "-65,58;-62,58;-63,60". */
 const polygonSchema = z.preprocess(
-  (v) => (typeof v === "string" ? v.split(";").filter((p) => p.trim() !== "").map((p) => numbers(p, ",")) : v),
+  (v) =>
+    typeof v === "string"
+      ? v
+          .split(";")
+          .filter((p) => p.trim() !== "")
+          .map((p) => numbers(p, ","))
+      : v,
   z
     .array(z.tuple([lon, lat], { error: "each vertex is lon,lat" }), { error: "vertices lon,lat separated by ;" })
     .min(3, "a polygon needs at least three vertices")
@@ -95,8 +100,7 @@ export const constraintFilterSchema = z.object({
 
 /** A region sent as GeoJSON (POST to the API, or a file uploaded on the page). */
 export type RegionGeometry =
-  | { type: "Polygon"; coordinates: number[][][] }
-  | { type: "MultiPolygon"; coordinates: number[][][][] };
+  { type: "Polygon"; coordinates: number[][][] } | { type: "MultiPolygon"; coordinates: number[][][][] };
 
 export type ConstraintFilter = z.infer<typeof constraintFilterSchema> & { geometry?: RegionGeometry };
 
@@ -152,14 +156,6 @@ export function filterRecord(filter: Partial<ConstraintFilter>): Record<string, 
   return Object.fromEntries(filterToParams(filter));
 }
 
-/** A window typed either way round: [younger, older] cal BP. */
-export function orderedWindow(f: Pick<ConstraintFilter, "from_cal_bp" | "to_cal_bp">): [number | undefined, number | undefined] {
-  const a = f.from_cal_bp;
-  const b = f.to_cal_bp;
-  if (a != null && b != null && a > b) return [b, a];
-  return [a, b];
-}
-
 /** Severities allowed when `worst` is the worst check allowed ("warning" allows pass, note and warning). */
 export function severitiesWorseThan(worst: CheckSeverityName): CheckSeverityName[] {
   return CHECK_ORDER.slice(CHECK_ORDER.indexOf(worst) + 1);
@@ -190,7 +186,10 @@ export function parseRegionGeoJson(body: unknown): { ok: true; geometry: RegionG
   }
   if (g && g.type === "Feature") g = g.geometry as typeof g;
   if (!g || (g.type !== "Polygon" && g.type !== "MultiPolygon")) {
-    return { ok: false, error: "geometry: send a GeoJSON Polygon or MultiPolygon (bare, as a Feature, or in a FeatureCollection)" };
+    return {
+      ok: false,
+      error: "geometry: send a GeoJSON Polygon or MultiPolygon (bare, as a Feature, or in a FeatureCollection)",
+    };
   }
   const schema = g.type === "Polygon" ? polygonCoords : z.array(polygonCoords).min(1);
   const parsed = schema.safeParse(g.coordinates);
@@ -199,4 +198,17 @@ export function parseRegionGeoJson(body: unknown): { ok: true; geometry: RegionG
     return { ok: false, error: `geometry.coordinates${issue.path.map((p) => `[${String(p)}]`).join("")}: ${issue.message}` };
   }
   return { ok: true, geometry: { type: g.type, coordinates: parsed.data } as RegionGeometry };
+}
+
+const LIST_PARAMS = new Set(["methods", "materials", "kinds", "exclude_flags"]);
+
+/** A form's search parameters with repeated list names (checkbox groups) joined by commas and blanks dropped. */
+export function normaliseFormParams(params: URLSearchParams): URLSearchParams {
+  const out = new URLSearchParams();
+  for (const [k, v] of params) {
+    if (v.trim() === "") continue;
+    if (LIST_PARAMS.has(k) && out.has(k)) out.set(k, `${out.get(k)},${v}`);
+    else if (!out.has(k)) out.set(k, v);
+  }
+  return out;
 }

@@ -11,7 +11,7 @@ import { beforeAll, describe, expect, it } from "vitest";
 import type { RouteConfigEntry } from "@react-router/dev/routes";
 import routes from "#app/routes.ts";
 import { getDb } from "#app/db/client.server.ts";
-import { determinations, jobs, labs, samples, sites, uploadBatches, type Role } from "#app/db/schema.ts";
+import { determinations, jobs, labs, releases, samples, sites, uploadBatches, type Role } from "#app/db/schema.ts";
 import { createSession } from "#app/auth/session.server.ts";
 import { createToken } from "#app/models/accounts/tokens.server.ts";
 import { args, get, personWithSession, post, run, type Outcome } from "#tests/support/auth.ts";
@@ -154,6 +154,38 @@ export const ACCESS: Record<string, Row> = {
     get: only(["contributor"], "status:405", "unauthorized"),
     post: only(["contributor"], "allowed", "unauthorized"),
   },
+  // Constraint sets: anyone signed in reads and downloads (saving and publishing check their roles in the action)
+  "routes/constraints/layout": { url: "/constraints", get: signedIn("ok"), post: "none" },
+  "routes/constraints/constraints": { url: "/constraints", get: signedIn("ok"), post: signedIn("allowed") },
+  "routes/resources/constraints-summary": {
+    url: "/constraints/summary?min_grade=1",
+    get: { ...signedIn("ok"), "signed-out": "unauthorized" },
+    post: "none",
+  },
+  "routes/resources/constraints-download": { url: "/constraints/download?format=csv", get: signedIn("ok"), post: "none" },
+  "routes/api/v1/constraints": {
+    url: "/api/v1/constraints",
+    auth: "token",
+    get: { ...signedIn("ok"), "signed-out": "unauthorized" },
+    post: { ...signedIn("allowed"), "signed-out": "unauthorized" },
+  },
+  // Releases: open data, public to read; publishing by token is for editors
+  "routes/releases/layout": { url: "/releases", get: "none", post: "none" },
+  "routes/releases/index": { url: "/releases", get: "ok", post: "none" },
+  "routes/releases/release": { url: "/releases/:slug", params: { slug: "releaseSlug" }, get: "ok", post: "none" },
+  "routes/api/v1/releases": {
+    url: "/api/v1/releases",
+    auth: "token",
+    get: "ok",
+    post: only(["editor"], "allowed", "unauthorized"),
+  },
+  "routes/api/v1/release": {
+    url: "/api/v1/releases/:slug",
+    params: { slug: "releaseSlug" },
+    auth: "token",
+    get: "ok",
+    post: "none",
+  },
   "routes/api/v1/determinations": {
     url: "/api/v1/determinations",
     auth: "token",
@@ -174,7 +206,7 @@ function flatten(entries: RouteConfigEntry[], parentPath = ""): Entry[] {
 
 const ENTRIES: Entry[] = [{ id: "root", file: "root.tsx", path: "/" }, ...flatten(routes)];
 
-type Fixtures = { siteId: string; determinationId: string; jobId: string; uploadPublicId: string };
+type Fixtures = { siteId: string; determinationId: string; jobId: string; uploadPublicId: string; releaseSlug: string };
 const fixtures = {} as Fixtures;
 const people = {} as Record<Exclude<Audience, "signed-out">, { id: number; token: string }>;
 let cookies = {} as Record<Exclude<Audience, "signed-out">, string>;
@@ -223,7 +255,22 @@ beforeAll(async () => {
     })
     .returning()
     .get();
+  const release = db
+    .insert(releases)
+    .values({
+      slug: "matrix-release-v1",
+      name: "Matrix release",
+      filter: {},
+      curveVersions: [],
+      itemCount: 0,
+      checksum: "0".repeat(64),
+      createdBy: people.editor.id,
+      publishedAt: new Date(),
+    })
+    .returning()
+    .get();
   Object.assign(fixtures, {
+    releaseSlug: release.slug,
     siteId: String(site.id),
     determinationId: String(det.id),
     jobId: String(job.id),

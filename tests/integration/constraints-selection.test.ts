@@ -1,6 +1,6 @@
 import { beforeAll, describe, expect, it } from "vitest";
 import { getDb } from "#app/db/client.server.ts";
-import { selectionCount, selectionIds } from "#app/models/releases/selection.server.ts";
+import { selectionCount, selectionIds } from "#app/models/registry/constraints.server.ts";
 import { parseConstraintFilter, type ConstraintFilter } from "#app/utils/constraint-filter.ts";
 import { insertCheck } from "#tests/support/pages-fixtures.ts";
 import { seedDemo } from "#seed/seed.server.ts";
@@ -12,7 +12,11 @@ import { seedDemo } from "#seed/seed.server.ts";
 
 const db = () => getDb().$client;
 const ids = (sql: string, ...params: unknown[]) =>
-  (db().prepare(sql).all(...params) as { id: number }[]).map((r) => r.id);
+  (
+    db()
+      .prepare(sql)
+      .all(...params) as { id: number }[]
+  ).map((r) => r.id);
 
 function filter(query: string): ConstraintFilter {
   const parsed = parseConstraintFilter(new URLSearchParams(query));
@@ -53,7 +57,13 @@ describe("constraint filters select what independent SQL selects", () => {
 
   it("bounding box", () => {
     const f = filter(`bbox=${box.w},${box.s},${box.e},${box.n}`);
-    const expected = ids(`${BASE} and t.longitude >= ? and t.longitude <= ? and t.latitude >= ? and t.latitude <= ? order by d.id`, box.w, box.e, box.s, box.n);
+    const expected = ids(
+      `${BASE} and t.longitude >= ? and t.longitude <= ? and t.latitude >= ? and t.latitude <= ? order by d.id`,
+      box.w,
+      box.e,
+      box.s,
+      box.n,
+    );
     expect(expected.length).toBeGreaterThan(0);
     expect(selectionIds(getDb(), f)).toEqual(expected);
   });
@@ -73,7 +83,9 @@ describe("constraint filters select what independent SQL selects", () => {
       }
       return c;
     };
-    const rows = db().prepare(`${BASE.replace("select d.id", "select d.id, t.longitude x, t.latitude y")} order by d.id`).all() as {
+    const rows = db()
+      .prepare(`${BASE.replace("select d.id", "select d.id, t.longitude x, t.latitude y")} order by d.id`)
+      .all() as {
       id: number;
       x: number;
       y: number;
@@ -96,12 +108,16 @@ describe("constraint filters select what independent SQL selects", () => {
   });
 
   it("methods, kinds, materials, minimum grade and curve", () => {
-    expect(selectionIds(getDb(), filter("methods=luminescence"))).toEqual(ids(`${BASE} and d.method = 'luminescence' order by d.id`));
+    expect(selectionIds(getDb(), filter("methods=luminescence"))).toEqual(
+      ids(`${BASE} and d.method = 'luminescence' order by d.id`),
+    );
     expect(selectionIds(getDb(), filter("kinds=minimum,direct"))).toEqual(
       ids(`${BASE} and (d.constraint_kind = 'minimum' or d.constraint_kind = 'direct') order by d.id`),
     );
     const material = (db().prepare("select material from samples limit 1").get() as { material: string }).material;
-    expect(selectionIds(getDb(), filter(`materials=${encodeURIComponent(material)}`))).toEqual(ids(`${BASE} and s.material = ? order by d.id`, material));
+    expect(selectionIds(getDb(), filter(`materials=${encodeURIComponent(material)}`))).toEqual(
+      ids(`${BASE} and s.material = ? order by d.id`, material),
+    );
     const g2 = ids(`${BASE} and d.grade is not null and d.grade >= 2 order by d.id`);
     expect(g2.length).toBeGreaterThan(0);
     expect(selectionIds(getDb(), filter("min_grade=2"))).toEqual(g2);
@@ -152,11 +168,16 @@ describe("constraint filters select what independent SQL selects", () => {
 
 describe("parsing a filter", () => {
   it("names every malformed or unknown parameter", () => {
-    const r = parseConstraintFilter(new URLSearchParams("bbox=1,2,3&min_grade=5&methods=radiocarbon,carbon&colour=red&from_cal_bp=abc"));
+    const r = parseConstraintFilter(
+      new URLSearchParams("bbox=1,2,3&min_grade=5&methods=radiocarbon,carbon&colour=red&from_cal_bp=abc"),
+    );
     expect(r.ok).toBe(false);
     const errors = r.ok ? [] : r.errors;
     for (const name of ["bbox", "min_grade", "methods", "colour", "from_cal_bp"]) {
-      expect(errors.some((e) => e.startsWith(`${name}:`)), name).toBe(true);
+      expect(
+        errors.some((e) => e.startsWith(`${name}:`)),
+        name,
+      ).toBe(true);
     }
   });
 

@@ -1,6 +1,6 @@
 import { beforeAll, describe, expect, it } from "vitest";
 import { getDb } from "#app/db/client.server.ts";
-import { calibrateDeterminations } from "#app/models/calibrations.server.ts";
+import { calibrateDeterminations } from "#app/models/calibration/calibrations.server.ts";
 import { releaseChecksum } from "#app/models/releases/canonical.server.ts";
 import { releaseResponse } from "#app/models/releases/release-download.server.ts";
 import { releaseDiff } from "#app/models/releases/release-diff.server.ts";
@@ -81,7 +81,13 @@ describe("publishing a release", () => {
       publishRelease(getDb(), { name: "Test release", version: "1", filter: filter(""), userId: editorId, baseUrl: BASE_URL }),
     ).toThrow(PublishRefused);
     expect(() =>
-      publishRelease(getDb(), { name: "Empty", version: "1", filter: filter("from_cal_bp=90000&to_cal_bp=95000"), userId: editorId, baseUrl: BASE_URL }),
+      publishRelease(getDb(), {
+        name: "Empty",
+        version: "1",
+        filter: filter("from_cal_bp=90000&to_cal_bp=95000"),
+        userId: editorId,
+        baseUrl: BASE_URL,
+      }),
     ).toThrow(/no determinations/);
   });
 });
@@ -102,7 +108,10 @@ describe("a release never changes", () => {
       db.prepare("update determinations set c14_age_yr = c14_age_yr + 400, version = version + 1 where id = ?").run(edited);
       calibrateDeterminations(getDb(), [edited]);
       // A regrade with a flag.
-      db.prepare("insert into reviews (determination_id, reviewer_id, grade, flags) values (?, ?, 0, '[\"reworked\"]')").run(regraded, reviewer);
+      db.prepare("insert into reviews (determination_id, reviewer_id, grade, flags) values (?, ?, 0, '[\"reworked\"]')").run(
+        regraded,
+        reviewer,
+      );
       db.prepare("update determinations set grade = 0 where id = ?").run(regraded);
       // A withdrawal.
       db.prepare("update determinations set status = 'withdrawn' where id = ?").run(withdrawn);
@@ -127,11 +136,18 @@ describe("a release never changes", () => {
     rest.lab_code = `${String(rest.lab_code)}-NEW`;
     const cols = Object.keys(rest);
     const added = Number(
-      db.prepare(`insert into determinations (${cols.join(",")}) values (${cols.map(() => "?").join(",")})`).run(...Object.values(rest))
-        .lastInsertRowid,
+      db
+        .prepare(`insert into determinations (${cols.join(",")}) values (${cols.map(() => "?").join(",")})`)
+        .run(...Object.values(rest)).lastInsertRowid,
     );
     calibrateDeterminations(getDb(), [added]);
-    const next = publishRelease(getDb(), { name: "Test release", version: "2", filter: filter("min_grade=1"), userId: editorId, baseUrl: BASE_URL });
+    const next = publishRelease(getDb(), {
+      name: "Test release",
+      version: "2",
+      filter: filter("min_grade=1"),
+      userId: editorId,
+      baseUrl: BASE_URL,
+    });
     const nextRow = releaseById(getDb(), next.id)!;
     expect(nextRow.previousReleaseId).toBe(release.id);
     expect(next.checksum).not.toBe(release.checksum);
@@ -143,7 +159,13 @@ describe("a release never changes", () => {
     expect(diff.recalibrated[0]!.to_median).toBeGreaterThan(diff.recalibrated[0]!.from_median);
     expect(diff.unchanged).toBe(release.itemCount - 3);
     // Regraded but still selected: a second release with every grade shows it as regraded.
-    const all = publishRelease(getDb(), { name: "Test release", version: "3", filter: filter(""), userId: editorId, baseUrl: BASE_URL });
+    const all = publishRelease(getDb(), {
+      name: "Test release",
+      version: "3",
+      filter: filter(""),
+      userId: editorId,
+      baseUrl: BASE_URL,
+    });
     const before = (JSON.parse(downloads.json!).constraints as { id: number; grade: number }[]).find((i) => i.id === regraded)!;
     const d3 = releaseDiff(getDb(), release.id, all.id);
     expect(d3.regraded.find((e) => e.id === regraded)).toEqual(expect.objectContaining({ from: before.grade, to: 0 }));

@@ -1,5 +1,6 @@
 import { z } from "zod";
 import type { Db } from "#app/db/client.server.ts";
+import { Conditions, CURRENT_CALIBRATION_JOIN, NOT_WITHDRAWN_SQL } from "#app/models/registry/conditions.server.ts";
 import { CHECK_SEVERITIES, CONSTRAINT_KINDS, METHODS, STATUSES, type CheckSeverity } from "#app/db/schema.ts";
 import {
   defaultDirection,
@@ -158,7 +159,7 @@ function narrowFrom(f: ExploreFilters, forSort: boolean): string {
     "from determinations d",
     needSample ? "join samples s on s.id = d.sample_id" : "",
     needSite ? "join sites t on t.id = s.site_id" : "",
-    needCal ? "left join calibrations c on c.determination_id = d.id and c.is_current = 1" : "",
+    needCal ? `left join ${CURRENT_CALIBRATION_JOIN}` : "",
   ]
     .filter(Boolean)
     .join("\n  ");
@@ -169,76 +170,24 @@ function escapeLike(s: string): string {
 }
 
 function whereClause(f: ExploreFilters): { sql: string; params: unknown[] } {
-  const parts: string[] = [];
-  const params: unknown[] = [];
-  if (f.method) {
-    parts.push("d.method = ?");
-    params.push(f.method);
-  }
-  if (f.material) {
-    parts.push("s.material = ?");
-    params.push(f.material);
-  }
-  if (f.lab) {
-    parts.push("d.lab_id = ?");
-    params.push(f.lab);
-  }
-  if (f.site) {
-    parts.push("t.name like ? escape '\\'");
-    params.push(`%${escapeLike(f.site)}%`);
-  }
-  if (f.kind) {
-    parts.push("d.constraint_kind = ?");
-    params.push(f.kind);
-  }
-  if (!f.status) parts.push("d.status != 'withdrawn'");
-  else if (f.status !== "all") {
-    parts.push("d.status = ?");
-    params.push(f.status);
-  }
-  if (f.grade === "ungraded") parts.push("d.grade is null");
-  else if (f.grade) {
-    parts.push("d.grade >= ?");
-    params.push(Number(f.grade));
-  }
-  if (f.worst_check) {
-    parts.push(`${WORST_CHECK_RANK_SQL} = ?`);
-    params.push(CHECK_SEVERITIES.indexOf(f.worst_check));
-  }
-  if (f.ageFrom != null || f.ageTo != null) {
-    const [lo, hi] = ordered(f.ageFrom, f.ageTo);
-    if (lo != null) {
-      parts.push(`${MEASURED_AGE_SQL} >= ?`);
-      params.push(lo);
-    }
-    if (hi != null) {
-      parts.push(`${MEASURED_AGE_SQL} <= ?`);
-      params.push(hi);
-    }
-  }
-  if (f.calFrom != null || f.calTo != null) {
-    const [lo, hi] = ordered(f.calFrom, f.calTo);
-    if (lo != null) {
-      parts.push("c.median_cal_bp >= ?");
-      params.push(lo);
-    }
-    if (hi != null) {
-      parts.push("c.median_cal_bp <= ?");
-      params.push(hi);
-    }
-  }
+  const w = new Conditions()
+    .anyOf("d.method", f.method ? [f.method] : undefined)
+    .anyOf("s.material", f.material ? [f.material] : undefined)
+    .anyOf("d.lab_id", f.lab ? [f.lab] : undefined);
+  if (f.site) w.add("t.name like ? escape '\\'", `%${escapeLike(f.site)}%`);
+  w.anyOf("d.constraint_kind", f.kind ? [f.kind] : undefined);
+  if (!f.status) w.add(NOT_WITHDRAWN_SQL);
+  else if (f.status !== "all") w.anyOf("d.status", [f.status]);
+  if (f.grade === "ungraded") w.add("d.grade is null");
+  else if (f.grade) w.minGrade(Number(f.grade));
+  if (f.worst_check) w.add(`${WORST_CHECK_RANK_SQL} = ?`, CHECK_SEVERITIES.indexOf(f.worst_check));
+  w.window(MEASURED_AGE_SQL, f.ageFrom, f.ageTo);
+  w.window("c.median_cal_bp", f.calFrom, f.calTo);
   if (f.q) {
     const like = `%${escapeLike(f.q)}%`;
-    parts.push("(d.lab_code like ? escape '\\' or t.name like ? escape '\\')");
-    params.push(like, like);
+    w.add("(d.lab_code like ? escape '\\' or t.name like ? escape '\\')", like, like);
   }
-  return { sql: parts.length ? `where ${parts.join(" and ")}` : "", params };
-}
-
-/** A window may be typed either way round (older first or younger first). */
-function ordered(a: number | undefined, b: number | undefined): [number | undefined, number | undefined] {
-  if (a != null && b != null && a > b) return [b, a];
-  return [a, b];
+  return { sql: w.where, params: w.params };
 }
 
 export function exploreDeterminations(db: Db, filters: ExploreFilters): ExploreResult {

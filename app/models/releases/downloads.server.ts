@@ -47,7 +47,10 @@ export const CAUTIONS = [
 ];
 
 /** Curves and publications used by a selection, each with how many items use it. */
-export function usageOf(db: Db, rows: readonly Pick<SelectedRow, "item" | "curveId">[]): { curves: CurveUse[]; citations: CitationUse[] } {
+export function usageOf(
+  db: Db,
+  rows: readonly Pick<SelectedRow, "item" | "curveId">[],
+): { curves: CurveUse[]; citations: CitationUse[] } {
   const curveCounts = new Map<string, { id: number | null; label: string; count: number }>();
   const pubCounts = new Map<string, CitationUse>();
   for (const { item, curveId } of rows) {
@@ -81,8 +84,7 @@ export function usageOf(db: Db, rows: readonly Pick<SelectedRow, "item" | "curve
   return { curves, citations };
 }
 
-const rangesText = (ranges: ConstraintItem["hpd95"]) =>
-  ranges.map((r) => `${r.from}–${r.to} (${r.p.toFixed(3)})`).join("; ");
+const rangesText = (ranges: ConstraintItem["hpd95"]) => ranges.map((r) => `${r.from}–${r.to} (${r.p.toFixed(3)})`).join("; ");
 
 /** CSV columns: header name and how to read it from an item. Numbers stay numeric cells. */
 export const CSV_COLUMNS: [string, (i: ConstraintItem) => CsvCell][] = [
@@ -190,11 +192,4 @@ export const CONTENT_TYPES: Record<Exclude<DownloadFormat, "metadata">, string> 
   json: "application/json; charset=utf-8",
   csv: "text/csv; charset=utf-8",
   geojson: "application/geo+json; charset=utf-8",
-};
-
-export const EXTENSIONS: Record<DownloadFormat, string> = {
-  json: "json",
-  csv: "csv",
-  geojson: "geojson",
-  metadata: "metadata.json",
 };

@@ -62,7 +62,13 @@ export function releaseMetadata(release: ReleaseRow, items: readonly FrozenItem[
  * The response for a release download. The JSON's `constraints` are the stored frozen texts, so
  * the checksum recomputed from them by the documented rule equals `checksum`.
  */
-export function releaseResponse(db: Db, release: ReleaseRow, format: DownloadFormat, pageUrl: string, densities = false): Response {
+export function releaseResponse(
+  db: Db,
+  release: ReleaseRow,
+  format: DownloadFormat,
+  pageUrl: string,
+  densities = false,
+): Response {
   const texts = releaseItemTexts(db, release.id);
   const items = texts.map((t) => JSON.parse(t) as FrozenItem);
   const meta = releaseMetadata(release, items, pageUrl);
@@ -81,11 +87,17 @@ export function releaseResponse(db: Db, release: ReleaseRow, format: DownloadFor
   headers.set("Content-Type", CONTENT_TYPES[format]);
   headers.set("Content-Disposition", `attachment; filename="${name}.${format}"`);
   if (format === "csv") {
-    headers.set("Link", `<${pageUrl}/download.metadata.json>; rel="describedby"; type="application/json"`);
+    headers.set(
+      "Link",
+      `<${pageUrl.replace("/releases/", "/api/v1/releases/")}?format=metadata>; rel="describedby"; type="application/json"`,
+    );
     return new Response(csvDownload(items), { headers });
   }
   if (format === "geojson") return new Response(geojsonDownload(meta, items), { headers });
-  return new Response(jsonDownload(meta, densities ? releaseItemsWithDensities(db, release.id) : items.map((item) => ({ item }))), {
-    headers,
-  });
+  return new Response(
+    jsonDownload(meta, densities ? releaseItemsWithDensities(db, release.id) : items.map((item) => ({ item }))),
+    {
+      headers,
+    },
+  );
 }

@@ -6,7 +6,8 @@ import { createHash } from "node:crypto";
 import type { Db } from "#app/db/client.server.ts";
 import { CHECKSUM_RULE, releaseChecksum, roundForFreezing } from "#app/models/releases/canonical.server.ts";
 import { usageOf, type CurveUse } from "#app/models/releases/downloads.server.ts";
-import { densitiesFor, selectionIds, selectionItems, type ConstraintItem } from "#app/models/releases/selection.server.ts";
+import { selectionIds } from "#app/models/registry/constraints.server.ts";
+import { densitiesFor, selectionItems, type ConstraintItem } from "#app/models/releases/selection.server.ts";
 import { filterRecord, type ConstraintFilter } from "#app/utils/constraint-filter.ts";
 
 export type DensityRef = { calibration_id: number; start_cal_bp: number; step: 1; length: number; sha256: string };
@@ -50,7 +51,14 @@ export function slugFor(name: string, version: string): string {
   return `${part(name) || "release"}-v${part(version) || "1"}`;
 }
 
-export function citationText(r: { name: string; version: string; publishedAt: Date; count: number; checksum: string; url: string }): string {
+export function citationText(r: {
+  name: string;
+  version: string;
+  publishedAt: Date;
+  count: number;
+  checksum: string;
+  url: string;
+}): string {
   const year = r.publishedAt.getUTCFullYear();
   const day = r.publishedAt.toISOString().slice(0, 10);
   return (
@@ -80,11 +88,17 @@ export function publishRelease(db: Db, input: PublishInput): { id: number; slug:
   const slug = slugFor(name, version);
   const sqlite = db.$client;
   return sqlite.transaction(() => {
-    const clash = sqlite.prepare("select slug from releases where (name = ? and version = ?) or slug = ?").get(name, version, slug);
-    if (clash) throw new PublishRefused(`A release named “${name}” version ${version} already exists; give a new version.`, "version");
+    const clash = sqlite
+      .prepare("select slug from releases where (name = ? and version = ?) or slug = ?")
+      .get(name, version, slug);
+    if (clash)
+      throw new PublishRefused(`A release named “${name}” version ${version} already exists; give a new version.`, "version");
     const rows = [...selectionItems(db, selectionIds(db, input.filter))];
     if (rows.length === 0) throw new PublishRefused("The filter selects no determinations; a release cannot be empty.", "filter");
-    const blobs = densitiesFor(db, rows.map((r) => r.calibrationId));
+    const blobs = densitiesFor(
+      db,
+      rows.map((r) => r.calibrationId),
+    );
     const frozen = rows.map((r) => {
       const b = blobs.get(r.calibrationId);
       const ref: DensityRef | null = b
@@ -102,13 +116,18 @@ export function publishRelease(db: Db, input: PublishInput): { id: number; slug:
     const now = input.now ?? new Date();
     const { curves } = usageOf(db, rows);
     const previous = sqlite
-      .prepare(
-        `select id from releases order by (name = ?) desc, published_at desc, id desc limit 1`,
-      )
+      .prepare(`select id from releases order by (name = ?) desc, published_at desc, id desc limit 1`)
       .get(name) as { id: number } | undefined;
     const filter: Record<string, unknown> = filterRecord(input.filter);
     if (input.filter.geometry) filter.geometry = input.filter.geometry;
-    const citation = citationText({ name, version, publishedAt: now, count: rows.length, checksum, url: `${input.baseUrl}${slug}` });
+    const citation = citationText({
+      name,
+      version,
+      publishedAt: now,
+      count: rows.length,
+      checksum,
+      url: `${input.baseUrl}${slug}`,
+    });
     const { lastInsertRowid } = sqlite
       .prepare(
         `insert into releases (slug, name, version, description, filter, curve_versions, item_count, checksum, checksum_rule,
@@ -135,9 +154,12 @@ export function publishRelease(db: Db, input: PublishInput): { id: number; slug:
     const insert = sqlite.prepare(
       "insert into release_items (release_id, determination_id, frozen, density_start_cal_bp, density) values (?, ?, ?, ?, ?)",
     );
-    for (const f of frozen) insert.run(releaseId, f.item.id, JSON.stringify(f.item), f.density?.start ?? null, f.density?.blob ?? null);
+    for (const f of frozen)
+      insert.run(releaseId, f.item.id, JSON.stringify(f.item), f.density?.start ?? null, f.density?.blob ?? null);
     sqlite
-      .prepare("insert into audit_log (actor_id, action, entity, entity_id, after) values (?, 'release.publish', 'release', ?, ?)")
+      .prepare(
+        "insert into audit_log (actor_id, action, entity, entity_id, after) values (?, 'release.publish', 'release', ?, ?)",
+      )
       .run(input.userId, String(releaseId), JSON.stringify({ slug, name, version, count: rows.length, checksum }));
     return { id: releaseId, slug, checksum, count: rows.length };
   })();
@@ -156,7 +178,9 @@ const parseRelease = (r: RawRelease): ReleaseRow => ({
 });
 
 export function listReleases(db: Db): ReleaseRow[] {
-  return (db.$client.prepare(`${RELEASE_SELECT} order by r.published_at desc, r.id desc`).all() as RawRelease[]).map(parseRelease);
+  return (db.$client.prepare(`${RELEASE_SELECT} order by r.published_at desc, r.id desc`).all() as RawRelease[]).map(
+    parseRelease,
+  );
 }
 
 export function releaseBySlug(db: Db, slug: string): ReleaseRow | null {
@@ -202,4 +226,30 @@ export function* releaseItemsWithDensities(db: Db, releaseId: number, batch = 50
     }
     after = rows[rows.length - 1]!.id;
   }
+}
+
+/** The version a new release of this name gets when none is given: one more than the number of earlier ones. */
+export function nextVersion(db: Db, name: string): string {
+  const n = (db.$client.prepare("select count(*) as n from releases where name = ?").get(name.trim()) as { n: number }).n;
+  let v = n + 1;
+  while (db.$client.prepare("select 1 from releases where name = ? and version = ?").get(name.trim(), String(v))) v++;
+  return String(v);
+}
+
+/** A release as the API lists it. */
+export function releaseSummary(r: ReleaseRow, pageUrl: string) {
+  return {
+    slug: r.slug,
+    name: r.name,
+    version: r.version,
+    description: r.description,
+    count: r.itemCount,
+    checksum: r.checksum,
+    checksum_rule: r.checksumRule,
+    citation: r.citation,
+    published_at: new Date(r.publishedAt).toISOString(),
+    filter: r.filter,
+    curves: r.curves,
+    url: pageUrl,
+  };
 }

@@ -12,8 +12,9 @@ import {
   type DownloadFormat,
   type DownloadMetadata,
 } from "#app/models/releases/downloads.server.ts";
-import { densitiesFor, selectionIds, selectionItems, type SelectedRow } from "#app/models/releases/selection.server.ts";
-import { decodeDensity } from "#app/models/calibrations.server.ts";
+import { selectionIds } from "#app/models/registry/constraints.server.ts";
+import { densitiesFor, selectionItems, type SelectedRow } from "#app/models/releases/selection.server.ts";
+import { decodeDensity } from "#app/models/calibration/calibrations.server.ts";
 import { filterRecord, type ConstraintFilter } from "#app/utils/constraint-filter.ts";
 
 export type Selection = { rows: SelectedRow[]; metadata: DownloadMetadata };
@@ -39,7 +40,11 @@ export function selectConstraints(db: Db, filter: ConstraintFilter, exportedAt =
 }
 
 /** Items with their densities, read from the database a few hundred at a time as the stream is pulled. */
-export function* withDensities(db: Db, rows: readonly SelectedRow[], batch = 500): Generator<{ item: object; density: DensityOut | null }> {
+export function* withDensities(
+  db: Db,
+  rows: readonly SelectedRow[],
+  batch = 500,
+): Generator<{ item: object; density: DensityOut | null }> {
   for (let i = 0; i < rows.length; i += batch) {
     const slice = rows.slice(i, i + batch);
     const blobs = densitiesFor(
@@ -77,7 +82,14 @@ export function selectionResponse(
     if (options.metadataUrl) headers.set("Link", `<${options.metadataUrl}>; rel="describedby"; type="application/json"`);
     return new Response(csvDownload(rows.map((r) => r.item)), { headers });
   }
-  if (format === "geojson") return new Response(geojsonDownload(metadata, rows.map((r) => r.item)), { headers });
+  if (format === "geojson")
+    return new Response(
+      geojsonDownload(
+        metadata,
+        rows.map((r) => r.item),
+      ),
+      { headers },
+    );
   const items = options.densities ? withDensities(db, rows) : rows.map((r) => ({ item: r.item }));
   return new Response(jsonDownload(metadata, items), { headers });
 }

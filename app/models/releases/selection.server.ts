@@ -1,110 +1,12 @@
-// The constraint-set query: which determinations a filter selects, their count, and each one as
-// a constraint item (the shape of the API, the downloads and a release's frozen items).
-// One SQL statement for the ids (plus a point-in-polygon pass for a drawn region), one for the
-// rows; no per-row queries.
-import booleanPointInPolygon from "@turf/boolean-point-in-polygon";
+// Each selected determination as a constraint item: the shape of the API, the downloads and a
+// release's frozen items. Which determinations a filter selects is the registry's
+// (models/registry/constraints.server.ts); rows are read in chunks, no per-row queries.
 import type { Db } from "#app/db/client.server.ts";
 import type { HpdRange } from "#app/db/schema.ts";
-import {
-  orderedWindow,
-  regionGeometry,
-  severitiesWorseThan,
-  type ConstraintFilter,
-  type RegionGeometry,
-} from "#app/utils/constraint-filter.ts";
+import { CURRENT_CALIBRATION_JOIN } from "#app/models/registry/conditions.server.ts";
 import { gradeWord } from "#app/utils/labels.ts";
 
-type Where = { joins: string[]; parts: string[]; params: unknown[] };
-
 const placeholders = (n: number) => Array.from({ length: n }, () => "?").join(",");
-
-/** Bounding box of a GeoJSON region, [W, S, E, N], for the SQL pre-filter. */
-function geometryBbox(g: RegionGeometry): [number, number, number, number] {
-  const polys = g.type === "Polygon" ? [g.coordinates] : g.coordinates;
-  let [w, s, e, n] = [Infinity, Infinity, -Infinity, -Infinity];
-  for (const poly of polys)
-    for (const ring of poly)
-      for (const [x, y] of ring) {
-        w = Math.min(w, x!);
-        e = Math.max(e, x!);
-        s = Math.min(s, y!);
-        n = Math.max(n, y!);
-      }
-  return [w, s, e, n];
-}
-
-/**
- * The WHERE clause of a filter. Only determinations that are not withdrawn and have a current
- * calendar age are constraints. The time window (cal BP, either order) keeps a determination
- * whose 95.4 % range overlaps it, or with time_mode=median whose median lies in it.
- */
-export function constraintWhere(f: ConstraintFilter): Where {
-  const w: Where = { joins: [], parts: ["d.status != 'withdrawn'", "c.median_cal_bp is not null"], params: [] };
-  const add = (sql: string, ...params: unknown[]) => {
-    w.parts.push(sql);
-    w.params.push(...params);
-  };
-  const boxes: [number, number, number, number][] = [];
-  if (f.bbox) boxes.push(f.bbox);
-  const region = regionGeometry(f);
-  if (region) boxes.push(geometryBbox(region));
-  for (const [west, south, east, north] of boxes) {
-    add("t.longitude between ? and ? and t.latitude between ? and ?", west, east, south, north);
-  }
-  const [young, old] = orderedWindow(f);
-  if (f.time_mode === "median") {
-    if (young != null) add("c.median_cal_bp >= ?", young);
-    if (old != null) add("c.median_cal_bp <= ?", old);
-  } else {
-    if (young != null) add("c.hpd95_from_bp >= ?", young);
-    if (old != null) add("c.hpd95_to_bp <= ?", old);
-  }
-  if (f.methods) add(`d.method in (${placeholders(f.methods.length)})`, ...f.methods);
-  if (f.materials) add(`s.material in (${placeholders(f.materials.length)})`, ...f.materials);
-  if (f.kinds) add(`d.constraint_kind in (${placeholders(f.kinds.length)})`, ...f.kinds);
-  if (f.min_grade != null) add("d.grade >= ?", f.min_grade);
-  if (f.exclude_flags) {
-    add(
-      `not exists (select 1 from reviews r, json_each(r.flags) fl
-         where r.id = (select max(id) from reviews where determination_id = d.id)
-           and fl.value in (${placeholders(f.exclude_flags.length)}))`,
-      ...f.exclude_flags,
-    );
-  }
-  if (f.worst_check) {
-    const worse = severitiesWorseThan(f.worst_check);
-    if (worse.length > 0) {
-      add(
-        `not exists (select 1 from check_results k where k.determination_id = d.id and k.severity in (${placeholders(worse.length)}))`,
-        ...worse,
-      );
-    }
-  }
-  if (f.curve) add("c.curve_id in (select id from curves where name = ?)", f.curve);
-  return w;
-}
-
-const SELECTION_FROM = `from determinations d
-  join samples s on s.id = d.sample_id
-  join sites t on t.id = s.site_id
-  join calibrations c on c.determination_id = d.id and c.is_current = 1`;
-
-/** Ids of the selected determinations, ascending. */
-export function selectionIds(db: Db, f: ConstraintFilter): number[] {
-  const w = constraintWhere(f);
-  const region = regionGeometry(f);
-  const sql = `select d.id, t.longitude as lon, t.latitude as lat ${SELECTION_FROM} where ${w.parts.join(" and ")} order by d.id`;
-  const rows = db.$client.prepare(sql).all(...w.params) as { id: number; lon: number; lat: number }[];
-  if (!region) return rows.map((r) => r.id);
-  return rows.filter((r) => booleanPointInPolygon([r.lon, r.lat], region)).map((r) => r.id);
-}
-
-/** How many determinations the filter selects (the live count). */
-export function selectionCount(db: Db, f: ConstraintFilter): number {
-  if (regionGeometry(f)) return selectionIds(db, f).length;
-  const w = constraintWhere(f);
-  return (db.$client.prepare(`select count(*) as n ${SELECTION_FROM} where ${w.parts.join(" and ")}`).get(...w.params) as { n: number }).n;
-}
 
 export type CheckSummary = { check: string; severity: string };
 
@@ -232,7 +134,7 @@ export function* selectionItems(db: Db, ids: readonly number[]): Generator<Selec
        join samples s on s.id = d.sample_id
        join sites t on t.id = s.site_id
        join labs l on l.id = d.lab_id
-       join calibrations c on c.determination_id = d.id and c.is_current = 1
+       join ${CURRENT_CALIBRATION_JOIN}
        left join publications p on p.id = d.publication_id
        where d.id in (${placeholders(n)})`,
     );
@@ -253,9 +155,19 @@ export function densitiesFor(db: Db, calibrationIds: readonly number[]): Map<num
   for (let i = 0; i < calibrationIds.length; i += CHUNK) {
     const chunk = calibrationIds.slice(i, i + CHUNK);
     const rows = db.$client
-      .prepare(`select id, density_start_cal_bp as start, density as blob from calibrations where id in (${placeholders(chunk.length)})`)
+      .prepare(
+        `select id, density_start_cal_bp as start, density as blob from calibrations where id in (${placeholders(chunk.length)})`,
+      )
       .all(...chunk) as { id: number; start: number | null; blob: Buffer | null }[];
     for (const r of rows) if (r.blob && r.start != null) out.set(r.id, { start: r.start, blob: r.blob });
   }
   return out;
+}
+
+/** An error naming `curve` when no curve of that name is stored, else null. */
+export function knownCurveError(db: Db, curve: string): string | null {
+  const names = (db.$client.prepare("select distinct name from curves order by name").all() as { name: string }[]).map(
+    (r) => r.name,
+  );
+  return names.includes(curve) ? null : `curve: no curve named "${curve.slice(0, 40)}" (known: ${names.join(", ")})`;
 }
