@@ -60,5 +60,7 @@ export default [
     route("constraints", "routes/api/v1/constraints.ts"),
     route("releases", "routes/api/v1/releases.ts"),
     route("releases/:slug", "routes/api/v1/release.ts"),
+    route("determinations/:id", "routes/api/v1/determination.ts"),
+    route("reviews", "routes/api/v1/reviews.ts"),
   ]),
 ] satisfies RouteConfig;

@@ -31,7 +31,9 @@ const ENDPOINTS = [
   ["POST", "/api/v1/calibrate", "calibrate", "anyone"],
   ["GET", "/api/v1/me", "me", "any token"],
   ["GET", "/api/v1/determinations", "determinations-get", "any token"],
+  ["GET", "/api/v1/determinations/{id}", "determination-get", "any token"],
   ["POST", "/api/v1/determinations", "determinations-post", "contributor token"],
+  ["POST", "/api/v1/reviews", "reviews-post", "reviewer token"],
   ["POST", "/api/v1/uploads", "uploads", "contributor token"],
   ["POST", "/api/v1/uploads/{upload_id}/commit", "uploads-commit", "contributor token"],
 ] as const;
@@ -45,6 +47,7 @@ function filterParameters(perPage: { default: number; max: number }): [string, s
     ["kind", "constraint kind: minimum, maximum or direct"],
     ["status", "submitted, in_review, graded, withdrawn or all (left out: everything but withdrawn)"],
     ["grade", "minimum grade 3, 2, 1 or 0, or ungraded"],
+    ["worst_check", "the worst automatic check result: conflict, warning, note or pass"],
     ["ageFrom, ageTo", "window on the measured age in years (¹⁴C yr BP, or luminescence years before measurement)"],
     ["calFrom, calTo", "window on the calibrated median, cal BP"],
     ["q", "part of a lab code or site name"],
@@ -197,6 +200,44 @@ export default function ApiDocs({ loaderData }: Route.ComponentProps) {
           Luminescence ages have <code>"curve": "luminescence (normal)"</code>. A page past the end has an empty list. A malformed
           parameter is <code>400</code> <code>{`{"errors": ["per_page: …"]}`}</code>. Pages are read from Explore's pages of{" "}
           {EXPLORE_PAGE_SIZE}, so a large <code>per_page</code> costs a little more.
+        </p>
+      </Endpoint>
+
+      <Endpoint id="determination-get" method="GET" path="/api/v1/determinations/{id}" who="Any valid token.">
+        <p>
+          One determination in exactly the shape of a list item above, plus every automatic check result and every review (newest
+          first). A new grade shows here as soon as it is recorded. 404 <code>{`{"error"}`}</code> for an unknown id.
+        </p>
+        <Code>{`curl -s -H "Authorization: Bearer <token>" ${base}/api/v1/determinations/42`}</Code>
+        <Code>{`{
+  "id": 42, "lab_code": "KVX-1234", "grade": 2, "status": "graded", … (the list item's fields),
+  "checks": [
+    {"check": "reconstruction", "severity": "conflict",
+     "message": "P(site still under ice at this age) = 0.97 by …", "details": {"pUnderIce": 0.97, …}},
+    …
+  ],
+  "reviews": [{"grade": 2, "flags": ["bulk_sediment"], "comment": "Usable with care.", "created_at": "2026-…Z"}]
+}`}</Code>
+        <p>
+          Checks are <code>value_range</code>, <code>marine</code>, <code>replicates</code>, <code>stratigraphy</code>,{" "}
+          <code>neighbours</code>, <code>reconstruction</code> and <code>duplicates</code>; severities <code>pass</code>,{" "}
+          <code>note</code>, <code>warning</code>, <code>conflict</code>.
+        </p>
+      </Endpoint>
+
+      <Endpoint id="reviews-post" method="POST" path="/api/v1/reviews" who="A reviewer's token.">
+        <p>
+          Grades one determination: grade 3 secure, 2 usable, 1 doubtful, 0 rejected; flags from young_carbon, old_carbon,
+          reworked, bulk_sediment, reservoir_uncertain, partial_bleaching, near_saturation, dose_rate_uncertain,
+          weak_stratigraphy, location_uncertain; an optional comment. Every review is kept; the determination shows the latest.
+        </p>
+        <Code>{`curl -s -X POST ${base}/api/v1/reviews -H "Authorization: Bearer <token>" \\
+  -H "Content-Type: application/json" \\
+  -d '{"determination_id": 42, "grade": 2, "flags": ["bulk_sediment"], "comment": "Usable with care."}'`}</Code>
+        <p>
+          201 <code>{`{"id": 17}`}</code> (the review's id). 400 <code>{`{"errors":[{"field","message"}]}`}</code> naming the
+          field for an unknown grade or flag or a malformed body; 403 when you submitted the determination yourself (nobody grades
+          their own); 404 for an unknown determination; 409 when it was withdrawn or another reviewer has taken it in the queue.
         </p>
       </Endpoint>
 

@@ -192,6 +192,20 @@ export const ACCESS: Record<string, Row> = {
     get: { ...signedIn("ok"), "signed-out": "unauthorized" },
     post: only(["contributor"], "allowed", "unauthorized"),
   },
+  // Review (issue 9)
+  "routes/api/v1/determination": {
+    url: "/api/v1/determinations/:id",
+    params: { id: "determinationId" },
+    auth: "token",
+    get: { ...signedIn("ok"), "signed-out": "unauthorized" },
+    post: "none",
+  },
+  "routes/api/v1/reviews": {
+    url: "/api/v1/reviews",
+    auth: "token",
+    get: "none",
+    post: only(["reviewer"], "allowed", "unauthorized"),
+  },
 };
 
 type Entry = { id: string; file: string; path: string };

@@ -127,6 +127,39 @@ type Joined = Omit<
 /** One page for the API: Explore's page of ids, then one query for every field of those rows. */
 export function apiDeterminations(db: Db, query: ApiQuery): ApiPage {
   const { ids, total } = pageIds(db, query.filters, query.perPage);
+  return { page: query.filters.page, per_page: query.perPage, total, determinations: apiRows(db, ids) };
+}
+
+export type ApiDeterminationDetail = ApiDetermination & {
+  checks: { check: string; severity: string; message: string; details: Record<string, unknown> | null }[];
+  reviews: { grade: number; flags: string[]; comment: string | null; created_at: string }[];
+};
+
+/** One determination as a list item, plus every check and every review (newest first); null when unknown. */
+export function apiDetermination(db: Db, id: number): ApiDeterminationDetail | null {
+  const [item] = apiRows(db, [id]);
+  if (!item) return null;
+  const checks = (
+    db.$client
+      .prepare('select "check", severity, message, details from check_results where determination_id = ? order by id')
+      .all(id) as { check: string; severity: string; message: string; details: string | null }[]
+  ).map((c) => ({ ...c, details: c.details ? (JSON.parse(c.details) as Record<string, unknown>) : null }));
+  const reviews = (
+    db.$client
+      .prepare(
+        "select grade, flags, comment, created_at from reviews where determination_id = ? order by created_at desc, id desc",
+      )
+      .all(id) as { grade: number; flags: string; comment: string | null; created_at: number }[]
+  ).map((r) => ({
+    grade: r.grade,
+    flags: JSON.parse(r.flags) as string[],
+    comment: r.comment,
+    created_at: new Date(r.created_at).toISOString(),
+  }));
+  return { ...item, checks, reviews };
+}
+
+function apiRows(db: Db, ids: number[]): ApiDetermination[] {
   const rows =
     ids.length === 0
       ? []
@@ -152,15 +185,10 @@ export function apiDeterminations(db: Db, query: ApiQuery): ApiPage {
           )
           .all(...ids) as Joined[]);
   const byId = new Map(rows.map((r) => [r.id, r]));
-  return {
-    page: query.filters.page,
-    per_page: query.perPage,
-    total,
-    determinations: ids
-      .map((id) => byId.get(id))
-      .filter((r): r is Joined => !!r)
-      .map(toApi),
-  };
+  return ids
+    .map((id) => byId.get(id))
+    .filter((r): r is Joined => !!r)
+    .map(toApi);
 }
 
 function toApi(r: Joined): ApiDetermination {
