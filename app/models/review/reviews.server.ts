@@ -21,7 +21,6 @@ export class ReviewRefused extends Error {
   }
 }
 
-
 /** What a reviewer sets; the review page, the bulk form and the API share it. */
 export const gradeSchema = z.object({
   grade: z.coerce
