@@ -3,6 +3,7 @@
 // reconstruction, all in one transaction; then calibrates every determination and runs the checks.
 
 import fs from "node:fs";
+import { seedDemoReleases } from "./demo-releases.server.ts";
 import { eq, inArray, sql } from "drizzle-orm";
 import type { Db } from "#app/db/client.server.ts";
 import { auditLog, labs, publications, reconstructions, type Role } from "#app/db/schema.ts";
@@ -115,6 +116,7 @@ export async function seedDemo(db: Db, options: SeedOptions): Promise<SeedResult
       calibrationFailures = r.failed;
     });
     await stage("checks", () => runAllChecks(db));
+    await stage("releases", () => seedDemoReleases(db, written.userIds["editor@example.org"]!));
   }
   return {
     summary: scenarioSummary(scenario),

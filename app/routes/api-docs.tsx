@@ -1,6 +1,8 @@
 import { Link } from "react-router";
 import type { Route } from "./+types/api-docs";
+import { ConstraintsApiSection } from "#app/components/api-docs/constraints-section.tsx";
 import { ErrorView } from "#app/components/error-view.tsx";
+import { listReleases } from "#app/models/releases/releases.server.ts";
 import { getDb } from "#app/db/client.server.ts";
 import { calibrateItems } from "#app/models/calibration/calibrate-items.server.ts";
 import { API_DEFAULT_PER_PAGE, API_MAX_PER_PAGE } from "#app/models/registry/determinations-api.server.ts";
@@ -24,6 +26,7 @@ export async function loader({ request }: Route.LoaderArgs) {
     uploadMaxMb: Math.round(env().UPLOAD_MAX_BYTES / 1024 / 1024),
     calibrated,
     perPage: { default: API_DEFAULT_PER_PAGE, max: API_MAX_PER_PAGE },
+    releaseSlug: listReleases(getDb())[0]?.slug ?? "{slug}",
   };
 }
 
@@ -36,6 +39,9 @@ const ENDPOINTS = [
   ["POST", "/api/v1/reviews", "reviews-post", "reviewer token"],
   ["POST", "/api/v1/uploads", "uploads", "contributor token"],
   ["POST", "/api/v1/uploads/{upload_id}/commit", "uploads-commit", "contributor token"],
+  ["GET, POST", "/api/v1/constraints", "constraints", "any token"],
+  ["GET", "/api/v1/releases, /api/v1/releases/{slug}", "constraints", "anyone"],
+  ["POST", "/api/v1/releases", "constraints", "editor token"],
 ] as const;
 
 function filterParameters(perPage: { default: number; max: number }): [string, string][] {
@@ -59,7 +65,7 @@ function filterParameters(perPage: { default: number; max: number }): [string, s
 }
 
 export default function ApiDocs({ loaderData }: Route.ComponentProps) {
-  const { base, uploadMaxMb, calibrated, perPage } = loaderData;
+  const { base, uploadMaxMb, calibrated, perPage, releaseSlug } = loaderData;
   const calibrateExample = calibrated
     ? JSON.stringify(calibrated, null, 2)
     : `{"curves": {"intcal20": {"version": "…", "citation": "…"}},
@@ -322,6 +328,7 @@ export default function ApiDocs({ loaderData }: Route.ComponentProps) {
           </table>
         </div>
       </section>
+      <ConstraintsApiSection base={base} releaseSlug={releaseSlug} />
     </div>
   );
 }
