@@ -7,7 +7,7 @@
  */
 import { Readable } from "node:stream";
 import { pipeline } from "node:stream/promises";
-import { createRequestHandler } from "react-router";
+import { createRequestHandler, RouterContextProvider } from "react-router";
 
 /**
  * @param {import("express").Request & { limitedBody?: Readable }} req
@@ -59,7 +59,10 @@ export function reactRouterHandler({ build, mode }) {
   const handle = createRequestHandler(build, mode);
   return async (req, res, next) => {
     try {
-      const response = await handle(toRequest(req, res), { cspNonce: res.locals.cspNonce });
+      // With React Router's middleware (future.v8_middleware) the load context must be a
+      // RouterContextProvider; the nonce rides on it as a plain property, read by entry.server.tsx.
+      const context = Object.assign(new RouterContextProvider(), { cspNonce: res.locals.cspNonce });
+      const response = await handle(toRequest(req, res), context);
       await send(res, response);
     } catch (error) {
       next(error);

@@ -7,7 +7,7 @@ import { useNavigate } from "react-router";
 import type { Feature, FeatureCollection } from "geojson";
 import { textLabel } from "./text-label.client.ts";
 import { Basemap, FALLBACK_BOUNDS, SEA_COLOUR } from "./basemap.client.tsx";
-import { ageColourScale, gradeColour } from "#app/utils/map-colours.ts";
+import { ageColourScale, siteMark } from "#app/utils/map-colours.ts";
 import { gradeWord } from "#app/utils/labels.ts";
 import { formatYears } from "#app/utils/age-format.ts";
 import type { MapSite } from "#app/utils/map-site.ts";
@@ -19,7 +19,7 @@ export type SiteMapProps = {
   isochrones: Feature[] | null;
   showIsochrones: boolean;
   colourBy: "age" | "grade";
-  /** Slider time in cal BP: sites dated older are ice-free (filled), younger still under ice (hollow). */
+  /** Slider time in cal BP: sites dated older are ice-free (coloured), younger still under ice (small grey dots). */
   time: number | null;
   /** The isochrone age nearest the slider, highlighted. */
   highlightAge: number | null;
@@ -32,7 +32,7 @@ function escapeHtml(s: string): string {
 }
 
 function popupHtml(s: ClientMapSite): string {
-  const age = s.med != null ? `${formatYears(s.med)} BP (median of dates)` : "no age yet";
+  const age = s.med != null ? `${formatYears(s.med)} cal BP (median of deglaciation dates)` : "no age yet";
   const grade = s.grade != null ? `best grade ${s.grade} ${gradeWord(s.grade)}` : "ungraded";
   return `<div class="font-serif">
     <p style="margin:0;font-weight:600;font-size:15px">${escapeHtml(s.name)}</p>
@@ -163,14 +163,8 @@ export default function SiteMap(props: SiteMapProps) {
   const styleFor = useMemo(
     () =>
       (s: ClientMapSite): L.CircleMarkerOptions => {
-        const fillColor = colourBy === "grade" ? gradeColour(s.grade) : s.med != null ? ageScale(s.med) : "#ffffff";
-        const iceFree = time == null || (s.med != null && s.med >= time);
-        if (s.med == null && colourBy === "age") {
-          return { radius: 4, color: "#5b6975", weight: 1, dashArray: "2 2", fillColor: "#ffffff", fillOpacity: 0.6 };
-        }
-        return iceFree
-          ? { radius: 4.5, color: "#0f273b", weight: 0.7, fillColor, fillOpacity: 0.95, dashArray: undefined }
-          : { radius: 3.5, color: "#1f4e72", weight: 1.3, fillColor: "#ffffff", fillOpacity: 0.15, dashArray: undefined };
+        const { style } = siteMark(s, colourBy, time, (age) => ageScale(age));
+        return { ...style, dashArray: style.dashArray ?? undefined };
       },
     [colourBy, time, ageScale],
   );

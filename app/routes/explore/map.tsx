@@ -5,10 +5,9 @@ import type { Route } from "./+types/map";
 import { requireUser } from "#app/auth/session.server.ts";
 import { ErrorView } from "#app/components/error-view.tsx";
 import { getDb } from "#app/db/client.server.ts";
+import { MapLegend } from "#app/components/map/map-legend.tsx";
 import { demoIsochrones, type MapSite } from "#app/models/registry/map.server.ts";
 import { formatYears } from "#app/utils/age-format.ts";
-import { GRADE_WORDS } from "#app/utils/labels.ts";
-import { AGE_STOPS, gradeColour } from "#app/utils/map-colours.ts";
 
 // Leaflet needs `window`: the map is a browser-only module loaded after hydration.
 const SiteMap = lazy(() => import("#app/components/map/site-map.client.tsx"));
@@ -136,7 +135,9 @@ export default function MapPage({ loaderData }: Route.ComponentProps) {
                 Best reliability grade
               </label>
             </div>
-            <div className="mt-4">{colourBy === "age" ? <AgeLegend domain={ageDomain} /> : <GradeLegend />}</div>
+            <div className="mt-4">
+              <MapLegend colourBy={colourBy} ageDomain={ageDomain} timeSet={time != null} />
+            </div>
           </fieldset>
 
           <div className="card space-y-3">
@@ -166,7 +167,7 @@ export default function MapPage({ loaderData }: Route.ComponentProps) {
               {sites ? (
                 <>
                   <strong>{iceFreeCount.toLocaleString("en")}</strong> of {sites.length.toLocaleString("en")} sites dated ice-free
-                  by then (filled); the rest still under ice (hollow).
+                  by then (coloured); the rest still under ice (small grey dots).
                 </>
               ) : null}
             </p>
@@ -209,49 +210,6 @@ function MapPlaceholder({ text }: { text: string }) {
     <div className="flex h-[68vh] min-h-[420px] items-center justify-center rounded-md border border-rule bg-ice-50 text-muted">
       {text}
     </div>
-  );
-}
-
-function AgeLegend({ domain }: { domain: [number, number] }) {
-  return (
-    <div>
-      <div
-        className="h-3 rounded border border-ice-800"
-        style={{ background: `linear-gradient(to right, ${AGE_STOPS.join(", ")})` }}
-        aria-hidden="true"
-      />
-      <div className="mt-1 flex justify-between text-xs">
-        <span>{formatYears(domain[0])} BP (young)</span>
-        <span>{formatYears(domain[1])}+ (old)</span>
-      </div>
-      <p className="mt-2 flex items-center gap-2 text-xs text-muted">
-        <svg width="12" height="12" aria-hidden="true">
-          <circle cx="6" cy="6" r="4.5" fill="#fff" stroke="#5b6975" strokeDasharray="2 2" />
-        </svg>
-        no deglaciation age (no minimum-limiting or direct date)
-      </p>
-    </div>
-  );
-}
-
-function GradeLegend() {
-  return (
-    <ul className="space-y-1 text-sm">
-      {[3, 2, 1, 0].map((g) => (
-        <li key={g} className="flex items-center gap-2">
-          <svg width="14" height="14" aria-hidden="true">
-            <circle cx="7" cy="7" r="5.5" fill={gradeColour(g)} stroke="#0f273b" strokeWidth="1" />
-          </svg>
-          {g} {GRADE_WORDS[g]}
-        </li>
-      ))}
-      <li className="flex items-center gap-2">
-        <svg width="14" height="14" aria-hidden="true">
-          <circle cx="7" cy="7" r="5.5" fill={gradeColour(null)} stroke="#0f273b" strokeWidth="1" />
-        </svg>
-        ungraded
-      </li>
-    </ul>
   );
 }
 
