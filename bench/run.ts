@@ -22,7 +22,7 @@ const { seedDemo } = await import("#seed/seed.server.ts");
 const { createSession } = await import("#app/auth/session.server.ts");
 const { calibrate } = await import("#app/science/calibration.ts");
 const { interpretRadiocarbon } = await import("#app/science/radiocarbon.ts");
-const { benchUpload } = await import("#app/models/submission/uploads.server.ts");
+const { benchUpload } = await import("./upload.ts");
 const exploreRoute = await import("#app/routes/explore/explore.tsx");
 const determinationRoute = await import("#app/routes/explore/determination.tsx");
 

@@ -48,6 +48,8 @@ const env = {
   MAIL_FAKE_PORT: mailPort,
   MAIL_OUTBOX_DIR: process.env.MAIL_OUTBOX_DIR ?? "data/outbox",
   SECURE_COOKIES: process.env.SECURE_COOKIES ?? "false",
+  // The demo's sites lie in northern Labrador and Ungava Bay.
+  REGION_OF_INTEREST: process.env.REGION_OF_INTEREST ?? "55,62,-75,-58",
 };
 const tsx = path.resolve("node_modules/.bin/tsx");
 

@@ -12,7 +12,7 @@ import { useEffect, useMemo, useRef, useState } from "react";
 import { Form, Link, useFetcher, useNavigation } from "react-router";
 import { SiteLocationPicker } from "#app/components/site-location-picker.tsx";
 import { formatCal, formatCalRange, formatProbability } from "#app/utils/age-format.ts";
-import { columnSpec, ROW_SIGNALS } from "#app/utils/determination-input.ts";
+import { columnSpec, ROW_SIGNALS } from "#app/utils/determination-input/columns.ts";
 import {
   clientRowContext,
   existingRecordLink,

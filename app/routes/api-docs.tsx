@@ -7,7 +7,7 @@ import { getDb } from "#app/db/client.server.ts";
 import { calibrateItems } from "#app/models/calibration/calibrate-items.server.ts";
 import { API_DEFAULT_PER_PAGE, API_MAX_PER_PAGE } from "#app/models/registry/determinations-api.server.ts";
 import { EXPLORE_PAGE_SIZE } from "#app/utils/explore-filters.ts";
-import { COLUMNS } from "#app/utils/determination-input.ts";
+import { COLUMNS } from "#app/utils/determination-input/columns.ts";
 import { MAX_CALIBRATION_ITEMS } from "#app/utils/calibrate-input.ts";
 import { env } from "#app/utils/env.server.ts";
 

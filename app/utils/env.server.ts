@@ -36,6 +36,16 @@ const schema = z.object({
     .int()
     .positive()
     .default(8 * 1024 * 1024),
+  /** "south,north,west,east" in decimal degrees: where the sites lie, for the swapped-coordinates hint. */
+  REGION_OF_INTEREST: z
+    .string()
+    .regex(/^\s*-?[\d.]+\s*,\s*-?[\d.]+\s*,\s*-?[\d.]+\s*,\s*-?[\d.]+\s*$/, "give south,north,west,east")
+    .optional()
+    .transform((v) => {
+      if (!v) return null;
+      const [south, north, west, east] = v.split(",").map(Number) as [number, number, number, number];
+      return { south, north, west, east };
+    }),
   SECURE_COOKIES: z
     .enum(["true", "false"])
     .optional()

@@ -4,13 +4,9 @@
 // browser, the server with the same schema plus the checks that need the database.
 
 import { z } from "zod";
-import {
-  isBlankCell,
-  makeRowSchema,
-  type DeterminationRow,
-  type RowContext,
-  type RowIssue,
-} from "#app/utils/determination-input.ts";
+import { isBlankCell } from "#app/utils/determination-input/cells.ts";
+import { makeRowSchema } from "#app/utils/determination-input/schema.ts";
+import { type DeterminationRow, type Region, type RowContext, type RowIssue } from "#app/utils/determination-input/row.ts";
 
 export const SITE_CHOICES = ["existing", "new"] as const;
 export type SiteChoice = (typeof SITE_CHOICES)[number];
@@ -29,16 +25,18 @@ export type FormOptions = {
   labs: { id: number; name: string; codePrefix: string }[];
   materials: { name: string; methods: string[]; marine: boolean }[];
   curves: { name: string; displayName: string; kind: "atmospheric" | "marine" }[];
+  regionOfInterest?: Region | null;
 };
 
 /** The validation context the browser can build without the database (no duplicate or curve-range checks). */
-export function clientRowContext(options: Pick<FormOptions, "materials" | "curves">): RowContext {
+export function clientRowContext(options: Pick<FormOptions, "materials" | "curves" | "regionOfInterest">): RowContext {
   return {
     materials: options.materials.map((m) => m.name),
     curves: options.curves.map((c) => c.name),
     marineMaterials: options.materials.filter((m) => m.marine).map((m) => m.name),
     marineCurves: options.curves.filter((c) => c.kind === "marine").map((c) => c.name),
     materialMethods: Object.fromEntries(options.materials.map((m) => [m.name.toLowerCase(), m.methods])),
+    regionOfInterest: options.regionOfInterest ?? null,
   };
 }
 

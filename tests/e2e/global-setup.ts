@@ -70,6 +70,7 @@ export default async function setup(project: TestProject) {
     RESEND_BASE_URL: mail.url,
     MAIL_OUTBOX_DIR: outboxDir,
     SECURE_COOKIES: "false",
+    REGION_OF_INTEREST: "55,62,-75,-58",
     // Every browser test signs in from 127.0.0.1, often as the same demo person.
     SIGN_IN_RATE_LIMIT_FACTOR: "50",
   };

@@ -10,6 +10,8 @@ fs.copyFileSync(path.join(dir, "base.db"), file);
 process.env.DATABASE_URL = file;
 process.env.NODE_ENV = "test";
 process.env.SECURE_COOKIES = "false";
+// The fixtures' sites lie where the demo's do (northern Labrador and Ungava Bay).
+process.env.REGION_OF_INTEREST = "55,62,-75,-58";
 process.env.MAIL_OUTBOX_DIR = path.join(dir, "outbox");
 
 afterAll(async () => {

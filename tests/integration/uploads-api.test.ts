@@ -11,7 +11,7 @@ import * as uploadPage from "#app/routes/contribute/upload.tsx";
 import * as errorsCsv from "#app/routes/resources/upload-errors-csv.ts";
 import * as templateXlsx from "#app/routes/resources/upload-template-xlsx.ts";
 import * as templateCsv from "#app/routes/resources/upload-template-csv.ts";
-import { readUpload } from "#app/models/submission/uploads.server.ts";
+import { readUpload } from "#app/models/submission/uploads/read-sheet.server.ts";
 import { createTestUser } from "#tests/factories.ts";
 import { args, get, ORIGIN, personWithSession, post, run } from "#tests/support/auth.ts";
 import { toCsvText, toXlsx, uploadRows } from "#tests/support/upload-files.ts";

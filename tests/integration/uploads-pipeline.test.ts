@@ -2,18 +2,11 @@ import { eq } from "drizzle-orm";
 import { describe, expect, it } from "vitest";
 import { getDb } from "#app/db/client.server.ts";
 import { determinations, labs, uploadBatches } from "#app/db/schema.ts";
-import {
-  checkFileSize,
-  commitUpload,
-  CommitRefused,
-  createUpload,
-  guessMapping,
-  normaliseHeader,
-  readUpload,
-  remapUpload,
-  undoUpload,
-  UploadError,
-} from "#app/models/submission/uploads.server.ts";
+import { checkFileSize, readUpload, UploadError } from "#app/models/submission/uploads/read-sheet.server.ts";
+import { commitUpload, CommitRefused } from "#app/models/submission/uploads/commit.server.ts";
+import { createUpload, remapUpload } from "#app/models/submission/uploads/batches.server.ts";
+import { guessMapping, normaliseHeader } from "#app/models/submission/uploads/mapping.server.ts";
+import { undoUpload } from "#app/models/submission/uploads/undo.server.ts";
 import { createTestDetermination, createTestUser } from "#tests/factories.ts";
 import { toCsvText, toXlsx, uploadRows, type Cells } from "#tests/support/upload-files.ts";
 

@@ -1,7 +1,7 @@
 // Invented upload files for tests and the bench: rows in the demo region with plainly fictional
 // site names and lab codes (prefix ZZQ, used by no laboratory).
 import ExcelJS from "exceljs";
-import { COLUMN_NAMES } from "#app/utils/determination-input.ts";
+import { COLUMN_NAMES } from "#app/utils/determination-input/columns.ts";
 
 export type Cells = Record<string, string | number | Date | { formula: string; result?: number } | null | undefined>;
 

@@ -1,13 +1,9 @@
 import { describe, expect, it } from "vitest";
-import {
-  checkRow,
-  COLUMN_NAMES,
-  EXAMPLE_ROWS,
-  levenshtein,
-  makeRowSchema,
-  nearest,
-  type RowContext,
-} from "#app/utils/determination-input.ts";
+import { checkRow } from "#app/utils/determination-input/check-row.ts";
+import { COLUMN_NAMES, EXAMPLE_ROWS } from "#app/utils/determination-input/columns.ts";
+import { levenshtein, nearest } from "#app/utils/nearest.ts";
+import { makeRowSchema } from "#app/utils/determination-input/schema.ts";
+import { type RowContext } from "#app/utils/determination-input/row.ts";
 
 const ctx: RowContext = {
   materials: ["marine shell", "foraminifera", "plant macrofossil", "wood", "quartz", "K-feldspar"],
@@ -15,6 +11,8 @@ const ctx: RowContext = {
   marineMaterials: ["marine shell", "foraminifera"],
   materialMethods: { "marine shell": ["radiocarbon"], quartz: ["luminescence"], "plant macrofossil": ["radiocarbon"] },
   currentYear: 2025,
+  // Invented region of interest, as REGION_OF_INTEREST configures it (the demo's box).
+  regionOfInterest: { south: 55, north: 62, west: -75, east: -58 },
 };
 
 const c14 = (over: Record<string, unknown> = {}) => ({
@@ -128,6 +126,12 @@ describe("checkRow", () => {
     expect(issueAt(c14({ latitude: "95" }), "latitude")).toContain("outside −90 to 90");
     expect(issueAt(c14({ longitude: "-190" }), "longitude")).toContain("outside −180 to 180");
     expect(issueAt(c14({ latitude: "-64.2", longitude: "58.5" }), "latitude")).toContain("look swapped");
+  });
+
+  it("gives the swapped-coordinates hint only where a region of interest is configured", () => {
+    const r = checkRow(c14({ latitude: "-64.2", longitude: "58.5" }), { ...ctx, regionOfInterest: null });
+    expect(r.ok).toBe(true);
+    expect(r.issues).toEqual([]);
   });
 
   it("needs a measurement for each method", () => {

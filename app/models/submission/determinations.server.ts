@@ -11,7 +11,7 @@ import { auditLog, determinations, labs, publications, samples, sites, type Meth
 import type { MeasurementFields } from "#app/models/calibration/calibrations.server.ts";
 import { doseRateFromFields, type DoseRateFields } from "#app/science/dose-rate-fields.ts";
 import { DEFAULT_CONVERSION_FACTORS } from "#app/science/luminescence.ts";
-import type { DeterminationRow as ValidatedRow } from "#app/utils/determination-input.ts";
+import type { DeterminationRow as ValidatedRow } from "#app/utils/determination-input/row.ts";
 
 export type NewLab = typeof labs.$inferInsert;
 export type LabRow = typeof labs.$inferSelect;

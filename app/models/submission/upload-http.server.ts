@@ -1,5 +1,5 @@
 // Reading an uploaded file out of a request, shared by the upload page and the API.
-import { checkFileSize, UploadError } from "#app/models/submission/uploads.server.ts";
+import { checkFileSize, UploadError } from "#app/models/submission/uploads/read-sheet.server.ts";
 import { env } from "#app/utils/env.server.ts";
 
 /** Room for the multipart envelope around the file. */

@@ -1,7 +1,7 @@
 // The upload template: the columns with one radiocarbon and one luminescence example row, and a
 // second sheet explaining every column. Built from the same catalogue the validation uses.
 import ExcelJS from "exceljs";
-import { COLUMNS, EXAMPLE_ROWS } from "#app/utils/determination-input.ts";
+import { COLUMNS, EXAMPLE_ROWS } from "#app/utils/determination-input/columns.ts";
 import { toCsv } from "#app/utils/csv.ts";
 
 const REQUIRED = new Set([

@@ -5,19 +5,14 @@ import { clientAddress, forbidden, requireRole } from "#app/auth/session.server.
 import { DeterminationForm } from "#app/components/determination-form.tsx";
 import { ErrorView } from "#app/components/error-view.tsx";
 import { getDb } from "#app/db/client.server.ts";
+import { applyChosenSite, formDefaults, isDuplicateLabCode } from "#app/models/submission/form/defaults.server.ts";
+import { editRefusal, getDetermination, updateSubmission, withdrawSubmission } from "#app/models/submission/form/write.server.ts";
 import {
-  applyChosenSite,
-  editRefusal,
-  formDefaults,
   formOptions,
-  getDetermination,
-  isDuplicateLabCode,
   referenceOptions,
   serverSubmissionSchema,
   SubmissionRefused,
-  updateSubmission,
-  withdrawSubmission,
-} from "#app/models/submission/submissions.server.ts";
+} from "#app/models/submission/form/schema.server.ts";
 import { redirectWithFlash } from "#app/utils/flash.server.ts";
 import { notFound } from "#app/utils/http.server.ts";
 import { STATUS_LABELS } from "#app/utils/labels.ts";

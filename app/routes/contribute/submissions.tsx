@@ -6,12 +6,9 @@ import { ErrorView } from "#app/components/error-view.tsx";
 import { GradeBadge } from "#app/components/grade-badge.tsx";
 import { getDb } from "#app/db/client.server.ts";
 import { STATUSES } from "#app/db/schema.ts";
-import {
-  listRowEditable,
-  listSubmissions,
-  SubmissionRefused,
-  withdrawSubmission,
-} from "#app/models/submission/submissions.server.ts";
+import { listRowEditable, listSubmissions } from "#app/models/submission/list.server.ts";
+import { SubmissionRefused } from "#app/models/submission/form/schema.server.ts";
+import { withdrawSubmission } from "#app/models/submission/form/write.server.ts";
 import { formatCal, formatMeasuredAge } from "#app/utils/age-format.ts";
 import { redirectWithFlash } from "#app/utils/flash.server.ts";
 import { METHOD_LABELS, STATUS_LABELS } from "#app/utils/labels.ts";

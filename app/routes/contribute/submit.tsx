@@ -5,16 +5,14 @@ import { clientAddress, requireRole } from "#app/auth/session.server.ts";
 import { DeterminationForm } from "#app/components/determination-form.tsx";
 import { ErrorView } from "#app/components/error-view.tsx";
 import { getDb } from "#app/db/client.server.ts";
+import { applyChosenSite, isDuplicateLabCode, newFormDefaults } from "#app/models/submission/form/defaults.server.ts";
+import { createSubmission } from "#app/models/submission/form/write.server.ts";
 import {
-  applyChosenSite,
-  createSubmission,
   formOptions,
-  isDuplicateLabCode,
-  newFormDefaults,
   referenceOptions,
   serverSubmissionSchema,
   SubmissionRefused,
-} from "#app/models/submission/submissions.server.ts";
+} from "#app/models/submission/form/schema.server.ts";
 import { redirectWithFlash } from "#app/utils/flash.server.ts";
 
 export const meta: Route.MetaFunction = () => [{ title: "Submit a determination · Thawline" }];

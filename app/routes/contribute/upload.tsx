@@ -5,15 +5,10 @@ import { ErrorView } from "#app/components/error-view.tsx";
 import { getDb } from "#app/db/client.server.ts";
 import { sendEmail } from "#app/mail/send.server.ts";
 import { uploadReceiptMessage } from "#app/mail/upload-receipt.server.ts";
-import {
-  commitUpload,
-  CommitRefused,
-  getBatchForUser,
-  remapUpload,
-  sheetOf,
-  type ColumnMapping,
-} from "#app/models/submission/uploads.server.ts";
-import { COLUMNS } from "#app/utils/determination-input.ts";
+import { commitUpload, CommitRefused } from "#app/models/submission/uploads/commit.server.ts";
+import { getBatchForUser, remapUpload, sheetOf } from "#app/models/submission/uploads/batches.server.ts";
+import { type ColumnMapping } from "#app/models/submission/uploads/mapping.server.ts";
+import { COLUMNS } from "#app/utils/determination-input/columns.ts";
 import { env } from "#app/utils/env.server.ts";
 import { redirectWithFlash } from "#app/utils/flash.server.ts";
 import { badRequest, notFound } from "#app/utils/http.server.ts";

@@ -1,7 +1,8 @@
 import type { Route } from "./+types/determination-preview";
 import { requireRole } from "#app/auth/session.server.ts";
 import { getDb } from "#app/db/client.server.ts";
-import { previewCalendarAge, referenceOptions } from "#app/models/submission/submissions.server.ts";
+import { previewCalendarAge } from "#app/models/submission/form/preview.server.ts";
+import { referenceOptions } from "#app/models/submission/form/schema.server.ts";
 import { json } from "#app/utils/http.server.ts";
 
 /*

@@ -1,7 +1,7 @@
 import type { Route } from "./+types/upload-errors-csv";
 import { requireRole } from "#app/auth/session.server.ts";
 import { getDb } from "#app/db/client.server.ts";
-import { getBatchForUser } from "#app/models/submission/uploads.server.ts";
+import { getBatchForUser } from "#app/models/submission/uploads/batches.server.ts";
 import { toCsv } from "#app/utils/csv.ts";
 import { notFound } from "#app/utils/http.server.ts";
 

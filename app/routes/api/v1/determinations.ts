@@ -2,7 +2,7 @@ import type { Route } from "./+types/determinations";
 import { requireApiRole, requireApiUser } from "#app/auth/api.server.ts";
 import { clientAddress } from "#app/auth/session.server.ts";
 import { getDb } from "#app/db/client.server.ts";
-import { CommitRefused, submitJsonRows } from "#app/models/submission/uploads.server.ts";
+import { CommitRefused, submitJsonRows } from "#app/models/submission/uploads/commit.server.ts";
 import { apiDeterminations, parseApiQuery } from "#app/models/registry/determinations-api.server.ts";
 import { json } from "#app/utils/http.server.ts";
 

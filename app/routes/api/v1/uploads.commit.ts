@@ -2,7 +2,8 @@ import type { Route } from "./+types/uploads.commit";
 import { requireApiRole } from "#app/auth/api.server.ts";
 import { clientAddress } from "#app/auth/session.server.ts";
 import { getDb } from "#app/db/client.server.ts";
-import { commitUpload, CommitRefused, getBatchForUser } from "#app/models/submission/uploads.server.ts";
+import { commitUpload, CommitRefused } from "#app/models/submission/uploads/commit.server.ts";
+import { getBatchForUser } from "#app/models/submission/uploads/batches.server.ts";
 import { json } from "#app/utils/http.server.ts";
 
 /*

@@ -2,7 +2,8 @@ import type { Route } from "./+types/uploads";
 import { requireApiRole } from "#app/auth/api.server.ts";
 import { getDb } from "#app/db/client.server.ts";
 import { fileFromRequest } from "#app/models/submission/upload-http.server.ts";
-import { createUpload, UploadError } from "#app/models/submission/uploads.server.ts";
+import { createUpload } from "#app/models/submission/uploads/batches.server.ts";
+import { UploadError } from "#app/models/submission/uploads/read-sheet.server.ts";
 import { json } from "#app/utils/http.server.ts";
 
 /*

@@ -1,0 +1,113 @@
+// The form's starting values: from a stored determination for an edit, or the contributor's own lab for
+// a new one; and the chosen-site helper for the request.
+
+import { eq } from "drizzle-orm";
+import type { Db } from "#app/db/client.server.ts";
+import { labs, publications, samples, sites } from "#app/db/schema.ts";
+import { type DeterminationRow as StoredDetermination } from "#app/models/submission/determinations.server.ts";
+import { DEFAULT_CONVERSION_FACTORS } from "#app/science/luminescence.ts";
+
+/** The form's fields (template column names) as strings, from a stored determination. */
+export function formDefaults(db: Db, det: StoredDetermination): Record<string, string> {
+  const place = db
+    .select({ sample: samples, site: sites, labName: labs.name, doi: publications.doi })
+    .from(samples)
+    .innerJoin(sites, eq(sites.id, samples.siteId))
+    .innerJoin(labs, eq(labs.id, det.labId))
+    .leftJoin(publications, eq(publications.id, det.publicationId ?? -1))
+    .where(eq(samples.id, det.sampleId))
+    .get()!;
+  const s = (v: number | string | null | undefined) => (v == null ? "" : String(v));
+  // A dose rate computed from K, U and Th is shown as its components only, so an edit recomputes it.
+  const computedRate =
+    det.conversionFactors === DEFAULT_CONVERSION_FACTORS &&
+    [det.kPercent, det.uPpm, det.thPpm, det.waterContentFraction, det.burialDepthM, det.densityGPerCm3].every((v) => v != null);
+  return {
+    site_choice: "existing",
+    site_id: String(place.site.id),
+    site_name: place.site.name,
+    latitude: s(place.site.latitude),
+    longitude: s(place.site.longitude),
+    elevation_m: s(place.site.elevationM),
+    setting: s(place.site.setting),
+    sample_code: place.sample.fieldCode,
+    material: place.sample.material,
+    depth_cm: s(place.sample.depthCm),
+    strat_unit: s(place.sample.stratUnit),
+    strat_order: s(place.sample.stratOrder),
+    context: s(place.sample.context),
+    method: det.method,
+    lab_code: det.labCode,
+    lab_name: place.labName,
+    constraint_kind: det.constraintKind,
+    c14_age: s(det.c14AgeYr),
+    c14_error: s(det.c14ErrorYr),
+    f14c: s(det.f14c),
+    f14c_error: s(det.f14cError),
+    d13c: s(det.d13cPermil),
+    age_normalised: det.ageNormalised ? "yes" : "no",
+    greater_than: det.isLimit ? "yes" : "",
+    pretreatment: s(det.pretreatment),
+    curve: s(det.curveName),
+    delta_r: s(det.deltaRYr),
+    delta_r_error: s(det.deltaRErrorYr),
+    delta_r_curve: s(det.deltaRCurve),
+    signal: s(det.signal),
+    mineral: s(det.mineral),
+    de_gy: s(det.deGy),
+    de_error_gy: s(det.deErrorGy),
+    dose_rate_gy_per_ka: computedRate ? "" : s(det.doseRateGyPerKa),
+    dose_rate_error_gy_per_ka: computedRate ? "" : s(det.doseRateErrorGyPerKa),
+    k_percent: s(det.kPercent),
+    u_ppm: s(det.uPpm),
+    th_ppm: s(det.thPpm),
+    water_content: s(det.waterContentFraction),
+    grain_size_um: s(det.grainSizeUm),
+    burial_depth_m: s(det.burialDepthM),
+    density_g_cm3: s(det.densityGPerCm3),
+    measurement_year: s(det.measurementYear),
+    aliquots: s(det.aliquots),
+    age_model: s(det.ageModel),
+    doi: s(place.doi),
+    notes: s(det.notes),
+  };
+}
+
+/**
+ * For a site chosen from the registry, its name and coordinates come from the registry, never
+ * from what the browser sent, so the row is validated with the values that will be stored.
+ */
+export function applyChosenSite(db: Db, formData: FormData): void {
+  if (formData.get("site_choice") !== "existing") return;
+  const id = Number(formData.get("site_id"));
+  if (!Number.isSafeInteger(id) || id <= 0) return;
+  const site = db.select().from(sites).where(eq(sites.id, id)).get();
+  if (!site) return;
+  formData.set("site_name", site.name);
+  formData.set("latitude", String(site.latitude));
+  formData.set("longitude", String(site.longitude));
+  for (const name of ["elevation_m", "setting"]) formData.delete(name);
+}
+
+/** A unique-constraint failure on the lab code: someone stored the same code between validation and write. */
+export function isDuplicateLabCode(e: unknown): boolean {
+  return (
+    e instanceof Error &&
+    (e as { code?: string }).code === "SQLITE_CONSTRAINT_UNIQUE" &&
+    e.message.includes("determinations.lab_code")
+  );
+}
+
+/** Starting values for a new determination: the contributor's own lab, radiocarbon. */
+export function newFormDefaults(db: Db, userId: number, hasSites: boolean): Record<string, string> {
+  const lab = db.$client
+    .prepare("select l.name from users u join labs l on l.id = u.lab_id where u.id = ?")
+    .pluck()
+    .get(userId) as string | undefined;
+  return {
+    site_choice: hasSites ? "existing" : "new",
+    method: "radiocarbon",
+    lab_name: lab ?? "",
+    age_normalised: "yes",
+  };
+}

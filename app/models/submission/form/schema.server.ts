@@ -1,0 +1,110 @@
+// The one-record form as the server runs it: what the form offers, the server's row context and the
+// checks only the database can make, wrapped into the form's Zod schema.
+
+import { env } from "#app/utils/env.server.ts";
+import type { Db } from "#app/db/client.server.ts";
+import { labs, materials, sites } from "#app/db/schema.ts";
+import { calendarOutcome, interpretMeasurement } from "#app/models/calibration/calibrations.server.ts";
+import { listCurves } from "#app/models/calibration/curves.server.ts";
+import { measurementFields, type DeterminationRow as StoredDetermination } from "#app/models/submission/determinations.server.ts";
+import { type DeterminationRow, type RowContext, type RowIssue } from "#app/utils/determination-input/row.ts";
+import { clientRowContext, makeSubmissionSchema, type FormOptions, type SubmissionValue } from "#app/utils/submission-form.ts";
+import { labByName, planSample, planSite } from "#app/models/submission/placement.server.ts";
+
+export type Actor = { userId: number; ip?: string | null };
+
+/** A change the registry refuses as a whole (not the contributor's, graded, withdrawn); `status` is the HTTP answer. */
+export class SubmissionRefused extends Error {
+  constructor(
+    message: string,
+    public status: 403 | 404 | 409 = 403,
+  ) {
+    super(message);
+  }
+}
+
+/** Materials and curves: all that validation and the preview need. */
+export function referenceOptions(db: Db): Pick<FormOptions, "materials" | "curves" | "regionOfInterest"> {
+  const materialRows = db.select().from(materials).orderBy(materials.name).all();
+  // One entry per short name: the active version's display name.
+  const curveRows = new Map<string, FormOptions["curves"][number]>();
+  for (const c of listCurves(db)) {
+    if (c.active && !curveRows.has(c.name)) curveRows.set(c.name, { name: c.name, displayName: c.displayName, kind: c.kind });
+  }
+  return {
+    materials: materialRows.map((m) => ({
+      name: m.name,
+      methods: m.methods.split(",").map((x) => x.trim()),
+      marine: m.marine,
+    })),
+    curves: [...curveRows.values()].sort((a, b) => a.name.localeCompare(b.name)),
+    regionOfInterest: env().REGION_OF_INTEREST,
+  };
+}
+
+/** Everything the form offers: sites to choose from, labs, materials and curves. */
+export function formOptions(db: Db): FormOptions {
+  const siteRows = db
+    .select({ id: sites.id, name: sites.name, latitude: sites.latitude, longitude: sites.longitude })
+    .from(sites)
+    .orderBy(sites.name, sites.id)
+    .all();
+  const labRows = db.select({ id: labs.id, name: labs.name, codePrefix: labs.codePrefix }).from(labs).orderBy(labs.name).all();
+  return { sites: siteRows, labs: labRows, ...referenceOptions(db) };
+}
+
+/** The server's validation context: the browser's, plus duplicate lab codes and the calendar-age check. */
+export function serverRowContext(
+  db: Db,
+  options: Pick<FormOptions, "materials" | "curves">,
+  excludeDeterminationId?: number,
+): RowContext {
+  const lookup = db.$client.prepare("select id from determinations where lower(lab_code) = lower(?) and id != ?").pluck();
+  return {
+    ...clientRowContext(options),
+    regionOfInterest: env().REGION_OF_INTEREST,
+    labCodeInRegistry: (code) => (lookup.get(code, excludeDeterminationId ?? -1) as number | undefined) ?? null,
+    calendarProblem: (row) => calendarProblem(db, row),
+  };
+}
+
+/**
+ * Limits and post-bomb ages are accepted and stored without a calendar age; anything else that
+ * cannot be given one (above all an age beyond the curve) is refused at the field it concerns.
+ */
+function calendarProblem(db: Db, row: DeterminationRow): RowIssue | null {
+  const column = row.method === "radiocarbon" ? (row.c14_age != null ? "c14_age" : "f14c") : "de_gy";
+  const fields = measurementFields(row);
+  if (row.method === "radiocarbon") {
+    const interpreted = interpretMeasurement(fields);
+    if (interpreted.kind === "invalid") return { column, message: interpreted.message };
+    if (interpreted.kind !== "age") return null;
+  }
+  const outcome = calendarOutcome(db, fields);
+  return outcome.ok ? null : { column, message: outcome.error };
+}
+
+/** What only the database can tell about a form that passed every other rule. */
+export function submissionChecks(db: Db, value: SubmissionValue, editing: StoredDetermination | null): RowIssue[] {
+  const issues: RowIssue[] = [];
+  if (!labByName(db, value.row.lab_name ?? "")) {
+    issues.push({
+      column: "lab_name",
+      message: `There is no laboratory named "${value.row.lab_name}" in the registry; choose one from the list.`,
+    });
+  }
+  const site = planSite(db, value);
+  if ("issue" in site) issues.push(site.issue);
+  const sample = planSample(db, value.row, "site" in site ? site.site.id : null, editing);
+  if ("issue" in sample) issues.push(sample.issue);
+  return issues;
+}
+
+/** The form's schema as the server runs it (duplicates, curve range, labs and samples checked). */
+export function serverSubmissionSchema(
+  db: Db,
+  options: Pick<FormOptions, "materials" | "curves">,
+  editing: StoredDetermination | null = null,
+) {
+  return makeSubmissionSchema(serverRowContext(db, options, editing?.id), (value) => submissionChecks(db, value, editing));
+}
