@@ -6,7 +6,7 @@
 import { z } from "zod";
 import { isBlankCell } from "#app/utils/determination-input/cells.ts";
 import { makeRowSchema } from "#app/utils/determination-input/schema.ts";
-import { type DeterminationRow, type Region, type RowContext, type RowIssue } from "#app/utils/determination-input/row.ts";
+import type { DeterminationRow, Region, RowContext, RowIssue } from "#app/utils/determination-input/row.ts";
 
 export const SITE_CHOICES = ["existing", "new"] as const;
 export type SiteChoice = (typeof SITE_CHOICES)[number];

@@ -3,7 +3,7 @@ import { checkRow } from "#app/utils/determination-input/check-row.ts";
 import { COLUMN_NAMES, EXAMPLE_ROWS } from "#app/utils/determination-input/columns.ts";
 import { levenshtein, nearest } from "#app/utils/nearest.ts";
 import { makeRowSchema } from "#app/utils/determination-input/schema.ts";
-import { type RowContext } from "#app/utils/determination-input/row.ts";
+import type { RowContext } from "#app/utils/determination-input/row.ts";
 
 const ctx: RowContext = {
   materials: ["marine shell", "foraminifera", "plant macrofossil", "wood", "quartz", "K-feldspar"],

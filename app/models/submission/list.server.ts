@@ -1,7 +1,7 @@
 // The contributor's own list of determinations, filtered and paged, and whether each may still be edited.
 
 import type { Db } from "#app/db/client.server.ts";
-import { type Method, type Status } from "#app/db/schema.ts";
+import type { Method, Status } from "#app/db/schema.ts";
 import { LISTED_MEASUREMENT_SQL, type ListedMeasurement } from "#app/models/registry/query.server.ts";
 
 export const SUBMISSIONS_PAGE_SIZE = 50;

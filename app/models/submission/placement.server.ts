@@ -9,8 +9,8 @@ import {
   siteValues,
   type DeterminationRow as StoredDetermination,
 } from "#app/models/submission/determinations.server.ts";
-import { type DeterminationRow, type RowIssue } from "#app/utils/determination-input/row.ts";
-import { type SubmissionValue } from "#app/utils/submission-form.ts";
+import type { DeterminationRow, RowIssue } from "#app/utils/determination-input/row.ts";
+import type { SubmissionValue } from "#app/utils/submission-form.ts";
 import { type Actor, SubmissionRefused } from "#app/models/submission/form/schema.server.ts";
 
 type SiteRef = { id: number; name: string };

@@ -7,7 +7,7 @@ import { sendEmail } from "#app/mail/send.server.ts";
 import { uploadReceiptMessage } from "#app/mail/upload-receipt.server.ts";
 import { commitUpload, CommitRefused } from "#app/models/submission/uploads/commit.server.ts";
 import { getBatchForUser, remapUpload, sheetOf } from "#app/models/submission/uploads/batches.server.ts";
-import { type ColumnMapping } from "#app/models/submission/uploads/mapping.server.ts";
+import type { ColumnMapping } from "#app/models/submission/uploads/mapping.server.ts";
 import { COLUMNS } from "#app/utils/determination-input/columns.ts";
 import { env } from "#app/utils/env.server.ts";
 import { redirectWithFlash } from "#app/utils/flash.server.ts";

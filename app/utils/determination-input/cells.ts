@@ -1,4 +1,4 @@
-import { type ColumnSpec } from "#app/utils/determination-input/columns.ts";
+import type { ColumnSpec } from "#app/utils/determination-input/columns.ts";
 import { nearest } from "#app/utils/nearest.ts";
 
 // ---------------------------------------------------------------- cell readers

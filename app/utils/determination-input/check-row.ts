@@ -9,7 +9,7 @@ import {
   truncate,
 } from "#app/utils/determination-input/cells.ts";
 import { COLUMNS } from "#app/utils/determination-input/columns.ts";
-import { type DeterminationRow, type Region, type RowContext, type RowIssue } from "#app/utils/determination-input/row.ts";
+import type { DeterminationRow, Region, RowContext, RowIssue } from "#app/utils/determination-input/row.ts";
 import { nearest } from "#app/utils/nearest.ts";
 
 function inRegion(region: Region, lat: number, lon: number): boolean {

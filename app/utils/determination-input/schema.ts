@@ -1,7 +1,7 @@
 import { z } from "zod";
 import { checkRow } from "#app/utils/determination-input/check-row.ts";
 import { COLUMNS } from "#app/utils/determination-input/columns.ts";
-import { type DeterminationRow, type RowContext } from "#app/utils/determination-input/row.ts";
+import type { DeterminationRow, RowContext } from "#app/utils/determination-input/row.ts";
 
 /**
  * The row schema for Conform and the API: an object whose keys are the column names, validated

@@ -4,7 +4,7 @@
 import { eq } from "drizzle-orm";
 import type { Db } from "#app/db/client.server.ts";
 import { labs, publications, samples, sites } from "#app/db/schema.ts";
-import { type DeterminationRow as StoredDetermination } from "#app/models/submission/determinations.server.ts";
+import type { DeterminationRow as StoredDetermination } from "#app/models/submission/determinations.server.ts";
 import { DEFAULT_CONVERSION_FACTORS } from "#app/science/luminescence.ts";
 
 /** The form's fields (template column names) as strings, from a stored determination. */

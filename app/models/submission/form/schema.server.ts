@@ -7,7 +7,7 @@ import { labs, materials, sites } from "#app/db/schema.ts";
 import { calendarOutcome, interpretMeasurement } from "#app/models/calibration/calibrations.server.ts";
 import { listCurves } from "#app/models/calibration/curves.server.ts";
 import { measurementFields, type DeterminationRow as StoredDetermination } from "#app/models/submission/determinations.server.ts";
-import { type DeterminationRow, type RowContext, type RowIssue } from "#app/utils/determination-input/row.ts";
+import type { DeterminationRow, RowContext, RowIssue } from "#app/utils/determination-input/row.ts";
 import { clientRowContext, makeSubmissionSchema, type FormOptions, type SubmissionValue } from "#app/utils/submission-form.ts";
 import { labByName, planSample, planSite } from "#app/models/submission/placement.server.ts";
 

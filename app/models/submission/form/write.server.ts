@@ -13,7 +13,7 @@ import {
   insertDetermination,
   type DeterminationRow as StoredDetermination,
 } from "#app/models/submission/determinations.server.ts";
-import { type SubmissionValue } from "#app/utils/submission-form.ts";
+import type { SubmissionValue } from "#app/utils/submission-form.ts";
 import { type Actor, SubmissionRefused } from "#app/models/submission/form/schema.server.ts";
 import { placeRow } from "#app/models/submission/placement.server.ts";
 

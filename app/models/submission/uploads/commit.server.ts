@@ -15,9 +15,9 @@ import {
   siteValues,
 } from "#app/models/submission/determinations.server.ts";
 import { COLUMNS, columnSpec } from "#app/utils/determination-input/columns.ts";
-import { type DeterminationRow } from "#app/utils/determination-input/row.ts";
+import type { DeterminationRow } from "#app/utils/determination-input/row.ts";
 import { type BatchRow, sheetOf, userLab } from "#app/models/submission/uploads/batches.server.ts";
-import { type StoredCell, type StoredRow } from "#app/models/submission/uploads/read-sheet.server.ts";
+import type { StoredCell, StoredRow } from "#app/models/submission/uploads/read-sheet.server.ts";
 import {
   type Registry,
   type SiteRef,

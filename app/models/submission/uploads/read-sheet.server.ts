@@ -4,9 +4,9 @@
 import zlib from "node:zlib";
 import Papa from "papaparse";
 import { readSheet } from "read-excel-file/node";
-import { type UploadRowError } from "#app/db/schema.ts";
+import type { UploadRowError } from "#app/db/schema.ts";
 import { env } from "#app/utils/env.server.ts";
-import { type UploadPreview } from "#app/models/submission/uploads/validate.server.ts";
+import type { UploadPreview } from "#app/models/submission/uploads/validate.server.ts";
 
 /** A problem with the file itself (size, kind, unreadable); `status` is the HTTP answer. */
 export class UploadError extends Error {

@@ -16,7 +16,7 @@ import {
 } from "#app/db/schema.ts";
 import { audit } from "#app/models/audit.server.ts";
 import { auditSnapshot } from "#app/models/submission/determinations.server.ts";
-import { type BatchRow } from "#app/models/submission/uploads/batches.server.ts";
+import type { BatchRow } from "#app/models/submission/uploads/batches.server.ts";
 import { CommitRefused } from "#app/models/submission/uploads/commit.server.ts";
 
 /**

@@ -12,10 +12,10 @@ import { measurementFields } from "#app/models/submission/determinations.server.
 import { luminescenceAge } from "#app/science/luminescence.ts";
 import { checkRow } from "#app/utils/determination-input/check-row.ts";
 import { columnSpec } from "#app/utils/determination-input/columns.ts";
-import { type DeterminationRow, type RowContext, type RowIssue } from "#app/utils/determination-input/row.ts";
+import type { DeterminationRow, RowContext, RowIssue } from "#app/utils/determination-input/row.ts";
 import { isBlankCell } from "#app/utils/determination-input/cells.ts";
-import { type ColumnMapping } from "#app/models/submission/uploads/mapping.server.ts";
-import { type StoredCell, type StoredRow } from "#app/models/submission/uploads/read-sheet.server.ts";
+import type { ColumnMapping } from "#app/models/submission/uploads/mapping.server.ts";
+import type { StoredCell, StoredRow } from "#app/models/submission/uploads/read-sheet.server.ts";
 
 export type RowResult = { n: number; value?: DeterminationRow; issues: RowIssue[]; warnings: RowIssue[] };
 
