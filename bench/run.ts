@@ -305,6 +305,13 @@ for (const [kind, file] of [
   report(`upload ${kind}`, "end to end", `${(b.totalMs / 1000).toFixed(2)} s`, kind === "xlsx" ? "≤ 5 s" : undefined);
 }
 
+// ---------------------------------------------------------------- constraint sets and releases (issue 10)
+{
+  console.log("Constraint downloads, live count, publishing…");
+  const { benchReleases } = await import("./releases.ts");
+  await benchReleases(db, seeded.userIds["editor@example.org"]!, report, median);
+}
+
 // ---------------------------------------------------------------- load (its own table)
 console.log("Load: 50 connections × 20 s per target, idle and during 5,000-row commits…");
 db.$client.pragma("wal_checkpoint(TRUNCATE)");
