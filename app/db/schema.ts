@@ -317,7 +317,8 @@ export const curvePoints = sqliteTable(
   (t) => [primaryKey({ columns: [t.curveId, t.calBp] })],
 );
 
-export type HpdRange = { from: number; to: number; p: number };
+/** A highest-density range; `atCurveLimit` when it is cut by the end of its curve. */
+export type HpdRange = { from: number; to: number; p: number; atCurveLimit?: boolean };
 
 /**
  * One calibration of one determination. Earlier results stay when a curve changes; the one in use
@@ -342,6 +343,10 @@ export const calibrations = sqliteTable(
     /** Calendar density on a 1-year grid starting at density_start_cal_bp (youngest), Float32 little-endian. */
     densityStartCalBp: integer("density_start_cal_bp"),
     density: blob("density", { mode: "buffer" }),
+    /** The probability reaches the first or last year of the curve and is cut there. */
+    atCurveLimit: integer("at_curve_limit", { mode: "boolean" }).notNull().default(false),
+    /** Plain notes from the calibration (truncation at the curve's end, F14C space near background). */
+    notes: text("notes", { mode: "json" }).$type<string[]>(),
     error: text("error"),
     createdAt: createdAt(),
   },

@@ -13,7 +13,16 @@ type DeterminationRow = typeof determinations.$inferSelect;
 
 /** What a determination's calendar age is, before it is stored. */
 export type CalendarOutcome =
-  | { ok: true; curve: CurveRow | null; label: string; summary: DensitySummary; density: CalendarDensity }
+  | {
+      ok: true;
+      curve: CurveRow | null;
+      label: string;
+      summary: DensitySummary;
+      density: CalendarDensity;
+      /** Cut by the curve's end (radiocarbon only), with the calibration's notes. */
+      atCurveLimit?: boolean;
+      notes?: string[];
+    }
   | { ok: false; curve: CurveRow | null; label: string; error: string };
 
 export type MeasurementFields = Pick<
@@ -134,7 +143,15 @@ export function calendarOutcome(
     if (interpreted.kind !== "age") return { ok: false, curve, label, error: interpreted.message };
     try {
       const result = calibrate(preparedCurve(db, curve.id), calibrationInputFor(curve, d, interpreted));
-      return { ok: true, curve, label, summary: result, density: result.density };
+      return {
+        ok: true,
+        curve,
+        label,
+        summary: result,
+        density: result.density,
+        atCurveLimit: result.atCurveLimit,
+        notes: result.notes,
+      };
     } catch (e) {
       if (e instanceof CalibrationError) return { ok: false, curve, label, error: e.message };
       throw e;
@@ -171,8 +188,10 @@ export function decodeDensity(buf: Buffer | Uint8Array, startCalBp: number): Cal
   return { startCalBp, values: new Float32Array(copy.buffer) };
 }
 
-function roundRanges(ranges: { from: number; to: number; p: number }[]): HpdRange[] {
-  return ranges.map((r) => ({ from: r.from, to: r.to, p: r.p }));
+function roundRanges(ranges: HpdRange[]): HpdRange[] {
+  return ranges.map((r) =>
+    r.atCurveLimit ? { from: r.from, to: r.to, p: r.p, atCurveLimit: true } : { from: r.from, to: r.to, p: r.p },
+  );
 }
 
 /**
@@ -196,8 +215,8 @@ export function calibrateDeterminations(db: Db, ids: number[]): { calibrated: nu
   );
   const insert = sqlite.prepare(
     `insert into calibrations (determination_id, curve_id, curve_label, is_current, median_cal_bp, hpd68, hpd95,
-       hpd95_from_bp, hpd95_to_bp, density_start_cal_bp, density, error)
-     values (?, ?, ?, 1, ?, ?, ?, ?, ?, ?, ?, ?)`,
+       hpd95_from_bp, hpd95_to_bp, density_start_cal_bp, density, at_curve_limit, notes, error)
+     values (?, ?, ?, 1, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)`,
   );
   let calibrated = 0;
   let failed = 0;
@@ -225,11 +244,13 @@ export function calibrateDeterminations(db: Db, ids: number[]): { calibrated: nu
             youngest,
             outcome.density.startCalBp,
             encodeDensity(outcome.density.values),
+            outcome.atCurveLimit ? 1 : 0,
+            outcome.notes?.length ? JSON.stringify(outcome.notes) : null,
             null,
           );
           calibrated++;
         } else {
-          insert.run(d.id, curveId, outcome.label, null, null, null, null, null, null, null, outcome.error);
+          insert.run(d.id, curveId, outcome.label, null, null, null, null, null, null, null, 0, null, outcome.error);
           failed++;
         }
       }

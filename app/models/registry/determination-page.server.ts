@@ -80,6 +80,8 @@ export function determinationDetail(db: Db, id: number) {
         hpd95: calibrations.hpd95,
         hpd95FromBp: calibrations.hpd95FromBp,
         hpd95ToBp: calibrations.hpd95ToBp,
+        atCurveLimit: calibrations.atCurveLimit,
+        notes: calibrations.notes,
         error: calibrations.error,
         createdAt: calibrations.createdAt,
       })

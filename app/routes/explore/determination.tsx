@@ -211,6 +211,7 @@ function RangeList({ ranges }: { ranges: HpdRange[] | null }) {
       {ranges.map((r, i) => (
         <li key={i}>
           {formatCalRange(r.from, r.to)} cal BP <span className="text-muted">({formatProbability(r.p)})</span>
+          {r.atCurveLimit ? <span className="text-muted"> — cut by the curve's end</span> : null}
         </li>
       ))}
     </ul>
@@ -234,6 +235,16 @@ function CalibrationSection({ detail, plot }: { detail: Detail; plot: Route.Comp
                 ["Median", cal.medianCalBp != null ? `${formatCal(cal.medianCalBp)} cal BP` : null],
                 ["68.3 % range", <RangeList ranges={cal.hpd68} />],
                 ["95.4 % range", <RangeList ranges={cal.hpd95} />],
+                [
+                  "Notes",
+                  cal.notes?.length ? (
+                    <ul data-testid="calibration-notes">
+                      {cal.notes.map((n) => (
+                        <li key={n}>{n}</li>
+                      ))}
+                    </ul>
+                  ) : null,
+                ],
                 ["Calculated", formatTime(cal.createdAt)],
               ]}
             />
