@@ -25,9 +25,12 @@ export default [
     route("submit", "routes/contribute/submit.tsx"),
     route("submissions", "routes/contribute/submissions.tsx"),
     route("submissions/:id/edit", "routes/contribute/submission-edit.tsx"),
+    route("submissions/:id/answer", "routes/contribute/submission-answer.tsx"),
     route("uploads", "routes/contribute/uploads.tsx"),
     route("uploads/:publicId", "routes/contribute/upload.tsx"),
   ]),
+
+  layout("routes/review/layout.tsx", [route("review", "routes/review/queue.tsx"), route("review/:id", "routes/review/item.tsx")]),
 
   layout("routes/admin/layout.tsx", [route("people", "routes/admin/people.tsx"), route("curves", "routes/admin/curves.tsx")]),
 

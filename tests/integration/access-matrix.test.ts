@@ -138,6 +138,21 @@ export const ACCESS: Record<string, Row> = {
     get: only(["contributor"], "ok"),
     post: only(["contributor"], "allowed"),
   },
+  // Review (issue 9): the queue and the review page for reviewers; answers for contributors (own only, else 404)
+  "routes/review/layout": { url: "/review", get: only(["reviewer"], "ok"), post: "none" },
+  "routes/review/queue": { url: "/review", get: only(["reviewer"], "ok"), post: only(["reviewer"], "allowed") },
+  "routes/review/item": {
+    url: "/review/:id",
+    params: { id: "determinationId" },
+    get: only(["reviewer"], "ok"),
+    post: only(["reviewer"], "allowed"),
+  },
+  "routes/contribute/submission-answer": {
+    url: "/submissions/:id/answer",
+    params: { id: "determinationId" },
+    get: only(["contributor"], "allowed"),
+    post: only(["contributor"], "allowed"),
+  },
   // Documentation: public
   "routes/api-docs": { url: "/api-docs", get: "ok", post: "none" },
   // Contributors' API, by token

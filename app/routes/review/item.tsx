@@ -1,0 +1,300 @@
+import { useEffect } from "react";
+import { data, Form, Link, redirect, useNavigate } from "react-router";
+import { parseWithZod } from "@conform-to/zod/v4";
+import type { Route } from "./+types/item";
+import { clientAddress, requireRole } from "#app/auth/session.server.ts";
+import { CalibrationPlot } from "#app/components/calibration-plot.tsx";
+import { CheckBadge } from "#app/components/check-badge.tsx";
+import { DetailList, showNumber } from "#app/components/detail-list.tsx";
+import { ErrorView } from "#app/components/error-view.tsx";
+import { GradeBadge } from "#app/components/grade-badge.tsx";
+import { getDb } from "#app/db/client.server.ts";
+import { FLAGS } from "#app/db/schema.ts";
+import { plotForDetermination } from "#app/models/calibration/calibration-plot.server.ts";
+import { determinationDetail } from "#app/models/registry/determination-page.server.ts";
+import { nextInQueue, releaseItem, takeItem } from "#app/models/review/queue.server.ts";
+import {
+  askQuestion,
+  gradeSchema,
+  questionSchema,
+  recordReviews,
+  reviewMessages,
+  ReviewRefused,
+} from "#app/models/review/reviews.server.ts";
+import { formatCal, formatMeasuredAge } from "#app/utils/age-format.ts";
+import { notFound } from "#app/utils/http.server.ts";
+import { CHECK_LABELS, CONSTRAINT_KIND_LABELS, FLAG_LABELS, STATUS_LABELS } from "#app/utils/labels.ts";
+
+export const meta: Route.MetaFunction = ({ data }) => [
+  { title: `Review ${data?.detail.determination.labCode ?? ""} · Thawline` },
+];
+
+function idOf(params: { id?: string }): number {
+  const id = Number(params.id);
+  if (!Number.isSafeInteger(id) || id <= 0) notFound("There is no determination with this number.");
+  return id;
+}
+
+export async function loader({ request, params }: Route.LoaderArgs) {
+  const user = await requireRole(request, "reviewer");
+  const id = idOf(params);
+  const db = getDb();
+  const detail = determinationDetail(db, id);
+  if (!detail) notFound("There is no determination with this number.");
+  const lease = db.$client
+    .prepare(
+      "select u.name, l.reviewer_id as reviewerId, l.expires_at as expiresAt from review_leases l join users u on u.id = l.reviewer_id where l.determination_id = ? and l.expires_at > ?",
+    )
+    .get(id, Date.now()) as { name: string; reviewerId: number; expiresAt: number } | undefined;
+  const suggested = [
+    ...new Set(
+      detail.checks
+        .filter((c) => c.suggestedFlag && (c.severity === "warning" || c.severity === "conflict"))
+        .map((c) => c.suggestedFlag!),
+    ),
+  ];
+  return {
+    detail,
+    plot: plotForDetermination(db, id),
+    messages: reviewMessages(db, id),
+    ownSubmission: detail.determination.contributorId === user.id,
+    lease: lease ? { name: lease.name, mine: lease.reviewerId === user.id, expiresAt: lease.expiresAt } : null,
+    suggested,
+    nextId: nextInQueue(db, id, user.id),
+  };
+}
+
+export async function action({ request, params }: Route.ActionArgs) {
+  const user = await requireRole(request, "reviewer");
+  const id = idOf(params);
+  const db = getDb();
+  const form = await request.formData();
+  const actor = { userId: user.id, ip: clientAddress(request) };
+  try {
+    switch (form.get("intent")) {
+      case "take":
+        if (!takeItem(db, id, user.id))
+          return data({ intent: "take", result: null, error: "Another reviewer has taken this one." }, { status: 409 });
+        return redirect(`/review/${id}`);
+      case "release":
+        releaseItem(db, id, user.id);
+        return redirect("/review");
+      case "grade": {
+        const submission = parseWithZod(form, { schema: gradeSchema });
+        if (submission.status !== "success")
+          return data({ intent: "grade", result: submission.reply(), error: null }, { status: 400 });
+        recordReviews(db, [id], submission.value, actor);
+        const next = nextInQueue(db, id, user.id);
+        return redirect(next ? `/review/${next}` : "/review");
+      }
+      case "ask": {
+        const submission = parseWithZod(form, { schema: questionSchema });
+        if (submission.status !== "success")
+          return data({ intent: "ask", result: submission.reply(), error: null }, { status: 400 });
+        await askQuestion(db, id, submission.value.question, actor);
+        return redirect("/review");
+      }
+      default:
+        return data({ intent: null, result: null, error: "Unknown action." }, { status: 400 });
+    }
+  } catch (e) {
+    if (e instanceof ReviewRefused) return data({ intent: null, result: null, error: e.message }, { status: e.status });
+    throw e;
+  }
+}
+
+export default function ReviewItem({ loaderData, actionData }: Route.ComponentProps) {
+  const { detail, plot, messages, ownSubmission, lease, suggested, nextId } = loaderData;
+  const d = detail.determination;
+  const navigate = useNavigate();
+  useEffect(() => {
+    const onKey = (e: KeyboardEvent) => {
+      if ((e.target as HTMLElement).closest("input, select, textarea")) return;
+      if (e.key === "n" && nextId) navigate(`/review/${nextId}`);
+      if (e.key === "q") navigate("/review");
+    };
+    window.addEventListener("keydown", onKey);
+    return () => window.removeEventListener("keydown", onKey);
+  }, [navigate, nextId]);
+  const errors = actionData?.result && "error" in actionData.result ? (actionData.result.error ?? {}) : {};
+  const heldByOther = lease && !lease.mine;
+  return (
+    <article>
+      <nav aria-label="Breadcrumb" className="text-sm text-muted">
+        <Link to="/review">Review queue</Link> <span aria-hidden="true">/</span> <span>{d.labCode}</span>
+        {nextId ? (
+          <>
+            {" · "}
+            <Link to={`/review/${nextId}`}>Next item</Link> (<kbd>n</kbd>)
+          </>
+        ) : null}
+      </nav>
+      <header className="mt-2 flex flex-wrap items-baseline gap-x-6 gap-y-2">
+        <h1>{d.labCode}</h1>
+        <p className="text-xl">{formatMeasuredAge(d)}</p>
+        <GradeBadge grade={d.grade} />
+        <span className="rounded border border-rule px-2 text-sm">{STATUS_LABELS[d.status]}</span>
+      </header>
+      <p className="mt-1 text-muted">
+        {d.method} on {detail.sample.material} from <Link to={`/sites/${detail.site.id}`}>{detail.site.name}</Link>,{" "}
+        {CONSTRAINT_KIND_LABELS[d.constraintKind]} constraint · <Link to={`/determinations/${d.id}`}>full record</Link>
+      </p>
+      {actionData?.error ? (
+        <p role="alert" className="mt-4 rounded border border-conflict bg-conflict-bg p-3 text-conflict">
+          {actionData.error}
+        </p>
+      ) : null}
+
+      <section className="mt-6" aria-labelledby="checks-heading">
+        <h2 id="checks-heading">Checks</h2>
+        {detail.checks.length === 0 ? (
+          <p className="text-muted">The checks have not run on this determination yet.</p>
+        ) : (
+          <table className="data-table mt-2">
+            <tbody>
+              {detail.checks.map((c) => (
+                <tr key={c.id}>
+                  <th scope="row" className="whitespace-nowrap">
+                    {CHECK_LABELS[c.check] ?? c.check}
+                  </th>
+                  <td>
+                    <CheckBadge severity={c.severity} />
+                  </td>
+                  <td>{c.message}</td>
+                  <td className="text-sm">{c.suggestedFlag ? `suggests: ${FLAG_LABELS[c.suggestedFlag]}` : ""}</td>
+                </tr>
+              ))}
+            </tbody>
+          </table>
+        )}
+      </section>
+
+      <div className="mt-6 grid gap-6 lg:grid-cols-2">
+        <section className="card">
+          <h2>Calendar age</h2>
+          <p>
+            Median {formatCal(detail.calibration?.medianCalBp ?? null)} cal BP
+            {detail.calibration ? ` on ${detail.calibration.curveLabel}` : ""}.
+          </p>
+          {plot ? <CalibrationPlot {...plot} heading={d.labCode} /> : null}
+        </section>
+        <section className="card">
+          <h2>Sample and site</h2>
+          <DetailList
+            items={[
+              ["Sample", `${detail.sample.fieldCode}, ${detail.sample.material}`],
+              ["Depth", showNumber(detail.sample.depthCm, "cm")],
+              [
+                "Unit",
+                detail.sample.stratUnit ? `${detail.sample.stratUnit} (${detail.sample.stratOrder ?? "?"} from the top)` : null,
+              ],
+              ["Context", detail.sample.context],
+              ["Site", `${detail.site.name}, ${detail.site.latitude.toFixed(4)}°, ${detail.site.longitude.toFixed(4)}°`],
+              ["Setting", detail.site.setting],
+            ]}
+          />
+        </section>
+      </div>
+
+      <section className="mt-6" aria-labelledby="siblings-heading">
+        <h2 id="siblings-heading">Same sample and same site</h2>
+        <ul className="mt-2 grid gap-1">
+          {[...detail.sameSample, ...detail.sameSite].map((s) => (
+            <li key={s.id}>
+              <Link to={`/review/${s.id}`}>{s.labCode}</Link> · {s.fieldCode} · {s.material} · {formatMeasuredAge(s)} · median{" "}
+              {formatCal(s.medianCalBp)} cal BP · <GradeBadge grade={s.grade} />
+            </li>
+          ))}
+          {detail.sameSample.length + detail.sameSite.length === 0 ? (
+            <li className="text-muted">No other determination here.</li>
+          ) : null}
+        </ul>
+      </section>
+
+      {messages.length ? (
+        <section className="mt-6" aria-labelledby="messages-heading">
+          <h2 id="messages-heading">Questions and answers</h2>
+          <ul className="mt-2 grid gap-2">
+            {messages.map((m) => (
+              <li key={m.id} className="card">
+                <p className="text-sm text-muted">{m.authorName}</p>
+                <p>{m.body}</p>
+              </li>
+            ))}
+          </ul>
+        </section>
+      ) : null}
+
+      {ownSubmission ? (
+        <p className="mt-6 rounded border border-rule p-3">You submitted this determination; another reviewer must grade it.</p>
+      ) : heldByOther ? (
+        <p className="mt-6 rounded border border-rule p-3">{lease.name} has taken this determination for review.</p>
+      ) : (
+        <div className="mt-6 grid gap-6 lg:grid-cols-2">
+          <Form method="post" className="card grid gap-3" aria-labelledby="grade-heading">
+            <h2 id="grade-heading">Grade</h2>
+            <input type="hidden" name="intent" value="grade" />
+            <fieldset>
+              <legend className="label">Reliability</legend>
+              <div className="mt-1 flex flex-wrap gap-3">
+                {[3, 2, 1, 0].map((g) => (
+                  <label key={g} className="flex items-center gap-1">
+                    <input type="radio" name="grade" value={g} required /> <GradeBadge grade={g} />
+                  </label>
+                ))}
+              </div>
+              {errors.grade ? <p className="text-conflict text-sm">{errors.grade.join(" ")}</p> : null}
+            </fieldset>
+            <fieldset>
+              <legend className="label">Flags (the checks' suggestions are ticked)</legend>
+              <div className="mt-1 grid gap-1 sm:grid-cols-2">
+                {FLAGS.map((f) => (
+                  <label key={f} className="text-sm">
+                    <input type="checkbox" name="flags" value={f} defaultChecked={suggested.includes(f)} /> {FLAG_LABELS[f]}
+                  </label>
+                ))}
+              </div>
+            </fieldset>
+            <div className="field">
+              <label htmlFor="grade-comment">Comment</label>
+              <textarea id="grade-comment" name="comment" className="input" rows={3} />
+            </div>
+            <div className="flex gap-3">
+              <button type="submit" className="btn">
+                Record grade
+              </button>
+            </div>
+          </Form>
+          <div className="grid gap-3">
+            <Form method="post" className="card grid gap-3" aria-labelledby="ask-heading">
+              <h2 id="ask-heading">Ask the contributor</h2>
+              <input type="hidden" name="intent" value="ask" />
+              <div className="field">
+                <label htmlFor="ask-question">Question</label>
+                <textarea id="ask-question" name="question" className="input" rows={3} required />
+                {actionData?.intent === "ask" && errors.question ? (
+                  <p className="text-conflict text-sm">{errors.question.join(" ")}</p>
+                ) : null}
+              </div>
+              <div>
+                <button type="submit" className="btn">
+                  Send question
+                </button>
+              </div>
+            </Form>
+            <Form method="post">
+              <input type="hidden" name="intent" value={lease?.mine ? "release" : "take"} />
+              <button type="submit" className="btn-quiet">
+                {lease?.mine ? "Put back in the queue" : "Take it (others see it as taken for 30 minutes)"}
+              </button>
+            </Form>
+          </div>
+        </div>
+      )}
+    </article>
+  );
+}
+
+export function ErrorBoundary({ error }: Route.ErrorBoundaryProps) {
+  return <ErrorView error={error} />;
+}
