@@ -90,13 +90,13 @@ describe("personal API tokens", () => {
     expect((await apiMe(token)).status).toBe(200);
   });
 
-  it("stop working when their owner is deactivated, and work again on reactivation", async () => {
+  it("are revoked when their owner is deactivated: reactivation does not bring them back", async () => {
     const p = await personWithSession(["modeller"]);
     const token = await newToken(p.cookie);
     setActive(getDb(), p.id, false, { actorId: null });
     expect((await apiMe(token)).status).toBe(401);
     setActive(getDb(), p.id, true, { actorId: null });
-    expect((await apiMe(token)).status).toBe(200);
+    expect((await apiMe(token)).status).toBe(401);
   });
 
   it("answer 401 JSON for a missing, malformed or unknown token", async () => {

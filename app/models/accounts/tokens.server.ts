@@ -91,19 +91,42 @@ export function revokeToken(db: DbOrTx, userId: number, tokenId: number, actor: 
   });
 }
 
+/** "Last used" is recorded at most this often per token. */
+export const LAST_USED_EVERY_MS = 60_000;
+
+/**
+ * Records a token's use when the stored time is a minute old or more. A read must never wait for
+ * or fail on this write: it does not wait for a busy writer (busy_timeout 0 for this statement),
+ * and a busy or read-only database simply skips it until the next use.
+ */
+function noteUse(db: Db, tokenId: number, lastUsedAt: Date | null, now: Date) {
+  if (lastUsedAt && now.getTime() - lastUsedAt.getTime() < LAST_USED_EVERY_MS) return;
+  const sqlite = db.$client;
+  const saved = sqlite.pragma("busy_timeout", { simple: true }) as number;
+  sqlite.pragma("busy_timeout = 0");
+  try {
+    db.update(apiTokens).set({ lastUsedAt: now }).where(eq(apiTokens.id, tokenId)).run();
+  } catch (error) {
+    const code = (error as { code?: string }).code ?? "";
+    if (!code.startsWith("SQLITE_BUSY") && !code.startsWith("SQLITE_READONLY") && !code.startsWith("SQLITE_LOCKED")) throw error;
+  } finally {
+    sqlite.pragma(`busy_timeout = ${saved}`);
+  }
+}
+
 /**
  * The person a bearer token stands for: the token must exist, not be revoked, and belong to an
- * active person. Records the time of use.
+ * active person. Notes the time of use (at most once a minute, never delaying the answer).
  */
 export function userForToken(db: Db, token: string): (SessionUser & { tokenId: number }) | null {
   if (!token.startsWith(TOKEN_PREFIX) || token.length > 200) return null;
   const row = db
-    .select({ tokenId: apiTokens.id, id: users.id, email: users.email, name: users.name })
+    .select({ tokenId: apiTokens.id, lastUsedAt: apiTokens.lastUsedAt, id: users.id, email: users.email, name: users.name })
     .from(apiTokens)
     .innerJoin(users, eq(users.id, apiTokens.userId))
     .where(and(eq(apiTokens.tokenHash, hashToken(token)), isNull(apiTokens.revokedAt), eq(users.active, true)))
     .get();
   if (!row) return null;
-  db.update(apiTokens).set({ lastUsedAt: new Date() }).where(eq(apiTokens.id, row.tokenId)).run();
+  noteUse(db, row.tokenId, row.lastUsedAt, new Date());
   return { id: row.id, email: row.email, name: row.name, roles: sortRoles(rolesOf(row.id)), tokenId: row.tokenId };
 }

@@ -1,6 +1,6 @@
-import { and, eq, lt } from "drizzle-orm";
+import { and, eq, isNull, lt } from "drizzle-orm";
 import type { Db } from "#app/db/client.server.ts";
-import { ROLES, sessions, userRoles, users, type Role } from "#app/db/schema.ts";
+import { apiTokens, ROLES, sessions, userRoles, users, type Role } from "#app/db/schema.ts";
 import { audit, type DbOrTx } from "#app/models/audit.server.ts";
 
 export type Person = {
@@ -174,8 +174,9 @@ export function setRoles(db: DbOrTx, userId: number, roles: readonly Role[], act
 }
 
 /**
- * Deactivating ends the person's sessions at once; their API tokens stop working because token
- * checks require an active person. Reactivating restores nothing but the right to sign in.
+ * Deactivating ends the person's sessions and revokes their API tokens at once (revoked, not
+ * suspended: reactivating brings no old token back). Reactivating restores nothing but the right
+ * to sign in.
  */
 export function setActive(db: DbOrTx, userId: number, active: boolean, actor: Actor): boolean {
   return db.transaction((tx) => {
@@ -183,14 +184,22 @@ export function setActive(db: DbOrTx, userId: number, active: boolean, actor: Ac
     if (!row || row.active === active) return false;
     tx.update(users).set({ active }).where(eq(users.id, userId)).run();
     let sessionsEnded = 0;
-    if (!active) sessionsEnded = tx.delete(sessions).where(eq(sessions.userId, userId)).run().changes;
+    let tokensRevoked = 0;
+    if (!active) {
+      sessionsEnded = tx.delete(sessions).where(eq(sessions.userId, userId)).run().changes;
+      tokensRevoked = tx
+        .update(apiTokens)
+        .set({ revokedAt: new Date() })
+        .where(and(eq(apiTokens.userId, userId), isNull(apiTokens.revokedAt)))
+        .run().changes;
+    }
     audit(tx, {
       actorId: actor.actorId,
       action: active ? "user.reactivate" : "user.deactivate",
       entity: "user",
       entityId: userId,
       before: { active: row.active },
-      after: active ? { active } : { active, sessionsEnded },
+      after: active ? { active } : { active, sessionsEnded, tokensRevoked },
       ip: actor.ip,
     });
     return true;

@@ -155,7 +155,7 @@ export default function People({ loaderData, actionData }: Route.ComponentProps)
         <h1>People</h1>
         <p className="mt-2 max-w-3xl text-muted">
           Everyone who may sign in, with their roles. {active} active, {people.length - active} deactivated. A deactivated
-          person's sessions end at once and their API tokens stop working.
+          person's sessions end at once and their API tokens are revoked (reactivating brings none back).
         </p>
       </header>
 
