@@ -18,10 +18,13 @@ export type LoadRow = {
   errors: number;
   non2xx: number;
   kbPerAnswer: number;
+  /** Server process CPU time (user + system) per answer: less sensitive to other load on the machine. */
+  cpuMsPerAnswer: number;
 };
 
 type Target = { name: string; path: string; headers: Record<string, string> };
-type Options = { dbFile: string; port?: number; seconds?: number; connections?: number };
+/** appDir: another checkout's built app to measure instead of this one (a before/after comparison). */
+type Options = { dbFile: string; port?: number; seconds?: number; connections?: number; appDir?: string };
 
 async function freePort(): Promise<number> {
   return new Promise((resolve) => {
@@ -33,8 +36,9 @@ async function freePort(): Promise<number> {
   });
 }
 
-function startServer(port: number, dbFile: string, log: string[]): ChildProcess {
+function startServer(port: number, dbFile: string, log: string[], appDir?: string): ChildProcess {
   const child = spawn(process.execPath, ["server.js"], {
+    cwd: appDir,
     env: {
       ...process.env,
       NODE_ENV: "production",
@@ -158,7 +162,18 @@ function backgroundCommits(base: string, token: string, lab: { prefix: string; n
 const percentile = (sorted: number[], p: number) =>
   sorted.length ? sorted[Math.min(sorted.length - 1, Math.ceil((p / 100) * sorted.length) - 1)]! : NaN;
 
-async function hit(base: string, t: Target, seconds: number, connections: number) {
+/** CPU time used so far by a process, in ms (Linux /proc). */
+function cpuMs(pid: number | undefined): number {
+  try {
+    const fields = fs.readFileSync(`/proc/${pid}/stat`, "utf8").split(") ")[1]!.split(" ");
+    return ((Number(fields[11]) + Number(fields[12])) * 1000) / 100;
+  } catch {
+    return NaN;
+  }
+}
+
+async function hit(base: string, t: Target, seconds: number, connections: number, pid?: number) {
+  const cpuBefore = cpuMs(pid);
   const times: number[] = [];
   const instance = autocannon({
     url: `${base}${t.path}`,
@@ -178,6 +193,7 @@ async function hit(base: string, t: Target, seconds: number, connections: number
     errors: result.errors + result.timeouts,
     non2xx: result.non2xx,
     kbPerAnswer: result.requests.total ? result.throughput.total / result.requests.total / 1024 : 0,
+    cpuMsPerAnswer: result.requests.total ? (cpuMs(pid) - cpuBefore) / result.requests.total : NaN,
   };
 }
 
@@ -230,7 +246,7 @@ export async function runLoadBench(options: Options): Promise<LoadRow[]> {
       for (const suffix of ["", "-wal", "-shm"]) fs.rmSync(work + suffix, { force: true });
       fs.copyFileSync(options.dbFile, work);
       const log: string[] = [];
-      const server = startServer(port, work, log);
+      const server = startServer(port, work, log, options.appDir);
       try {
         await waitUp(base);
         await hit(base, t, 2, 4); // warm caches and compiled paths
@@ -238,11 +254,11 @@ export async function runLoadBench(options: Options): Promise<LoadRow[]> {
           `  load: ${t.name}, ${connections} connections × ${seconds} s${withCommits ? " during 5,000-row commits" : ""}…`,
         );
         if (!withCommits) {
-          rows.push({ target: t.name, background: "idle", ...(await hit(base, t, seconds, connections)) });
+          rows.push({ target: t.name, background: "idle", ...(await hit(base, t, seconds, connections, server.pid)) });
           continue;
         }
         const bg = backgroundCommits(base, creds.contributorToken, creds.lab);
-        const r = await hit(base, t, seconds, connections);
+        const r = await hit(base, t, seconds, connections, server.pid);
         const commits = await bg.stop();
         const ok = commits.filter((c) => c.ok);
         const failed = commits.length - ok.length;
@@ -261,11 +277,11 @@ export async function runLoadBench(options: Options): Promise<LoadRow[]> {
 }
 
 export function loadTable(rows: LoadRow[]): string {
-  const head = "| target | background | req/s | p50 ms | p95 ms | p99 ms | errors | non-2xx | KB/answer |";
-  const line = "|---|---|---:|---:|---:|---:|---:|---:|---:|";
+  const head = "| target | background | req/s | p50 ms | p95 ms | p99 ms | errors | non-2xx | KB/answer | server CPU ms/answer |";
+  const line = "|---|---|---:|---:|---:|---:|---:|---:|---:|---:|";
   const body = rows.map(
     (r) =>
-      `| ${r.target} | ${r.background} | ${r.reqPerSec.toFixed(0)} | ${r.p50} | ${r.p95} | ${r.p99} | ${r.errors} | ${r.non2xx} | ${r.kbPerAnswer.toFixed(1)} |`,
+      `| ${r.target} | ${r.background} | ${r.reqPerSec.toFixed(0)} | ${r.p50} | ${r.p95} | ${r.p99} | ${r.errors} | ${r.non2xx} | ${r.kbPerAnswer.toFixed(1)} | ${r.cpuMsPerAnswer.toFixed(1)} |`,
   );
   return [head, line, ...body].join("\n");
 }
@@ -279,6 +295,7 @@ if (import.meta.url === `file://${process.argv[1]}`) {
     dbFile: path.resolve(arg("db") ?? process.env.DATABASE_URL ?? "tmp/bench/bench.db"),
     port: arg("port") ? Number(arg("port")) : undefined,
     seconds: arg("seconds") ? Number(arg("seconds")) : undefined,
+    appDir: arg("app") ? path.resolve(arg("app")!) : undefined,
   });
   console.log(`\nThawline load — ${new Date().toISOString()} — Node ${process.version}\n`);
   console.log(loadTable(rows));

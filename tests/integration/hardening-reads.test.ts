@@ -7,6 +7,7 @@ import { apiTokens } from "#app/db/schema.ts";
 import { createToken } from "#app/models/accounts/tokens.server.ts";
 import { setActive } from "#app/models/accounts/users.server.ts";
 import { args, get, personWithSession, run } from "#tests/support/auth.ts";
+import { createTestDetermination } from "#tests/factories.ts";
 
 /*
  * Hardening corpus, cases 4 and 12: deactivation revokes tokens; reads never write (or wait for a
@@ -95,5 +96,29 @@ describe("case 12: reads that write", () => {
       home: (await run(() => home.loader(args(get("/", cookie))))).status,
     }));
     expect(outcomes).toEqual({ me: 200, determinations: 200, explore: 200, mapSites: 200, account: 200, home: 200 });
+  });
+});
+
+describe("repeated reads are cached until the registry changes", () => {
+  it("the map data answers 304 to its ETag, and a new ETag with the new name after a write", async () => {
+    const p = await personWithSession(["modeller"]);
+    createTestDetermination(getDb());
+    const first = await mapSites.loader(args(get("/api/map-sites", { cookie: p.cookie })));
+    const etag = first.headers.get("ETag")!;
+    expect(etag).toMatch(/^".+"$/);
+    const again = await mapSites.loader(args(get("/api/map-sites", { cookie: p.cookie, headers: { "If-None-Match": etag } })));
+    expect(again.status).toBe(304);
+    const { sites } = (await first.json()) as { sites: { id: number; name: string }[] };
+    expect(sites.length).toBeGreaterThan(0);
+    // A write through another connection (a worker, a second process) is seen too.
+    const other = new Database(getDb().$client.name);
+    other.prepare("update sites set name = 'Renamed Cove' where id = ?").run(sites[0]!.id);
+    other.close();
+    const after = await mapSites.loader(args(get("/api/map-sites", { cookie: p.cookie, headers: { "If-None-Match": etag } })));
+    expect(after.status).toBe(200);
+    expect(after.headers.get("ETag")).not.toBe(etag);
+    expect(
+      ((await after.json()) as { sites: { id: number; name: string }[] }).sites.find((s) => s.id === sites[0]!.id)!.name,
+    ).toBe("Renamed Cove");
   });
 });

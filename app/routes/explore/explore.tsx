@@ -1,6 +1,7 @@
 import { useEffect, useRef } from "react";
 import { Form, Link, useLocation, useNavigation, useSubmit } from "react-router";
 import type { Route } from "./+types/explore";
+import { cachedRead } from "#app/models/registry/read-cache.server.ts";
 import { requireUser } from "#app/auth/session.server.ts";
 import { ErrorView } from "#app/components/error-view.tsx";
 import { CheckBadge } from "#app/components/check-badge.tsx";
@@ -22,7 +23,11 @@ export async function loader({ request }: Route.LoaderArgs) {
   await requireUser(request);
   const filters = parseExploreFilters(new URL(request.url).searchParams);
   const db = getDb();
-  return { filters, result: exploreDeterminations(db, filters), options: exploreFilterOptions(db) };
+  return {
+    filters,
+    result: cachedRead(db, `explore:${JSON.stringify(filters)}`, () => exploreDeterminations(db, filters)),
+    options: cachedRead(db, "explore-options", () => exploreFilterOptions(db)),
+  };
 }
 
 type Filters = Route.ComponentProps["loaderData"]["filters"];

@@ -4,6 +4,7 @@ import { clientAddress } from "#app/auth/session.server.ts";
 import { getDb } from "#app/db/client.server.ts";
 import { CommitRefused, submitJsonRows } from "#app/models/submission/uploads/commit.server.ts";
 import { apiDeterminations, parseApiQuery } from "#app/models/registry/determinations-api.server.ts";
+import { cachedJson } from "#app/models/registry/read-cache.server.ts";
 import { json } from "#app/utils/http.server.ts";
 
 /*
@@ -24,7 +25,16 @@ export async function loader({ request }: Route.LoaderArgs) {
   await requireApiUser(request);
   const parsed = parseApiQuery(new URL(request.url).searchParams);
   if (!parsed.ok) return json({ errors: parsed.errors }, { status: 400 });
-  return json(apiDeterminations(getDb(), parsed.query), { headers: { "Cache-Control": "no-store" } });
+  const db = getDb();
+  return cachedJson(
+    db,
+    request,
+    `api-determinations:${JSON.stringify(parsed.query)}`,
+    () => apiDeterminations(db, parsed.query),
+    {
+      "Cache-Control": "private, no-cache",
+    },
+  );
 }
 
 export const MAX_API_ROWS = 10_000;
