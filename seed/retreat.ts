@@ -130,6 +130,36 @@ export function marginRadiusKm(p: RetreatParams, theta: number, calBp: number): 
 }
 
 /**
+ * Years the ice took to advance before the retreat: the margin grows from the dome at
+ * startCalBp + ADVANCE_YEARS to the full cover at startCalBp, through the same shapes as the
+ * retreat in reverse, so the centre is overridden first and the outer margin last.
+ */
+export const ADVANCE_YEARS = 2000;
+
+/** Progress through the whole cycle: 0 before the advance, 1 at full cover, 0 after the retreat. */
+export function cycleProgressAt(p: RetreatParams, calBp: number): number {
+  if (calBp <= p.startCalBp) return progressAt(p, calBp);
+  return Math.max(0, 1 - (calBp - p.startCalBp) / ADVANCE_YEARS);
+}
+
+/** Progress level u at which the margin passes a point (0 at the dome), or null outside the full cover. */
+export function levelAt(p: RetreatParams, lon: number, lat: number): number | null {
+  const { x, y } = toLocalKm(p, lon, lat);
+  const d = Math.hypot(x, y);
+  if (d === 0) return 0;
+  const theta = Math.atan2(y, x);
+  const r0 = fullCoverRadiusKm(p, theta);
+  if (d >= r0) return null;
+  return Math.pow(d / r0, 1 / exponent(p, theta));
+}
+
+/** The age (cal BP) at which the advancing ice overrode this point, or null outside the full cover. */
+export function trueAdvanceAge(p: RetreatParams, lon: number, lat: number): number | null {
+  const u = levelAt(p, lon, lat);
+  return u === null ? null : p.startCalBp + ADVANCE_YEARS * (1 - u);
+}
+
+/**
  * The age (cal BP) at which the margin passed this point, or null when the point lay outside
  * the ice cover at the start of the history (already free of ice at `startCalBp`).
  */

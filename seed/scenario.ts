@@ -16,6 +16,7 @@ import {
   isochrones,
   marginsWithBias,
   retreatParams,
+  trueAdvanceAge,
   trueDeglaciationAge as ageFromParams,
   type IsochroneCollection,
   type RetreatParams,
@@ -84,6 +85,8 @@ export interface ScenarioSite {
   coastal: boolean;
   /** True deglaciation age of the site, cal BP (from the retreat history). */
   deglaciationCalBp: number;
+  /** When the advancing ice overrode the site (cal BP): maximum-limiting material predates it. */
+  advanceCalBp: number;
   publicationIndex: number | null;
 }
 
@@ -281,7 +284,8 @@ const TILL = (thickness: readonly [number, number] = [80, 300]): UnitSpec => ({
 const SUB_TILL_MARINE: UnitSpec = {
   name: "sub-till marine sand",
   kind: "max",
-  years: [2500, 24000],
+  // years before the advancing ice overrode the site
+  years: [20, 600],
   thicknessCm: [60, 200],
   materials: [
     ["marine shell", 3],
@@ -293,7 +297,7 @@ const SUB_TILL_MARINE: UnitSpec = {
 const BURIED_ORGANICS: UnitSpec = {
   name: "buried organic bed",
   kind: "max",
-  years: [2500, 26000],
+  years: [20, 800],
   thicknessCm: [20, 80],
   materials: [
     ["wood", 2],
@@ -706,6 +710,7 @@ export function generateScenario(inputs: ScenarioInputs, options: ScenarioOption
       notes: "Synthetic demo site: invented for the Thawline demo scenario, not a real place.",
       coastal,
       deglaciationCalBp: deglaciation,
+      advanceCalBp: trueAdvanceAge(retreat, lon, lat) ?? retreat.startCalBp,
       publicationIndex: rng.chance(0.8) ? rng.int(0, publications.length - 1) : null,
     };
     const siteIndex = sites.push(site) - 1;
@@ -883,7 +888,7 @@ function planSamples(rng: Rng, site: ScenarioSite, siteIndex: number, setting: S
   const codePrefix = `${initials(site.name)}${yy}`;
   const drawn: { unit: UnitSpec; years: number }[] = [];
   for (let i = 0; i < n; i++) {
-    const unit = maxUnits.length && rng.chance(0.13) ? rng.pick(maxUnits) : rng.pick(minUnits);
+    const unit = maxUnits.length && rng.chance(0.35) ? rng.pick(maxUnits) : rng.pick(minUnits);
     drawn.push({ unit, years: rng.uniform(unit.years[0], unit.years[1]) });
   }
   const out: PlannedSample[] = [];
@@ -899,8 +904,7 @@ function planSamples(rng: Rng, site: ScenarioSite, siteIndex: number, setting: S
       let depthCm = tops[ui] + frac * thick[ui];
       // Luminescence samples come from at least a metre down, where the cosmic formula holds.
       if (lum && depthCm < 100) depthCm = 100 + rng.uniform(0, 50);
-      const trueAge =
-        unit.kind === "min" ? site.deglaciationCalBp - d.years : Math.min(lum ? 80000 : 40000, site.deglaciationCalBp + d.years);
+      const trueAge = unit.kind === "min" ? site.deglaciationCalBp - d.years : site.advanceCalBp + d.years;
       out.push({
         siteIndex,
         fieldCode: "",

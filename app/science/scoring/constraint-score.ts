@@ -139,7 +139,13 @@ export function scoreConstraint(kind: ScoredKind, d: CalendarDensity, h: SiteHis
   const m = densityMoments(d);
   if (inSpan < OUTSIDE_SPAN_SHARE) {
     // The run says nothing about this date: the same neutral contribution in every run.
-    return { score: OUTSIDE_SPAN_FREE, implausibility: 0, modelDeglaciationCalBp: degl.calBp, deglaciationState: degl.state, inSpan };
+    return {
+      score: OUTSIDE_SPAN_FREE,
+      implausibility: 0,
+      modelDeglaciationCalBp: degl.calBp,
+      deglaciationState: degl.state,
+      inSpan,
+    };
   }
   const score = kind === "direct" ? directScore(d, degl.calBp, o.timeStepYears) : limitingScore(d, h);
   return {

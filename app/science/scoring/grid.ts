@@ -14,7 +14,13 @@ export function fractionalIndex(axis: ArrayLike<number>, v: number): number {
  * Row-major indices (y outer, x inner) of the cells whose centres lie within `toleranceCells`
  * cell widths of the site, always including the nearest cell; empty when the site is off the grid.
  */
-export function cellsWithin(xs: ArrayLike<number>, ys: ArrayLike<number>, x: number, y: number, toleranceCells: number): number[] {
+export function cellsWithin(
+  xs: ArrayLike<number>,
+  ys: ArrayLike<number>,
+  x: number,
+  y: number,
+  toleranceCells: number,
+): number[] {
   const fi = fractionalIndex(xs, x);
   const fj = fractionalIndex(ys, y);
   if (Number.isNaN(fi) || Number.isNaN(fj)) return [];

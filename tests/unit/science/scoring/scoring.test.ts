@@ -133,7 +133,10 @@ describe("implausibility (one-sided, in standard deviations)", () => {
   });
 
   it("is two-sided for direct dates and includes the time step's variance", () => {
-    const r = scoreConstraint("direct", normalDensity(10000, 100), stepRun(14000, 6000, 1, 10300), { timeStepYears: 1, discrepancyYears: 50 });
+    const r = scoreConstraint("direct", normalDensity(10000, 100), stepRun(14000, 6000, 1, 10300), {
+      timeStepYears: 1,
+      discrepancyYears: 50,
+    });
     expect(r.implausibility).toBeCloseTo(300.5 / Math.sqrt(100 ** 2 + 50 ** 2 + 1 / 12), 2);
   });
 
