@@ -39,6 +39,11 @@ export default [
     route("releases", "routes/releases/index.tsx"),
     route("releases/:slug", "routes/releases/release.tsx"),
   ]),
+  layout("routes/runs/layout.tsx", [
+    route("runs", "routes/runs/runs.tsx"),
+    route("runs/:id", "routes/runs/run.tsx"),
+    route("runs/ensembles/:name", "routes/runs/ensemble.tsx"),
+  ]),
 
   // Cookie-session resource routes: CSV and spreadsheet downloads, previews, job progress, map data.
   route("api/map-sites", "routes/resources/map-sites.ts"),
@@ -52,6 +57,9 @@ export default [
   route("uploads/template.xlsx", "routes/resources/upload-template-xlsx.ts"),
   route("uploads/template.csv", "routes/resources/upload-template-csv.ts"),
   route("uploads/:publicId/errors.csv", "routes/resources/upload-errors-csv.ts"),
+  route("runs/:id/file", "routes/resources/model-run-file.ts"),
+  route("runs/ensembles/:name/runs.csv", "routes/resources/ensemble-csv.ts", { id: "routes/resources/ensemble-runs-csv" }),
+  route("runs/ensembles/:name/scores.csv", "routes/resources/ensemble-csv.ts", { id: "routes/resources/ensemble-scores-csv" }),
 
   // The token API: JSON, a stable contract documented at /api-docs.
   ...prefix("api/v1", [
@@ -65,5 +73,8 @@ export default [
     route("releases/:slug", "routes/api/v1/release.ts"),
     route("determinations/:id", "routes/api/v1/determination.ts"),
     route("reviews", "routes/api/v1/reviews.ts"),
+    route("model-runs", "routes/api/v1/model-runs.ts"),
+    route("model-runs/:id", "routes/api/v1/model-run.ts"),
+    route("ensembles/:name", "routes/api/v1/ensemble.ts"),
   ]),
 ] satisfies RouteConfig;

@@ -6,6 +6,7 @@ import fs from "node:fs";
 import { seedDemoReleases } from "./demo-releases.server.ts";
 import { eq, inArray, sql } from "drizzle-orm";
 import type { Db } from "#app/db/client.server.ts";
+import { seedDemoEnsemble } from "./demo-ensemble.server.ts";
 import { auditLog, labs, publications, reconstructions, type Role } from "#app/db/schema.ts";
 import { calibrateAll } from "#app/models/calibration/calibrations.server.ts";
 import { activeCurve, importBundledCurves, preparedCurve } from "#app/models/calibration/curves.server.ts";
@@ -50,6 +51,8 @@ export interface SeedOptions {
   reset?: boolean;
   /** Calibrate every determination after seeding (default true). */
   calibrate?: boolean;
+  /** Write and score the demo model-run ensemble (default: when calibrating). */
+  ensemble?: boolean;
   /** Called with each stage's name and duration. */
   onStage?: (stage: string, ms: number) => void;
   onCalibrationProgress?: (done: number, total: number) => void;
@@ -117,6 +120,9 @@ export async function seedDemo(db: Db, options: SeedOptions): Promise<SeedResult
     });
     await stage("checks", () => runAllChecks(db));
     await stage("releases", () => seedDemoReleases(db, written.userIds["editor@example.org"]!));
+  }
+  if (options.calibrate !== false && options.ensemble !== false) {
+    await stage("demo ensemble", () => seedDemoEnsemble(db, scenario.retreat, written.userIds["modeller@example.org"]));
   }
   return {
     summary: scenarioSummary(scenario),

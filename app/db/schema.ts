@@ -547,6 +547,9 @@ export const reconstructions = sqliteTable("reconstructions", {
   createdAt: createdAt(),
 });
 
+export const MODEL_RUN_STATUSES = ["queued", "running", "scored", "failed"] as const;
+export type ModelRunStatus = (typeof MODEL_RUN_STATUSES)[number];
+
 export const modelRuns = sqliteTable(
   "model_runs",
   {
@@ -555,18 +558,35 @@ export const modelRuns = sqliteTable(
       .notNull()
       .references(() => users.id),
     releaseId: integer("release_id").references(() => releases.id),
+    /** The registry filter scored against when no release was chosen (default: graded 2 or 3). */
+    constraintFilter: text("constraint_filter", { mode: "json" }).$type<Record<string, unknown>>(),
     name: text("name").notNull(),
     ensemble: text("ensemble"),
     fileName: text("file_name"),
+    /** Where the run file is kept, relative to the data folder. */
+    storedPath: text("stored_path"),
     format: text("format", { enum: ["netcdf", "geojson"] }).notNull(),
-    status: text("status", { enum: ["uploaded", "scoring", "scored", "failed"] })
-      .notNull()
-      .default("uploaded"),
+    status: text("status", { enum: MODEL_RUN_STATUSES }).notNull().default("queued"),
+    parameters: text("parameters", { mode: "json" }).$type<Record<string, number | string>>(),
+    /** Cal BP of model time 0, when the file's time units did not say. */
+    timeOffsetCalBp: real("time_offset_cal_bp"),
+    thresholdM: real("threshold_m"),
+    /** Grid runs: radius in cells; margins: radius in km. */
+    tolerance: real("tolerance"),
+    epsilon: real("epsilon"),
     totalLogLikelihood: real("total_log_likelihood"),
+    nConstraints: integer("n_constraints"),
+    shareAgreeing: real("share_agreeing"),
+    maxImplausibility: real("max_implausibility"),
+    secondImplausibility: real("second_implausibility"),
+    ruledOut: integer("ruled_out", { mode: "boolean" }),
+    /** Span, time step and counts of what the scoring saw (outside the span, off the domain). */
+    summary: text("summary", { mode: "json" }).$type<Record<string, unknown>>(),
+    jobId: integer("job_id").references(() => jobs.id),
     error: text("error"),
     createdAt: createdAt(),
   },
-  (t) => [index("model_runs_user_idx").on(t.userId)],
+  (t) => [index("model_runs_user_idx").on(t.userId), index("model_runs_ensemble_idx").on(t.ensemble)],
 );
 
 export const modelRunScores = sqliteTable(
@@ -580,6 +600,8 @@ export const modelRunScores = sqliteTable(
       .references(() => determinations.id),
     score: real("score").notNull(),
     logLikelihood: real("log_likelihood").notNull(),
+    implausibility: real("implausibility"),
+    modelDeglaciationCalBp: real("model_deglaciation_cal_bp"),
   },
   (t) => [primaryKey({ columns: [t.runId, t.determinationId] })],
 );

@@ -42,6 +42,9 @@ const ENDPOINTS = [
   ["GET, POST", "/api/v1/constraints", "constraints", "any token"],
   ["GET", "/api/v1/releases, /api/v1/releases/{slug}", "constraints", "anyone"],
   ["POST", "/api/v1/releases", "constraints", "editor token"],
+  ["POST", "/api/v1/model-runs", "model-runs-post", "modeller token"],
+  ["GET", "/api/v1/model-runs/{id}", "model-runs-get", "modeller token"],
+  ["GET", "/api/v1/ensembles/{name}", "ensembles-get", "modeller token"],
 ] as const;
 
 function filterParameters(perPage: { default: number; max: number }): [string, string][] {
@@ -300,6 +303,49 @@ export default function ApiDocs({ loaderData }: Route.ComponentProps) {
           Mode <code>all</code> with any error, or an upload already committed, is <code>409</code> and writes nothing; someone
           else's upload is <code>404</code>; a body without a valid mode is <code>400</code>.
         </p>
+      </Endpoint>
+
+      <Endpoint id="model-runs-post" method="POST" path="/api/v1/model-runs" who="A modeller's token.">
+        <p>
+          Uploads one model run to be scored in the background. Multipart fields: <code>file</code> (NetCDF-4 or NetCDF-3 classic
+          following the CF conventions, or GeoJSON margins with <code>age_cal_bp</code>), <code>name</code>, and optionally{" "}
+          <code>ensemble</code>, <code>release</code> (a release slug; default: every determination graded 2 or 3),{" "}
+          <code>parameters</code> (a JSON object), <code>time_offset</code> (cal BP of model time 0, needed when the time units do
+          not say how they map to cal BP), <code>threshold</code> (m of ice, default 1) and <code>tolerance</code> (grid cells,
+          default 1; km for margins, default 0).
+        </p>
+        <Code>{`curl -s -X POST ${base}/api/v1/model-runs -H "Authorization: Bearer <token>" \\
+  -F "file=@run-017.nc" -F "name=run-017" -F "ensemble=sliding-sweep" -F 'parameters={"sliding_factor": 1.2}'`}</Code>
+        <Code label="202">{`{"id": 41, "status": "queued"}`}</Code>
+        <p>
+          A bad file is <code>400</code> with <code>{`{"error": "…"}`}</code> naming what is missing or wrong (no time axis, no
+          thickness or mask, an unknown projection, times that do not overlap the constraints); a file past the size limit is{" "}
+          <code>413</code>. Nothing is kept for a refused file.
+        </p>
+      </Endpoint>
+
+      <Endpoint id="model-runs-get" method="GET" path="/api/v1/model-runs/{id}" who="A modeller's token.">
+        <p>
+          A run's state and, once scored, its totals and per-constraint scores. <code>score</code> is the raw score in [0, 1] (the
+          probability over the date's calendar density that the run is free of ice then; for direct dates the highest-density
+          p-value at the run's deglaciation), before ε and the grade weight. <code>implausibility</code> is one-sided, in standard
+          deviations.
+        </p>
+        <Code label="200">{`{"id": 41, "name": "run-017", "status": "scored", "error": null,
+ "log_likelihood": -256.6, "n_constraints": 1184, "max_implausibility": 7.9,
+ "scores": [{"determination_id": 12, "score": 0.97, "implausibility": 0, "model_deglaciation_cal_bp": 10450}]}`}</Code>
+        <p>
+          <code>status</code> is one of <code>queued</code>, <code>running</code>, <code>scored</code>, <code>failed</code> (then{" "}
+          <code>error</code> says why). log L = Σ w·log(ε + (1 − ε)·score) with ε = 0.05 and weights 1 (grade 3), 0.75 (2), 0.25
+          (1); rejected dates never count.
+        </p>
+      </Endpoint>
+
+      <Endpoint id="ensembles-get" method="GET" path="/api/v1/ensembles/{name}" who="A modeller's token.">
+        <p>The runs of an ensemble with their parameters and totals, ranked by log L (unscored runs last, without a rank).</p>
+        <Code label="200">{`{"name": "sliding-sweep", "runs": [{"rank": 1, "id": 41, "name": "run-017", "status": "scored",
+  "parameters": {"sliding_factor": 1.2}, "log_likelihood": -256.6, "n_constraints": 1184, "share_agreeing": 0.89,
+  "max_implausibility": 7.9, "second_implausibility": 6.2, "ruled_out": false}]}`}</Code>
       </Endpoint>
 
       <section className="card grid gap-3" aria-labelledby="columns-heading">

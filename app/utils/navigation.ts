@@ -14,6 +14,7 @@ export const NAV_ITEMS: NavItem[] = [
   { to: "/submit", label: "Submit", roles: ["contributor"] },
   { to: "/uploads", label: "Upload", roles: ["contributor"] },
   { to: "/submissions", label: "My submissions", roles: ["contributor"] },
+  { to: "/runs", label: "Model runs", roles: ["modeller"] },
   { to: "/people", label: "People", roles: ["editor"] },
   { to: "/api-docs", label: "API", roles: "public" },
 ];

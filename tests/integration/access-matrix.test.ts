@@ -221,6 +221,41 @@ export const ACCESS: Record<string, Row> = {
     get: "none",
     post: only(["reviewer"], "allowed", "unauthorized"),
   },
+  // Model runs pages and downloads: modellers (no fixture run or ensemble: past the check, a 404)
+  "routes/runs/layout": { url: "/runs", get: only(["modeller"], "ok"), post: "none" },
+  "routes/runs/runs": { url: "/runs", get: only(["modeller"], "ok"), post: only(["modeller"], "allowed") },
+  "routes/runs/run": { url: "/runs/999999", get: only(["modeller"], "status:404"), post: "none" },
+  "routes/runs/ensemble": { url: "/runs/ensembles/none", get: only(["modeller"], "status:404"), post: "none" },
+  "routes/resources/model-run-file": { url: "/runs/999999/file", get: only(["modeller"], "status:404"), post: "none" },
+  "routes/resources/ensemble-runs-csv": {
+    url: "/runs/ensembles/none/runs.csv",
+    get: only(["modeller"], "status:404"),
+    post: "none",
+  },
+  "routes/resources/ensemble-scores-csv": {
+    url: "/runs/ensembles/none/scores.csv",
+    get: only(["modeller"], "status:404"),
+    post: "none",
+  },
+  // Model runs: modellers, by token (no fixture run: past the check the answer is a 404)
+  "routes/api/v1/model-runs": {
+    url: "/api/v1/model-runs",
+    auth: "token",
+    get: only(["modeller"], "status:405", "unauthorized"),
+    post: only(["modeller"], "allowed", "unauthorized"),
+  },
+  "routes/api/v1/model-run": {
+    url: "/api/v1/model-runs/999999",
+    auth: "token",
+    get: only(["modeller"], "status:404", "unauthorized"),
+    post: "none",
+  },
+  "routes/api/v1/ensemble": {
+    url: "/api/v1/ensembles/no-such-ensemble",
+    auth: "token",
+    get: only(["modeller"], "status:404", "unauthorized"),
+    post: "none",
+  },
 };
 
 type Entry = { id: string; file: string; path: string };

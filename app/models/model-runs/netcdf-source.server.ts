@@ -114,13 +114,16 @@ const CLASSIC_TYPES: Record<string, { size: number; read: (b: Buffer, o: number)
 function openClassic(path: string): NetcdfSource {
   const fd = openSync(path, "r");
   const size = fstatSync(fd).size;
-  let reader: NetCDFReader | null = null;
+  const reader = readClassicHeader(fd, size);
+  return classicSource(fd, reader);
+}
+
+function readClassicHeader(fd: number, size: number): NetCDFReader {
   for (let n = Math.min(size, 64 * 1024); ; n = Math.min(size, n * 4)) {
     const buf = Buffer.alloc(n);
     readSync(fd, buf, 0, n, 0);
     try {
-      reader = new NetCDFReader(buf);
-      break;
+      return new NetCDFReader(buf);
     } catch (e) {
       if (n >= size) {
         closeSync(fd);
@@ -128,6 +131,9 @@ function openClassic(path: string): NetcdfSource {
       }
     }
   }
+}
+
+function classicSource(fd: number, reader: NetCDFReader): NetcdfSource {
   const h = reader.header;
   const recordLength = h.recordDimension.length;
   const recordStep = h.recordDimension.recordStep ?? 0;

@@ -28,10 +28,6 @@ function sniff(path: string): "netcdf" | "geojson" {
   return first === "{" ? "geojson" : "netcdf";
 }
 
-export function formatOf(path: string): "netcdf" | "geojson" {
-  return sniff(path);
-}
-
 export async function openRunFile(path: string, options: OpenOptions = {}): Promise<RunFile> {
   const size = statSync(path).size;
   const limit = options.maxBytes ?? MODEL_RUN_MAX_BYTES;
@@ -57,10 +53,4 @@ export async function openRunFile(path: string, options: OpenOptions = {}): Prom
 
 export function closeRunFile(run: RunFile): void {
   if (run.kind === "grid") run.close();
-}
-
-/** Slice ages (cal BP) of a run, oldest first. */
-export function runAges(run: RunFile): number[] {
-  const ages = run.kind === "grid" ? [...run.slicesCalBp] : run.slices.map((s) => s.calBp);
-  return ages.sort((a, b) => b - a);
 }

@@ -1,7 +1,12 @@
 // A run's total: log L = Σ_i w_i · log(ε + (1 − ε) · score_i), with ε an outlier share so that
 // one bad date cannot veto a run, and w_i from the reviewer's grade. Rejected dates never count.
 // History matching: the largest and second-largest one-sided implausibilities, with the
-// three-sigma cut-off (Pukelsheim 1994); the second-largest decides, tolerating one bad date.
+// three-sigma cut-off (Pukelsheim 1994). With hundreds of constraints a few undetected bad dates
+// always lie beyond 3, so the largest (or second-largest) alone would rule out every run. The
+// rule used is the one the three-sigma cut-off comes from: for any unimodal distribution at
+// most 4/81 of the mass lies beyond 3σ (Pukelsheim's inequality), so a run is ruled out when a
+// larger share of its constraints is implausible beyond 3. With very few constraints this is the
+// same as asking the second-largest to stay below 3 (one bad date is tolerated).
 
 /** Weight per reliability grade: 3 secure, 2 usable, 1 doubtful, 0 rejected (never counts). */
 export const GRADE_WEIGHTS: Readonly<Record<0 | 1 | 2 | 3, number>> = { 3: 1, 2: 0.75, 1: 0.25, 0: 0 };
@@ -9,6 +14,8 @@ export const GRADE_WEIGHTS: Readonly<Record<0 | 1 | 2 | 3, number>> = { 3: 1, 2:
 export const UNGRADED_WEIGHT = 0.5;
 export const DEFAULT_EPSILON = 0.05;
 export const IMPLAUSIBILITY_CUTOFF = 3;
+/** Pukelsheim's bound on the share of a unimodal distribution beyond three standard deviations. */
+export const UNIMODAL_TAIL_SHARE = 4 / 81;
 
 export function gradeWeight(grade: number | null): number {
   if (grade === null) return UNGRADED_WEIGHT;
@@ -66,6 +73,6 @@ export function runTotals(items: readonly ScoredConstraint[], epsilon = DEFAULT_
     maxImplausibility: first,
     secondImplausibility: second,
     nImplausible,
-    ruledOut: second > IMPLAUSIBILITY_CUTOFF,
+    ruledOut: nImplausible > Math.max(1, UNIMODAL_TAIL_SHARE * n),
   };
 }

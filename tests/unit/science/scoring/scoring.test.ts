@@ -178,7 +178,14 @@ describe("the run's total", () => {
     expect(t.ruledOut).toBe(true);
   });
 
-  it("lets one bad date pass the three-sigma cut-off (the second-largest decides)", () => {
+  it("rules a run out when more than 4/81 of its constraints lie beyond 3 (Pukelsheim 1994, from memory)", () => {
+    const items = (bad: number) =>
+      Array.from({ length: 100 }, (_, i) => ({ score: 1, implausibility: i < bad ? 4 : 0, grade: 3 as const }));
+    expect(runTotals(items(4)).ruledOut).toBe(false); // 4 % ≤ 4/81 ≈ 4.94 %
+    expect(runTotals(items(5)).ruledOut).toBe(true); // 5 % > 4/81
+  });
+
+  it("lets one bad date pass the three-sigma cut-off when there are few constraints", () => {
     const t = runTotals([
       { score: 0, implausibility: 8, grade: 3 },
       { score: 1, implausibility: 2.9, grade: 3 },
