@@ -1,6 +1,7 @@
 // The review queue: what awaits a reviewer (never their own submissions), with counts, filters,
 // the two sorts, and leases so two reviewers do not grade one determination at once.
 
+import { rankWord } from "#app/utils/check-rank.ts";
 import { z } from "zod";
 import type { Db } from "#app/db/client.server.ts";
 import { CHECK_SEVERITIES, METHODS } from "#app/db/schema.ts";
@@ -47,9 +48,6 @@ export type QueueRow = {
   leasedBy: string | null;
   leasedByMe: boolean;
 };
-
-const RANK_WORDS = ["pass", "note", "warning", "conflict"] as const;
-export const rankWord = (r: number | null) => (r === null ? null : RANK_WORDS[r]);
 
 function where(f: QueueFilters, reviewerId: number) {
   const parts = ["d.status in ('submitted', 'in_review')", "coalesce(d.contributor_id, -1) != ?"];
