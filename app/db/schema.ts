@@ -1,6 +1,16 @@
 import type { FeatureCollection } from "geojson";
 import { sql } from "drizzle-orm";
-import { blob, index, integer, primaryKey, real, sqliteTable, text, uniqueIndex } from "drizzle-orm/sqlite-core";
+import {
+  type AnySQLiteColumn,
+  blob,
+  index,
+  integer,
+  primaryKey,
+  real,
+  sqliteTable,
+  text,
+  uniqueIndex,
+} from "drizzle-orm/sqlite-core";
 
 /*
  * The whole Thawline data model. Measurements are stored unrounded with their unit in the
@@ -148,6 +158,10 @@ export const labs = sqliteTable("labs", {
   codePrefix: text("code_prefix").notNull().unique(),
   city: text("city"),
   lastMapping: text("last_mapping", { mode: "json" }).$type<Record<string, string>>(),
+  /** False for a lab registered from an upload (a new lab_name or an unknown code prefix) until an editor confirms or merges it. */
+  confirmed: integer("confirmed", { mode: "boolean" }).notNull().default(true),
+  /** Who registered an unconfirmed lab (the uploader). */
+  registeredBy: integer("registered_by").references((): AnySQLiteColumn => users.id),
   createdAt: createdAt(),
 });
 
@@ -174,6 +188,8 @@ export const sites = sqliteTable(
     region: text("region"),
     notes: text("notes"),
     createdBy: integer("created_by").references(() => users.id),
+    /** The upload batch that created this site (null for the form and the seed); undoing the batch may remove it. */
+    createdInBatchId: integer("created_in_batch_id").references((): AnySQLiteColumn => uploadBatches.id),
     createdAt: createdAt(),
   },
   (t) => [index("sites_name_idx").on(t.name), index("sites_latlon_idx").on(t.latitude, t.longitude)],
@@ -195,6 +211,8 @@ export const samples = sqliteTable(
     /** Position of the unit in the site's column, 1 = uppermost; used by the stratigraphic-order check. */
     stratOrder: integer("strat_order"),
     context: text("context"),
+    /** The upload batch that created this sample (null for the form and the seed); undoing the batch may remove it. */
+    createdInBatchId: integer("created_in_batch_id").references((): AnySQLiteColumn => uploadBatches.id),
     createdAt: createdAt(),
   },
   (t) => [index("samples_site_idx").on(t.siteId), uniqueIndex("samples_site_code_idx").on(t.siteId, t.fieldCode)],
@@ -274,6 +292,8 @@ export const determinations = sqliteTable(
     index("det_contributor_idx").on(t.contributorId),
     index("det_batch_idx").on(t.uploadBatchId),
     index("det_c14_idx").on(t.c14AgeYr),
+    // The app compares lab codes without regard to case, so the database refuses ABC-1 beside abc-1.
+    uniqueIndex("det_lab_code_nocase_idx").on(sql`lower(${t.labCode})`),
   ],
 );
 
