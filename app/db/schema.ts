@@ -363,6 +363,8 @@ export const calibrations = sqliteTable(
     /** Calendar density on a 1-year grid starting at density_start_cal_bp (youngest), Float32 little-endian. */
     densityStartCalBp: integer("density_start_cal_bp"),
     density: blob("density", { mode: "buffer" }),
+    /** SHA-256 (hex) of the density bytes, written with them; a release's items name it without copying the density. */
+    densitySha256: text("density_sha256"),
     /** The probability reaches the first or last year of the curve and is cut there. */
     atCurveLimit: integer("at_curve_limit", { mode: "boolean" }).notNull().default(false),
     /** Plain notes from the calibration (truncation at the curve's end, F14C space near background). */
@@ -373,9 +375,21 @@ export const calibrations = sqliteTable(
   (t) => [
     index("cal_det_idx").on(t.determinationId),
     index("cal_current_median_idx").on(t.isCurrent, t.medianCalBp),
-    // Joining a determination to its current calibration: without both columns the planner may pick
-    // cal_current_median_idx and scan every current calibration per row.
-    index("cal_det_current_idx").on(t.determinationId, t.isCurrent),
+    // Joining a determination to its current calibration: without both leading columns the planner may
+    // pick cal_current_median_idx and scan every current calibration per row. The summary columns after
+    // them cover the constraint filters and downloads, so those never read the table's wide rows
+    // (each carries a density of several kilobytes).
+    index("cal_det_current_cover_idx").on(
+      t.determinationId,
+      t.isCurrent,
+      t.medianCalBp,
+      t.hpd95FromBp,
+      t.hpd95ToBp,
+      t.curveId,
+      t.curveLabel,
+      t.hpd68,
+      t.hpd95,
+    ),
   ],
 );
 
@@ -446,7 +460,8 @@ export const checkResults = sqliteTable(
     suggestedFlag: text("suggested_flag", { enum: FLAGS }),
     createdAt: createdAt(),
   },
-  (t) => [index("checks_det_idx").on(t.determinationId), index("checks_severity_idx").on(t.severity)],
+  // The determination index covers "the checks of these determinations" (downloads, the worst-check filter).
+  (t) => [index("checks_det_cover_idx").on(t.determinationId, t.check, t.severity), index("checks_severity_idx").on(t.severity)],
 );
 
 // ---------------------------------------------------------------- uploads
@@ -543,11 +558,22 @@ export const releaseItems = sqliteTable(
       .references(() => determinations.id),
     /** The row exactly as released (measurement, calibration summary, grade, flags); never updated. */
     frozen: text("frozen", { mode: "json" }).$type<Record<string, unknown>>().notNull(),
-    /** A copy of the calendar density as released (the registry's calibration may later be replaced). */
+    /**
+     * The calibration whose density was released. Releases since this column was added name it instead
+     * of copying the density; a calibration named here is never deleted (recalibration keeps it, not
+     * current). Earlier releases hold a copy in density_start_cal_bp/density. Read either way through
+     * releaseItemsWithDensities() or RELEASE_DENSITY_SQL (models/releases/releases.server.ts).
+     */
+    calibrationId: integer("calibration_id").references(() => calibrations.id),
+    /** A copy of the calendar density as released (releases published before calibration_id existed). */
     densityStartCalBp: integer("density_start_cal_bp"),
     density: blob("density", { mode: "buffer" }),
   },
-  (t) => [primaryKey({ columns: [t.releaseId, t.determinationId] }), index("release_items_det_idx").on(t.determinationId)],
+  (t) => [
+    primaryKey({ columns: [t.releaseId, t.determinationId] }),
+    index("release_items_det_idx").on(t.determinationId),
+    index("release_items_cal_idx").on(t.calibrationId),
+  ],
 );
 
 // ---------------------------------------------------------------- reconstructions and model runs
