@@ -148,6 +148,8 @@ export interface ScenarioDetermination {
   burialDepthM: number | null;
   densityGPerCm3: number | null;
   conversionFactors: string | null;
+  /** True when the dose rate was computed from the concentrations with the registry's own model. */
+  doseRateComputed?: boolean;
   measurementYear: number | null;
   aliquots: number | null;
   ageModel: string | null;
@@ -1101,6 +1103,7 @@ function simulateLuminescence(rng: Rng, d: ScenarioDetermination, s: PlannedSamp
     d.burialDepthM = depthM;
     d.densityGPerCm3 = density;
     d.grainSizeUm = grain;
+    d.doseRateComputed = true;
   } else {
     rate = rng.uniform(1.5, 3.5);
     rateError = rate * rng.uniform(0.04, 0.07);

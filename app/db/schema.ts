@@ -256,6 +256,11 @@ export const determinations = sqliteTable(
     deltaRErrorYr: real("delta_r_error_yr"),
     /** The marine curve a ΔR was derived against (ΔR values do not transfer between curves). */
     deltaRCurve: text("delta_r_curve"),
+    /** Freshwater (hard-water) offset of lake and river material on an atmospheric curve, applied like ΔR. */
+    freshwaterOffsetYr: real("freshwater_offset_yr"),
+    freshwaterOffsetErrorYr: real("freshwater_offset_error_yr"),
+    /** The reported age was normalised to δ13C = 0 ‰ (older shell practice), not −25 ‰. */
+    normalisedToZeroPermil: integer("normalised_to_zero_permil", { mode: "boolean" }).notNull().default(false),
 
     // luminescence
     signal: text("signal", { enum: LUMINESCENCE_SIGNALS }),
@@ -264,6 +269,8 @@ export const determinations = sqliteTable(
     deErrorGy: real("de_error_gy"),
     doseRateGyPerKa: real("dose_rate_gy_per_ka"),
     doseRateErrorGyPerKa: real("dose_rate_error_gy_per_ka"),
+    /** True when the registry computed the dose rate from the concentrations (false: the lab's own value). */
+    doseRateComputed: integer("dose_rate_computed", { mode: "boolean" }).notNull().default(false),
     kPercent: real("k_percent"),
     uPpm: real("u_ppm"),
     thPpm: real("th_ppm"),
@@ -271,6 +278,28 @@ export const determinations = sqliteTable(
     grainSizeUm: real("grain_size_um"),
     burialDepthM: real("burial_depth_m"),
     densityGPerCm3: real("density_g_per_cm3"),
+    // The lab's errors (1σ, in the unit of the value) and the further dose-rate inputs; a missing
+    // error is assumed at its documented default when the dose rate is computed.
+    kErrorPercent: real("k_error_percent"),
+    uErrorPpm: real("u_error_ppm"),
+    thErrorPpm: real("th_error_ppm"),
+    rbPpm: real("rb_ppm"),
+    rbErrorPpm: real("rb_error_ppm"),
+    waterContentError: real("water_content_error_fraction"),
+    /** "coarse" or "fine"; empty: fine below 20 µm, coarse otherwise. */
+    grainUse: text("grain_use"),
+    etchDepthUm: real("etch_depth_um"),
+    aValue: real("a_value"),
+    aValueError: real("a_value_error"),
+    internalKPercent: real("internal_k_percent"),
+    internalKErrorPercent: real("internal_k_error_percent"),
+    internalRbPpm: real("internal_rb_ppm"),
+    internalRbErrorPpm: real("internal_rb_error_ppm"),
+    burialDepthErrorM: real("burial_depth_error_m"),
+    densityErrorGPerCm3: real("density_error_g_per_cm3"),
+    /** A lab's own cosmic dose rate, used instead of the formula. */
+    labCosmicGyPerKa: real("lab_cosmic_gy_per_ka"),
+    labCosmicErrorGyPerKa: real("lab_cosmic_error_gy_per_ka"),
     conversionFactors: text("conversion_factors"),
     measurementYear: integer("measurement_year"),
     aliquots: integer("aliquots"),
