@@ -2,7 +2,7 @@ import { parseWithZod } from "@conform-to/zod/v4";
 import { data, Link, type ShouldRevalidateFunctionArgs } from "react-router";
 import type { Route } from "./+types/submission-edit";
 import { clientAddress, forbidden, requireRole } from "#app/auth/session.server.ts";
-import { DeterminationForm } from "#app/components/determination-form.tsx";
+import { DeterminationForm } from "#app/components/determination-form/determination-form.tsx";
 import { ErrorView } from "#app/components/error-view.tsx";
 import { getDb } from "#app/db/client.server.ts";
 import { applyChosenSite, formDefaults, isDuplicateLabCode } from "#app/models/submission/form/defaults.server.ts";
