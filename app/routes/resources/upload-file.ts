@@ -1,7 +1,7 @@
 import type { Route } from "./+types/upload-file";
 import { requireRole } from "#app/auth/session.server.ts";
 import { getDb } from "#app/db/client.server.ts";
-import { fileFromRequest } from "#app/models/submission/upload-http.server.ts";
+import { withUploadedSheet } from "#app/models/submission/upload-http.server.ts";
 import { createUpload } from "#app/models/submission/uploads/batches.server.ts";
 import { UploadError } from "#app/models/submission/uploads/read-sheet.server.ts";
 import { redirectWithFlash } from "#app/utils/flash.server.ts";
@@ -16,8 +16,9 @@ export async function action({ request }: Route.ActionArgs) {
   const user = await requireRole(request, "contributor");
   const wantsJson = (request.headers.get("Accept") ?? "").includes("application/json");
   try {
-    const file = await fileFromRequest(request);
-    const { batch, validation } = await createUpload(getDb(), { userId: user.id, fileName: file.name, file: file.bytes });
+    const { batch, validation } = await withUploadedSheet(request, (file) =>
+      createUpload(getDb(), { userId: user.id, fileName: file.name, path: file.path }),
+    );
     const location = `/uploads/${batch.publicId}`;
     const message =
       validation.errors.length === 0

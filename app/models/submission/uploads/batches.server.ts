@@ -2,6 +2,7 @@
 // Nothing reaches sites/samples/determinations before a commit.
 
 import crypto from "node:crypto";
+import { readFile } from "node:fs/promises";
 import { and, desc, eq, inArray, sql } from "drizzle-orm";
 import type { Db } from "#app/db/client.server.ts";
 import { determinations, labs, reviews, uploadBatches, users } from "#app/db/schema.ts";
@@ -34,9 +35,10 @@ export function sheetOf(batch: BatchRow): { head: PayloadHead; headers: string[]
  */
 export async function createUpload(
   db: Db,
-  input: { userId: number; fileName: string; file: Buffer },
+  input: { userId: number; fileName: string } & ({ file: Buffer } | { path: string }),
 ): Promise<{ batch: BatchRow; validation: Validation }> {
-  const sheet = await readUpload(input.file, input.fileName);
+  const file = "file" in input ? input.file : await readFile(input.path);
+  const sheet = await readUpload(file, input.fileName);
   const labId = userLab(db, input.userId);
   const mapping = guessMapping(sheet.headers, rememberedMapping(db, labId));
   const validation = validateRows(db, sheet, mapping, { userLabId: labId });
@@ -55,7 +57,7 @@ export async function createUpload(
       labId,
       fileName: input.fileName.slice(0, 200) || "upload",
       fileKind: sheet.kind,
-      fileSizeBytes: input.file.length,
+      fileSizeBytes: file.length,
       status: "parsed",
       mapping,
       rowCount: validation.results.length,

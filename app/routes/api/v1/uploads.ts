@@ -1,7 +1,7 @@
 import type { Route } from "./+types/uploads";
 import { requireApiRole } from "#app/auth/api.server.ts";
 import { getDb } from "#app/db/client.server.ts";
-import { fileFromRequest } from "#app/models/submission/upload-http.server.ts";
+import { withUploadedSheet } from "#app/models/submission/upload-http.server.ts";
 import { createUpload } from "#app/models/submission/uploads/batches.server.ts";
 import { UploadError } from "#app/models/submission/uploads/read-sheet.server.ts";
 import { json } from "#app/utils/http.server.ts";
@@ -22,8 +22,9 @@ export async function action({ request }: Route.ActionArgs) {
   const user = await requireApiRole(request, "contributor");
   if (request.method !== "POST") return json({ error: "Use POST." }, { status: 405, headers: { Allow: "POST" } });
   try {
-    const file = await fileFromRequest(request);
-    const { batch, validation } = await createUpload(getDb(), { userId: user.id, fileName: file.name, file: file.bytes });
+    const { batch, validation } = await withUploadedSheet(request, (file) =>
+      createUpload(getDb(), { userId: user.id, fileName: file.name, path: file.path }),
+    );
     return json({
       upload_id: batch.publicId,
       rows: validation.results.length,
