@@ -32,7 +32,11 @@ export default [
 
   layout("routes/review/layout.tsx", [route("review", "routes/review/queue.tsx"), route("review/:id", "routes/review/item.tsx")]),
 
-  layout("routes/admin/layout.tsx", [route("people", "routes/admin/people.tsx"), route("curves", "routes/admin/curves.tsx")]),
+  layout("routes/admin/layout.tsx", [
+    route("people", "routes/admin/people.tsx"),
+    route("curves", "routes/admin/curves.tsx"),
+    route("labs", "routes/admin/labs.tsx"),
+  ]),
 
   layout("routes/constraints/layout.tsx", [route("constraints", "routes/constraints/constraints.tsx")]),
   layout("routes/releases/layout.tsx", [

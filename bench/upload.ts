@@ -27,7 +27,7 @@ export async function benchUpload(db: Db, file: Buffer, kind: "csv" | "xlsx", us
   const t1 = performance.now();
   const mapping = guessMapping(sheet.headers);
   const labId = userLab(db, userId);
-  const validation = validateRows(db, sheet, mapping, { userLabId: labId });
+  const validation = validateRows(db, sheet, mapping, { userId, userLabId: labId });
   const t2 = performance.now();
   const batch = db
     .insert(uploadBatches)

@@ -16,6 +16,7 @@ export const NAV_ITEMS: NavItem[] = [
   { to: "/submissions", label: "My submissions", roles: ["contributor"] },
   { to: "/runs", label: "Model runs", roles: ["modeller"] },
   { to: "/people", label: "People", roles: ["editor"] },
+  { to: "/labs", label: "Labs", roles: ["editor"] },
   { to: "/api-docs", label: "API", roles: "public" },
 ];
 

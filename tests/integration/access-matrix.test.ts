@@ -97,6 +97,7 @@ export const ACCESS: Record<string, Row> = {
   "routes/resources/curve-window": { url: "/api/curve-window?curve=intcal20&from=12500&to=11500", get: "ok", post: "none" },
   // Curves and background jobs: editors
   "routes/admin/curves": { url: "/curves", get: only(["editor"], "ok"), post: only(["editor"], "allowed") },
+  "routes/admin/labs": { url: "/labs", get: only(["editor"], "ok"), post: only(["editor"], "allowed") },
   "routes/resources/jobs": {
     url: "/api/jobs/:id",
     params: { id: "jobId" },

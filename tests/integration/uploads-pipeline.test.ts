@@ -99,7 +99,7 @@ describe("validation of an upload", () => {
       expect(batch.status).toBe("parsed");
       expect(batch.rowCount).toBe(30);
       expect(batch.validCount).toBe(30);
-      expect(validation.preview).toMatchObject({ determinations: 30, newSites: 5, newSamples: 10 });
+      expect(validation.preview).toMatchObject({ determinations: 30, newSites: 5, newSamples: 16 });
     }
     expect(counts()).toEqual(before);
   });
@@ -220,7 +220,7 @@ describe("committing", () => {
     expect(after.determinations - before.determinations).toBe(24);
     expect(after.calibrations - before.calibrations).toBe(24);
     expect(after.sites - before.sites).toBe(4);
-    expect(after.samples - before.samples).toBe(8);
+    expect(after.samples - before.samples).toBe(14);
     const rows = db().select().from(determinations).where(eq(determinations.uploadBatchId, batch.id)).all();
     expect(rows.every((r) => r.status === "submitted" && r.contributorId === userId)).toBe(true);
     const cal = db()
@@ -300,7 +300,7 @@ describe("committing", () => {
     commitUpload(db(), a.batch, "all", { userId: a.userId });
     const second = uploadRows(6, { prefix: prefix() }).map((r) => ({ ...r, latitude: Number(r.latitude) + 0.0003 }));
     const b = await upload(second);
-    expect(b.validation.preview).toMatchObject({ newSites: 0, existingSites: 1, newSamples: 0, existingSamples: 2 });
+    expect(b.validation.preview).toMatchObject({ newSites: 0, existingSites: 1, newSamples: 0, existingSamples: 3 });
     const before = counts();
     commitUpload(db(), b.batch, "all", { userId: b.userId });
     expect(counts().sites).toBe(before.sites);

@@ -5,7 +5,7 @@ import { COLUMN_NAMES } from "#app/utils/determination-input/columns.ts";
 
 export type Cells = Record<string, string | number | Date | { formula: string; result?: number } | null | undefined>;
 
-/** `n` valid rows: radiocarbon (terrestrial and marine) and luminescence, ~3 determinations per sample. */
+/** `n` valid rows: radiocarbon (terrestrial and marine) and luminescence, up to 3 determinations per sample. */
 export function uploadRows(n: number, options: { prefix?: string; seed?: number } = {}): Cells[] {
   const prefix = options.prefix ?? "ZZQ";
   let s = options.seed ?? 7;
@@ -23,7 +23,8 @@ export function uploadRows(n: number, options: { prefix?: string; seed?: number 
       latitude: Number(lat.toFixed(4)),
       longitude: Number(lon.toFixed(4)),
       elevation_m: Math.round(20 + rand() * 100),
-      sample_code: `TF${siteNo}-${Math.floor((i % 6) / 3)}`,
+      // A sample is one material: the letter keeps plant, shell and sand samples apart.
+      sample_code: `TF${siteNo}-${"PPPPMMMLLL"[i % 10]}${Math.floor((i % 6) / 3)}`,
       depth_cm: Math.round(50 + rand() * 200),
       lab_code: `${prefix}-${String(i + 1).padStart(5, "0")}`,
       lab_name: "Testing Laboratory North",

@@ -130,6 +130,10 @@ export default function Uploads({ loaderData }: Route.ComponentProps) {
                         </ActionButton>
                       ) : b.status === "parsed" ? (
                         <Link to={`/uploads/${b.publicId}`}>Review and commit</Link>
+                      ) : b.undoRefusal ? (
+                        <span className="text-sm text-muted">
+                          {b.undoRefusal.replace("This upload cannot be undone: ", "No undo: ")}
+                        </span>
                       ) : null}
                     </td>
                   </tr>

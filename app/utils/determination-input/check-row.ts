@@ -18,7 +18,8 @@ function inRegion(region: Region, lat: number, lon: number): boolean {
 
 export type RowCheck =
   | { ok: true; value: DeterminationRow; issues: []; warnings: RowIssue[] }
-  | { ok: false; issues: RowIssue[]; warnings: RowIssue[] };
+  /** `partial`: the columns that passed, so callers can still check what needs them (site, sample, lab). */
+  | { ok: false; issues: RowIssue[]; warnings: RowIssue[]; partial: Partial<DeterminationRow> };
 
 /** Columns that describe only one method's measurement. */
 export const RADIOCARBON_ONLY_COLUMNS = [
@@ -105,16 +106,26 @@ export function checkRow(raw: Record<string, unknown>, ctx: RowContext): RowChec
   checkDuplicate(row);
 
   const { issues, warnings, out } = row;
-  if (issues.length > 0) return { ok: false, issues, warnings };
   if (out.age_normalised === undefined) out.age_normalised = true;
   if (out.greater_than === undefined) out.greater_than = false;
-  const value = out as DeterminationRow;
-  if (ctx.calendarProblem) {
-    const problem = ctx.calendarProblem(value);
-    if (problem) return { ok: false, issues: [problem], warnings };
+  // The calendar age needs only the measurement: asked whenever those columns are sound, so a
+  // problem elsewhere in the row never hides an age beyond the curve.
+  if (ctx.calendarProblem && method && !issues.some((i) => MEASUREMENT_COLUMNS.has(i.column))) {
+    const problem = ctx.calendarProblem(out as DeterminationRow);
+    if (problem) issues.push(problem);
   }
-  return { ok: true, value, issues: [], warnings };
+  if (issues.length > 0) return { ok: false, issues, warnings, partial: out as Partial<DeterminationRow> };
+  return { ok: true, value: out as DeterminationRow, issues: [], warnings };
 }
+
+const MEASUREMENT_COLUMNS = new Set<string>([
+  "method",
+  "material",
+  "age_normalised",
+  "greater_than",
+  ...RADIOCARBON_ONLY_COLUMNS,
+  ...LUMINESCENCE_ONLY_COLUMNS,
+]);
 
 function readCells(row: RowState, raw: Record<string, unknown>) {
   for (const spec of COLUMNS) {

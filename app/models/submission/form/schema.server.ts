@@ -9,7 +9,7 @@ import { listCurves } from "#app/models/calibration/curves.server.ts";
 import { measurementFields, type DeterminationRow as StoredDetermination } from "#app/models/submission/determinations.server.ts";
 import type { DeterminationRow, RowContext, RowIssue } from "#app/utils/determination-input/row.ts";
 import { clientRowContext, makeSubmissionSchema, type FormOptions, type SubmissionValue } from "#app/utils/submission-form.ts";
-import { labByName, planSample, planSite } from "#app/models/submission/placement.server.ts";
+import { Placement } from "#app/models/submission/placement.server.ts";
 
 export type Actor = { userId: number; ip?: string | null };
 
@@ -84,20 +84,15 @@ function calendarProblem(db: Db, row: DeterminationRow): RowIssue | null {
   return outcome.ok ? null : { column, message: outcome.error };
 }
 
+/** Where the form's row belongs, planned by the one placement rule the upload and the API use too. */
+export function planFormRow(db: Db, value: SubmissionValue, editing: StoredDetermination | null, userId: number) {
+  const placement = new Placement(db, { userId, userLabId: null, mayRegisterLabs: false, editing });
+  return { placement, ...placement.planRow(value.row, { siteId: value.siteChoice === "existing" ? value.siteId : null }) };
+}
+
 /** What only the database can tell about a form that passed every other rule. */
 export function submissionChecks(db: Db, value: SubmissionValue, editing: StoredDetermination | null): RowIssue[] {
-  const issues: RowIssue[] = [];
-  if (!labByName(db, value.row.lab_name ?? "")) {
-    issues.push({
-      column: "lab_name",
-      message: `There is no laboratory named "${value.row.lab_name}" in the registry; choose one from the list.`,
-    });
-  }
-  const site = planSite(db, value);
-  if ("issue" in site) issues.push(site.issue);
-  const sample = planSample(db, value.row, "site" in site ? site.site.id : null, editing);
-  if ("issue" in sample) issues.push(sample.issue);
-  return issues;
+  return planFormRow(db, value, editing, editing?.contributorId ?? 0).issues;
 }
 
 /** The form's schema as the server runs it (duplicates, curve range, labs and samples checked). */

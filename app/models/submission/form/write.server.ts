@@ -14,10 +14,18 @@ import {
   type DeterminationRow as StoredDetermination,
 } from "#app/models/submission/determinations.server.ts";
 import type { SubmissionValue } from "#app/utils/submission-form.ts";
-import { type Actor, SubmissionRefused } from "#app/models/submission/form/schema.server.ts";
-import { placeRow } from "#app/models/submission/placement.server.ts";
+import { type Actor, planFormRow, SubmissionRefused } from "#app/models/submission/form/schema.server.ts";
 
 export type CreateResult = { id: number; createdSite: boolean; joinedSample: boolean; calendarAge: boolean };
+
+/** Site, sample, lab and publication for the form's row, written where needed; call inside the write's transaction. */
+function placeRow(db: Db, value: SubmissionValue, editing: StoredDetermination | null, actor: Actor) {
+  const { placement, plan, issues } = planFormRow(db, value, editing, actor.userId);
+  if (!plan) throw new SubmissionRefused(issues[0]?.message ?? "This determination cannot be placed in the registry.", 409);
+  const placed = placement.place(plan, { ip: actor.ip });
+  const joinedSample = "sample" in plan.sample && plan.sample.sample.id !== editing?.sampleId;
+  return { ...placed, joinedSample };
+}
 
 /** A new determination from the form: one transaction with its audit row and calibration. */
 export function createSubmission(db: Db, value: SubmissionValue, actor: Actor): CreateResult {

@@ -3,13 +3,14 @@
 
 import crypto from "node:crypto";
 import { readFile } from "node:fs/promises";
-import { and, desc, eq, inArray, sql } from "drizzle-orm";
+import { and, desc, eq, sql } from "drizzle-orm";
 import type { Db } from "#app/db/client.server.ts";
-import { determinations, labs, reviews, uploadBatches, users } from "#app/db/schema.ts";
+import { labs, uploadBatches, users } from "#app/db/schema.ts";
 import { columnSpec } from "#app/utils/determination-input/columns.ts";
 import { CommitRefused } from "#app/models/submission/uploads/commit.server.ts";
 import { type ColumnMapping, guessMapping } from "#app/models/submission/uploads/mapping.server.ts";
 import { type PayloadHead, type StoredRow, readUpload } from "#app/models/submission/uploads/read-sheet.server.ts";
+import { undoRefusals } from "#app/models/submission/uploads/undo.server.ts";
 import { type Validation, validateRows } from "#app/models/submission/uploads/validate.server.ts";
 
 export type BatchRow = typeof uploadBatches.$inferSelect;
@@ -41,7 +42,7 @@ export async function createUpload(
   const sheet = await readUpload(file, input.fileName);
   const labId = userLab(db, input.userId);
   const mapping = guessMapping(sheet.headers, rememberedMapping(db, labId));
-  const validation = validateRows(db, sheet, mapping, { userLabId: labId });
+  const validation = validateRows(db, sheet, mapping, { userId: input.userId, userLabId: labId });
   const head: PayloadHead = {
     n: sheet.headerRow,
     cells: sheet.headers,
@@ -84,7 +85,7 @@ export function remapUpload(db: Db, batch: BatchRow, mapping: ColumnMapping): Va
     } else clean[h] = "";
   }
   const labId = batch.labId ?? userLab(db, batch.userId);
-  const validation = validateRows(db, { headers, rows }, clean, { userLabId: labId });
+  const validation = validateRows(db, { headers, rows }, clean, { userId: batch.userId, userLabId: labId });
   const readerNotices = head.notices.filter((n) => !n.startsWith("No column is mapped"));
   const newHead: PayloadHead = {
     ...head,
@@ -120,6 +121,8 @@ export type BatchSummary = Omit<BatchRow, "payload" | "errors" | "mapping"> & {
   userName: string;
   errorCount: number;
   undoable: boolean;
+  /** Why a committed batch can no longer be undone (the undo's own rule). */
+  undoRefusal: string | null;
 };
 
 /** A contributor's upload history, newest first, with whether each batch can still be undone. */
@@ -149,17 +152,13 @@ export function listBatches(db: Db, userId: number, limit = 100): BatchSummary[]
     .orderBy(desc(uploadBatches.createdAt), desc(uploadBatches.id))
     .limit(limit)
     .all();
-  const committed = rows.filter((r) => r.status === "committed").map((r) => r.id);
-  const touched = new Set<number>();
-  if (committed.length) {
-    for (const r of db
-      .selectDistinct({ batchId: determinations.uploadBatchId })
-      .from(reviews)
-      .innerJoin(determinations, eq(determinations.id, reviews.determinationId))
-      .where(inArray(determinations.uploadBatchId, committed))
-      .all()) {
-      if (r.batchId != null) touched.add(r.batchId);
-    }
-  }
-  return rows.map((r) => ({ ...r, undoable: r.status === "committed" && !touched.has(r.id) }));
+  const refusals = undoRefusals(
+    db,
+    rows.filter((r) => r.status === "committed").map((r) => r.id),
+  );
+  return rows.map((r) => ({
+    ...r,
+    undoable: r.status === "committed" && !refusals.has(r.id),
+    undoRefusal: refusals.get(r.id) ?? null,
+  }));
 }

@@ -5,27 +5,14 @@ import crypto from "node:crypto";
 import { eq } from "drizzle-orm";
 import { runChecksFor } from "#app/models/review/check-run.server.ts";
 import type { Db } from "#app/db/client.server.ts";
-import { labs, publications, samples, sites, uploadBatches, type UploadRowError } from "#app/db/schema.ts";
+import { labs, uploadBatches, type UploadRowError } from "#app/db/schema.ts";
 import { audit } from "#app/models/audit.server.ts";
 import { calibrateDeterminations } from "#app/models/calibration/calibrations.server.ts";
-import {
-  determinationValues,
-  insertDetermination,
-  sampleValues,
-  siteValues,
-} from "#app/models/submission/determinations.server.ts";
+import { determinationValues, insertDetermination } from "#app/models/submission/determinations.server.ts";
 import { COLUMNS, columnSpec } from "#app/utils/determination-input/columns.ts";
-import type { DeterminationRow } from "#app/utils/determination-input/row.ts";
 import { type BatchRow, sheetOf, userLab } from "#app/models/submission/uploads/batches.server.ts";
 import type { StoredCell, StoredRow } from "#app/models/submission/uploads/read-sheet.server.ts";
-import {
-  type Registry,
-  type SiteRef,
-  findSite,
-  loadSitesByName,
-  resolveLab,
-  validateRows,
-} from "#app/models/submission/uploads/validate.server.ts";
+import { type Validation, validateRows } from "#app/models/submission/uploads/validate.server.ts";
 
 /** A commit refused as a whole (mode "all" with errors, nothing valid, already committed). */
 export class CommitRefused extends Error {
@@ -55,101 +42,35 @@ export type CommitResult = {
 };
 
 /**
- * Writes valid rows to the registry; the caller holds the transaction (better-sqlite3 runs the
- * nested transactions of insertDetermination as savepoints on the same connection): labs, publications, sites and samples
- * as needed, each determination with its audit row, then their calibrations. Anything that
- * throws rolls the whole commit back.
+ * Writes the valid rows where their plans put them; the caller holds the transaction (better-sqlite3
+ * runs the nested transactions of insertDetermination as savepoints on the same connection): labs,
+ * publications, sites and samples as needed, each determination with its audit row, then their
+ * calibrations and checks. Anything that throws rolls the whole commit back.
  */
 function writeRows(
   db: Db,
-  rows: DeterminationRow[],
-  ctx: { userId: number; batchId: number; userLabId: number | null },
+  validation: Validation,
+  ctx: { userId: number; batchId: number },
   options: CommitOptions,
 ): CommitResult {
   const t0 = performance.now();
-  const labRows = db.select({ id: labs.id, name: labs.name, codePrefix: labs.codePrefix }).from(labs).all();
-  const registry = { labs: labRows } as Registry;
-  const existingSites = loadSitesByName(
-    db,
-    rows.map((r) => r.site_name),
-  );
-  const createdSites = new Map<string, SiteRef[]>();
-  const sampleCache = new Map<string, number>();
-  const pubCache = new Map<string, number>();
   const createdSiteIds: number[] = [];
   const createdSampleIds: number[] = [];
   const ids: number[] = [];
-
-  const sampleLookup = db.$client.prepare("select id from samples where site_id = ? and field_code = ?").pluck();
-  const pubLookup = db.$client.prepare("select id from publications where lower(doi) = lower(?)").pluck();
-
-  rows.forEach((row, i) => {
-    // Lab
-    let labId: number;
-    const lab = resolveLab(row, registry, ctx.userLabId);
-    if ("issue" in lab) throw new CommitRefused(lab.issue.message, 400);
-    if ("labId" in lab) labId = lab.labId;
-    else {
-      let prefix = lab.create.codePrefix || "LAB";
-      const used = new Set(registry.labs.map((l) => l.codePrefix.toLowerCase()));
-      for (let k = 2; used.has(prefix.toLowerCase()); k++) prefix = `${lab.create.codePrefix}${k}`;
-      const created = db.insert(labs).values({ name: lab.create.name, codePrefix: prefix }).returning().get();
-      registry.labs.push({ id: created.id, name: created.name, codePrefix: created.codePrefix });
-      audit(db, {
-        actorId: ctx.userId,
-        action: "lab.create",
-        entity: "lab",
-        entityId: created.id,
-        after: { name: created.name, codePrefix: prefix },
-        ip: options.ip,
-      });
-      labId = created.id;
-    }
-    // Site: same name and within ~100 m
-    let site =
-      findSite(existingSites.get(row.site_name), row.latitude, row.longitude) ??
-      findSite(createdSites.get(row.site_name), row.latitude, row.longitude);
-    if (!site) {
-      const created = db.insert(sites).values(siteValues(row, ctx.userId)).returning({ id: sites.id }).get();
-      site = { id: created.id, name: row.site_name, latitude: row.latitude, longitude: row.longitude };
-      createdSites.set(site.name, [...(createdSites.get(site.name) ?? []), site]);
-      createdSiteIds.push(created.id);
-    }
-    // Sample: same site and field code
-    const sKey = `${site.id}|${row.sample_code}`;
-    let sampleId = sampleCache.get(sKey) ?? (sampleLookup.get(site.id, row.sample_code) as number | undefined);
-    if (sampleId === undefined) {
-      sampleId = db
-        .insert(samples)
-        .values({ siteId: site.id, ...sampleValues(row) })
-        .returning({ id: samples.id })
-        .get().id;
-      createdSampleIds.push(sampleId);
-    }
-    sampleCache.set(sKey, sampleId);
-    // Publication by DOI
-    let publicationId: number | null = null;
-    if (row.doi) {
-      const key = row.doi.toLowerCase();
-      publicationId = pubCache.get(key) ?? (pubLookup.get(row.doi) as number | undefined) ?? null;
-      if (publicationId == null) {
-        publicationId = db
-          .insert(publications)
-          .values({ citation: `DOI ${row.doi}`, doi: row.doi })
-          .returning({ id: publications.id })
-          .get().id;
-      }
-      pubCache.set(key, publicationId);
-    }
+  const plans = validation.results.flatMap((r) => (r.plan ? [r.plan] : []));
+  plans.forEach((plan, i) => {
+    const placed = validation.placement.place(plan, { batchId: ctx.batchId, ip: options.ip });
+    if (placed.createdSite) createdSiteIds.push(placed.siteId);
+    if (placed.createdSample) createdSampleIds.push(placed.sampleId);
     const det = insertDetermination(
       db,
       {
-        sampleId,
-        labId,
-        ...determinationValues(row),
+        sampleId: placed.sampleId,
+        labId: placed.labId,
+        ...determinationValues(plan.row),
         status: "submitted",
         contributorId: ctx.userId,
-        publicationId,
+        publicationId: placed.publicationId,
         uploadBatchId: ctx.batchId,
       },
       ctx.userId,
@@ -183,16 +104,16 @@ export function commitUpload(
   if (batch.status !== "parsed") throw new CommitRefused(`This upload is ${batch.status}; it cannot be committed again.`);
   const { headers, rows } = sheetOf(batch);
   const labId = batch.labId ?? userLab(db, batch.userId);
-  const validation = validateRows(db, { headers, rows }, batch.mapping ?? {}, { userLabId: labId });
-  if (mode === "all" && validation.errors.length > 0) {
-    throw new CommitRefused(
-      `The file has ${validation.errors.length} error${validation.errors.length === 1 ? "" : "s"} in ${validation.results.length - validation.validCount} row(s); fix them or commit the valid rows only.`,
-    );
-  }
-  const valid = validation.results.filter((r) => r.value).map((r) => r.value!);
-  if (valid.length === 0) throw new CommitRefused("No row is valid; nothing to commit.", 400);
   return db.transaction((tx) => {
-    const result = writeRows(db, valid, { userId: actor.userId, batchId: batch.id, userLabId: labId }, options);
+    // Checked again inside the write: the registry may have changed since the upload was read.
+    const validation = validateRows(db, { headers, rows }, batch.mapping ?? {}, { userId: actor.userId, userLabId: labId });
+    if (mode === "all" && validation.errors.length > 0) {
+      throw new CommitRefused(
+        `The file has ${validation.errors.length} error${validation.errors.length === 1 ? "" : "s"} in ${validation.results.length - validation.validCount} row(s); fix them or commit the valid rows only.`,
+      );
+    }
+    if (validation.validCount === 0) throw new CommitRefused("No row is valid; nothing to commit.", 400);
+    const result = writeRows(db, validation, { userId: actor.userId, batchId: batch.id }, options);
     tx.update(uploadBatches)
       .set({
         status: "committed",
@@ -253,7 +174,7 @@ export function submitJsonRows(
   const labId = userLab(db, actor.userId);
   const mapping = Object.fromEntries(headers.map((h) => [h, h]));
   // Index rows from 1 so a blank object still gets its row number back.
-  const validation = validateRows(db, { headers, rows }, mapping, { userLabId: labId });
+  const validation = validateRows(db, { headers, rows }, mapping, { userId: actor.userId, userLabId: labId });
   for (const r of rows) {
     if (r.cells.length > 0 && !validation.results.some((v) => v.n === r.n)) {
       errors.push({ index: r.n - 1, row: r.n, column: "", message: "The item is empty." });
@@ -264,7 +185,6 @@ export function submitJsonRows(
     errors.sort((a, b) => a.index - b.index);
     return { ok: false, errors };
   }
-  const valid = validation.results.map((r) => r.value!);
   return db.transaction((tx) => {
     const batch = tx
       .insert(uploadBatches)
@@ -277,16 +197,16 @@ export function submitJsonRows(
         fileSizeBytes: 0,
         status: "committed",
         mapping,
-        rowCount: valid.length,
-        validCount: valid.length,
-        committedCount: valid.length,
+        rowCount: validation.validCount,
+        validCount: validation.validCount,
+        committedCount: validation.validCount,
         errors: [],
         payload: [],
         committedAt: new Date(),
       })
       .returning()
       .get();
-    const result = writeRows(db, valid, { userId: actor.userId, batchId: batch.id, userLabId: labId }, options);
+    const result = writeRows(db, validation, { userId: actor.userId, batchId: batch.id }, options);
     audit(tx, {
       actorId: actor.userId,
       action: "upload.commit",

@@ -1,61 +1,81 @@
 // Undoing a committed upload: removes what it created, in one transaction, when nothing else depends on it.
+// One rule (undoRefusals) decides both whether the uploads list offers Undo and whether the undo runs.
 
-import { and, desc, eq, inArray } from "drizzle-orm";
+import { eq, inArray } from "drizzle-orm";
 import type { Db } from "#app/db/client.server.ts";
-import {
-  auditLog,
-  calibrations,
-  checkResults,
-  determinations,
-  modelRunScores,
-  releaseItems,
-  reviews,
-  samples,
-  sites,
-  uploadBatches,
-} from "#app/db/schema.ts";
+import { calibrations, checkResults, determinations, samples, sites, uploadBatches } from "#app/db/schema.ts";
 import { audit } from "#app/models/audit.server.ts";
 import { auditSnapshot } from "#app/models/submission/determinations.server.ts";
 import type { BatchRow } from "#app/models/submission/uploads/batches.server.ts";
 import { CommitRefused } from "#app/models/submission/uploads/commit.server.ts";
 
+type Blockers = { reviewed: number; released: number; scored: number; withdrawn: number; moved: number };
+
 /**
- * Takes a committed batch back out of the registry, provided no reviewer has touched any of its
- * determinations and none is in a release or a model-run score: its determinations (with their
- * calibrations and checks) and the sites and samples created only for it. Audited, one transaction.
+ * Why each of these committed batches can no longer be undone; a batch absent from the answer can be.
+ * Refused once any of its determinations has a review, is in a published release, has a model-run
+ * score, or is no longer simply submitted (in review, awaiting an answer, graded or withdrawn).
+ */
+export function undoRefusals(db: Db, batchIds: number[]): Map<number, string> {
+  const out = new Map<number, string>();
+  for (let i = 0; i < batchIds.length; i += 500) {
+    const chunk = batchIds.slice(i, i + 500);
+    const rows = db.$client
+      .prepare(
+        `select d.upload_batch_id as batch,
+           max(exists(select 1 from reviews r where r.determination_id = d.id)) as reviewed,
+           max(exists(select 1 from release_items r where r.determination_id = d.id)) as released,
+           max(exists(select 1 from model_run_scores r where r.determination_id = d.id)) as scored,
+           max(d.status = 'withdrawn') as withdrawn,
+           max(d.status != 'submitted') as moved
+         from determinations d where d.upload_batch_id in (${chunk.map(() => "?").join(",")})
+         group by d.upload_batch_id`,
+      )
+      .all(...chunk) as (Blockers & { batch: number })[];
+    for (const r of rows) {
+      const why = r.reviewed
+        ? "a reviewer has already graded some of its determinations"
+        : r.released
+          ? "some of its determinations are in a published release"
+          : r.scored
+            ? "some of its determinations have model-run scores"
+            : r.withdrawn
+              ? "some of its determinations have been withdrawn"
+              : r.moved
+                ? "some of its determinations are already in review"
+                : null;
+      if (why) out.set(r.batch, `This upload cannot be undone: ${why}.`);
+    }
+  }
+  return out;
+}
+
+/**
+ * Takes a committed batch back out of the registry when undoRefusals allows it: its determinations
+ * (with their calibrations and checks) and the sites and samples it created that nothing else uses
+ * since. Audited, one transaction.
  */
 export function undoUpload(db: Db, batch: BatchRow, actor: { userId: number; ip?: string | null }): { removed: number } {
   if (batch.userId !== actor.userId) throw new CommitRefused("Not found.", 404);
   if (batch.status !== "committed")
     throw new CommitRefused(`This upload is ${batch.status}; only a committed upload can be undone.`);
   return db.transaction((tx) => {
+    const refusal = undoRefusals(db, [batch.id]).get(batch.id);
+    if (refusal) throw new CommitRefused(refusal);
     const dets = tx.select().from(determinations).where(eq(determinations.uploadBatchId, batch.id)).all();
     const ids = dets.map((d) => d.id);
-    const blocked = (table: typeof reviews | typeof releaseItems | typeof modelRunScores, what: string) => {
-      for (let i = 0; i < ids.length; i += 500) {
-        const hit = tx
-          .select({ id: table.determinationId })
-          .from(table)
-          .where(inArray(table.determinationId, ids.slice(i, i + 500)))
-          .limit(1)
-          .get();
-        if (hit) throw new CommitRefused(`This upload cannot be undone: ${what}.`);
-      }
-    };
-    blocked(reviews, "a reviewer has already graded some of its determinations");
-    blocked(releaseItems, "some of its determinations are in a published release");
-    blocked(modelRunScores, "some of its determinations have model-run scores");
-    if (dets.some((d) => d.status !== "submitted")) {
-      throw new CommitRefused("This upload cannot be undone: some of its determinations are already in review or withdrawn.");
-    }
-    const commitEntry = tx
-      .select({ after: auditLog.after })
-      .from(auditLog)
-      .where(and(eq(auditLog.action, "upload.commit"), eq(auditLog.entityId, batch.publicId)))
-      .orderBy(desc(auditLog.id))
-      .get();
-    const createdSampleIds = ((commitEntry?.after?.createdSampleIds as number[] | undefined) ?? []).slice();
-    const createdSiteIds = ((commitEntry?.after?.createdSiteIds as number[] | undefined) ?? []).slice();
+    const createdSampleIds = tx
+      .select({ id: samples.id })
+      .from(samples)
+      .where(eq(samples.createdInBatchId, batch.id))
+      .all()
+      .map((r) => r.id);
+    const createdSiteIds = tx
+      .select({ id: sites.id })
+      .from(sites)
+      .where(eq(sites.createdInBatchId, batch.id))
+      .all()
+      .map((r) => r.id);
     for (let i = 0; i < ids.length; i += 500) {
       const chunk = ids.slice(i, i + 500);
       tx.delete(calibrations).where(inArray(calibrations.determinationId, chunk)).run();

@@ -4,7 +4,7 @@
 import { inArray, sql } from "drizzle-orm";
 import { env } from "#app/utils/env.server.ts";
 import type { Db } from "#app/db/client.server.ts";
-import { determinations, labs, materials, samples, sites, type UploadRowError } from "#app/db/schema.ts";
+import { determinations, materials, type UploadRowError } from "#app/db/schema.ts";
 import { calibrationInputFor, interpretMeasurement } from "#app/models/calibration/calibrations.server.ts";
 import { activeCurve, listCurves, preparedCurve, type CurveRow } from "#app/models/calibration/curves.server.ts";
 import { beyondCurve } from "#app/science/calibration.ts";
@@ -16,8 +16,9 @@ import type { DeterminationRow, RowContext, RowIssue } from "#app/utils/determin
 import { isBlankCell } from "#app/utils/determination-input/cells.ts";
 import type { ColumnMapping } from "#app/models/submission/uploads/mapping.server.ts";
 import type { StoredCell, StoredRow } from "#app/models/submission/uploads/read-sheet.server.ts";
+import { Placement, type RowPlan } from "#app/models/submission/placement.server.ts";
 
-export type RowResult = { n: number; value?: DeterminationRow; issues: RowIssue[]; warnings: RowIssue[] };
+export type RowResult = { n: number; value?: DeterminationRow; plan?: RowPlan; issues: RowIssue[]; warnings: RowIssue[] };
 
 export type UploadPreview = {
   newSites: number;
@@ -31,6 +32,8 @@ export type UploadPreview = {
 
 export type Validation = {
   results: RowResult[];
+  /** Where the valid rows belong; a commit writes their plans in order. */
+  placement: Placement;
   errors: UploadRowError[];
   warnings: UploadRowError[];
   validCount: number;
@@ -38,9 +41,8 @@ export type Validation = {
   notices: string[];
 };
 
-export type Registry = {
+type Registry = {
   ctx: RowContext;
-  labs: { id: number; name: string; codePrefix: string }[];
   curveFor: (name: string) => CurveRow | undefined;
 };
 
@@ -75,8 +77,7 @@ function loadRegistry(db: Db, labCodes: string[]): Registry {
     regionOfInterest: env().REGION_OF_INTEREST,
     calendarProblem: (row) => calendarProblem(db, row, curveFor),
   };
-  const labRows = db.select({ id: labs.id, name: labs.name, codePrefix: labs.codePrefix }).from(labs).all();
-  return { ctx, labs: labRows, curveFor };
+  return { ctx, curveFor };
 }
 
 /**
@@ -111,67 +112,6 @@ function calendarProblem(db: Db, row: DeterminationRow, curveFor: (n: string) =>
   return null;
 }
 
-const SITE_MATCH_M = 100;
-
-function distanceM(lat1: number, lon1: number, lat2: number, lon2: number): number {
-  const rad = Math.PI / 180;
-  const x = (lon2 - lon1) * rad * Math.cos(((lat1 + lat2) / 2) * rad);
-  const y = (lat2 - lat1) * rad;
-  return Math.hypot(x, y) * 6_371_000;
-}
-
-export type SiteRef = { id: number; name: string; latitude: number; longitude: number };
-
-export function loadSitesByName(db: Db, names: string[]): Map<string, SiteRef[]> {
-  const out = new Map<string, SiteRef[]>();
-  const unique = [...new Set(names)];
-  for (let i = 0; i < unique.length; i += 500) {
-    const rows = db
-      .select({ id: sites.id, name: sites.name, latitude: sites.latitude, longitude: sites.longitude })
-      .from(sites)
-      .where(inArray(sites.name, unique.slice(i, i + 500)))
-      .all();
-    for (const r of rows) out.set(r.name, [...(out.get(r.name) ?? []), r]);
-  }
-  return out;
-}
-
-/** The first of the same-named candidates within about 100 m of a row's coordinates: the same site (uploads and the form). */
-export function findSite<T extends { latitude: number; longitude: number }>(
-  candidates: T[] | undefined,
-  lat: number,
-  lon: number,
-): T | undefined {
-  return candidates?.find((s) => distanceM(s.latitude, s.longitude, lat, lon) <= SITE_MATCH_M);
-}
-
-/** The lab of a row: named, else by the lab code's prefix, else the uploader's own lab. */
-export function resolveLab(
-  row: DeterminationRow,
-  registry: Registry,
-  userLabId: number | null,
-): { labId: number } | { create: { name: string; codePrefix: string } } | { issue: RowIssue } {
-  if (row.lab_name) {
-    const lab = registry.labs.find((l) => l.name.toLowerCase() === row.lab_name!.toLowerCase());
-    if (lab) return { labId: lab.id };
-    return { create: { name: row.lab_name, codePrefix: codePrefixOf(row.lab_code) } };
-  }
-  const prefix = codePrefixOf(row.lab_code).toLowerCase();
-  const byPrefix = registry.labs.find((l) => l.codePrefix.toLowerCase() === prefix);
-  if (byPrefix) return { labId: byPrefix.id };
-  if (userLabId != null) return { labId: userLabId };
-  return {
-    issue: {
-      column: "lab_name",
-      message: `Give lab_name: no laboratory in the registry uses the code prefix "${codePrefixOf(row.lab_code)}", and your account has no lab.`,
-    },
-  };
-}
-
-function codePrefixOf(labCode: string): string {
-  return /^[A-Za-z]+/.exec(labCode)?.[0] ?? labCode.split(/[-\s]/)[0] ?? labCode;
-}
-
 function cellFor(c: StoredCell | undefined): unknown {
   if (c && typeof c === "object") {
     if ("date" in c) return new Date(c.date);
@@ -182,13 +122,14 @@ function cellFor(c: StoredCell | undefined): unknown {
 
 /**
  * Validates every data row with the mapping: the row schema, then what needs the whole file or
- * the registry (duplicate lab codes, formula cells, labs). Row numbers are the spreadsheet's.
+ * the registry (duplicate lab codes, formula cells, where each row belongs). Every problem of a row
+ * is reported, each at its column. Row numbers are the spreadsheet's.
  */
 export function validateRows(
   db: Db,
   sheet: { headers: string[]; rows: StoredRow[] },
   mapping: ColumnMapping,
-  options: { userLabId?: number | null } = {},
+  options: { userId: number; userLabId?: number | null },
 ): Validation {
   const index: [number, string][] = [];
   sheet.headers.forEach((h, i) => {
@@ -204,120 +145,81 @@ export function validateRows(
           .filter((c): c is string | number => typeof c === "string" || typeof c === "number")
           .map((c) => String(c).trim());
   const registry = loadRegistry(db, labCodes);
-  const notices: string[] = [];
+  const placement = new Placement(db, { userId: options.userId, userLabId: options.userLabId ?? null, mayRegisterLabs: true });
   const mapped = new Set(index.map(([, c]) => c));
-  for (const required of [
-    "site_name",
-    "latitude",
-    "longitude",
-    "sample_code",
-    "material",
-    "method",
-    "lab_code",
-    "constraint_kind",
-  ]) {
-    if (!mapped.has(required)) notices.push(`No column is mapped to ${required}; every row needs it.`);
-  }
+  const notices = REQUIRED_COLUMNS.filter((c) => !mapped.has(c)).map((c) => `No column is mapped to ${c}; every row needs it.`);
   const seenCodes = new Map<string, number>();
   const results: RowResult[] = [];
   for (const r of sheet.rows) {
     const raw: Record<string, unknown> = {};
-    const formulaIssues: RowIssue[] = [];
+    const issues: RowIssue[] = [];
     for (const [i, col] of index) {
       const cell = r.cells[i];
       if (cell && typeof cell === "object" && "formula" in cell) {
-        formulaIssues.push({
-          column: col,
-          message: "Formula cells are not accepted; paste values instead (Paste Special → Values).",
-        });
+        issues.push({ column: col, message: "Formula cells are not accepted; paste values instead (Paste Special → Values)." });
       } else raw[col] = cellFor(cell);
     }
-    if (Object.values(raw).every(isBlankCell) && formulaIssues.length === 0) continue;
+    if (Object.values(raw).every(isBlankCell) && issues.length === 0) continue;
     const check = checkRow(raw, registry.ctx);
-    const issues = [...formulaIssues, ...check.issues.filter((i) => !formulaIssues.some((f) => f.column === i.column))];
-    const code = typeof raw.lab_code === "string" || typeof raw.lab_code === "number" ? String(raw.lab_code).trim() : "";
+    issues.push(...check.issues.filter((i) => !issues.some((f) => f.column === i.column)));
+    const code = (check.ok ? check.value : check.partial).lab_code;
     if (code) {
       const first = seenCodes.get(code.toLowerCase());
       if (first !== undefined)
         issues.push({ column: "lab_code", message: `Lab code ${code} also appears in row ${first} of this file.` });
       else seenCodes.set(code.toLowerCase(), r.n);
     }
-    let value: DeterminationRow | undefined;
-    if (check.ok && issues.length === 0) {
-      const lab = resolveLab(check.value, registry, options.userLabId ?? null);
-      if ("issue" in lab) issues.push(lab.issue);
-      else value = check.value;
-    }
-    results.push({ n: r.n, value, issues, warnings: check.warnings });
+    const placed = placement.planRow(check.ok ? check.value : soundPart(check.partial, issues), { n: r.n });
+    issues.push(...placed.issues);
+    const warnings = [...check.warnings, ...placed.warnings];
+    const value = check.ok && issues.length === 0 && placed.plan ? check.value : undefined;
+    results.push({ n: r.n, value, plan: value ? placed.plan : undefined, issues, warnings });
   }
   const errors = results.flatMap((r) => r.issues.map((i) => ({ row: r.n, column: i.column, message: i.message })));
   const warnings = results.flatMap((r) => r.warnings.map((i) => ({ row: r.n, column: i.column, message: i.message })));
-  const valid = results.filter((r) => r.value);
-  return {
-    results,
-    errors,
-    warnings,
-    validCount: valid.length,
-    preview: previewOf(
-      db,
-      valid.map((r) => r.value!),
-      registry,
-      options.userLabId ?? null,
-    ),
-    notices,
-  };
+  const plans = results.flatMap((r) => (r.plan ? [r.plan] : []));
+  return { results, placement, errors, warnings, validCount: plans.length, preview: previewOf(plans), notices };
 }
 
-function previewOf(db: Db, rows: DeterminationRow[], registry: Registry, userLabId: number | null): UploadPreview {
-  const existing = loadSitesByName(
-    db,
-    rows.map((r) => r.site_name),
-  );
-  const newSiteKeys: { name: string; lat: number; lon: number }[] = [];
-  const newSitesByName = new Map<string, number[]>();
-  const existingSiteIds = new Set<number>();
-  const sampleKeys = new Set<string>();
-  const byMethod: Record<string, number> = {};
+const REQUIRED_COLUMNS = [
+  "site_name",
+  "latitude",
+  "longitude",
+  "sample_code",
+  "material",
+  "method",
+  "lab_code",
+  "constraint_kind",
+];
+
+/** The values of a failing row whose columns passed, for the checks that need them. */
+function soundPart(partial: Partial<DeterminationRow>, issues: RowIssue[]): Partial<DeterminationRow> {
+  const bad = new Set(issues.map((i) => i.column));
+  return Object.fromEntries(Object.entries(partial).filter(([k]) => !bad.has(k))) as Partial<DeterminationRow>;
+}
+
+/** What committing the valid rows would create, counted from their plans. */
+function previewOf(plans: RowPlan[]): UploadPreview {
+  const newSites = new Set<object>();
+  const existingSites = new Set<number>();
+  const newSamples = new Set<object>();
+  const existingSamples = new Set<number>();
   const newLabs = new Set<string>();
-  const existingSampleSiteIds: number[] = [];
-  for (const r of rows) {
-    byMethod[r.method] = (byMethod[r.method] ?? 0) + 1;
-    const lab = resolveLab(r, registry, userLabId);
-    if ("create" in lab) newLabs.add(lab.create.name);
-    const site = findSite(existing.get(r.site_name), r.latitude, r.longitude);
-    if (site) {
-      existingSiteIds.add(site.id);
-      existingSampleSiteIds.push(site.id);
-      sampleKeys.add(`s${site.id}|${r.sample_code}`);
-    } else {
-      const sameName = newSitesByName.get(r.site_name) ?? [];
-      let k = sameName.find((i) => distanceM(newSiteKeys[i]!.lat, newSiteKeys[i]!.lon, r.latitude, r.longitude) <= SITE_MATCH_M);
-      if (k === undefined) {
-        k = newSiteKeys.push({ name: r.site_name, lat: r.latitude, lon: r.longitude }) - 1;
-        newSitesByName.set(r.site_name, [...sameName, k]);
-      }
-      sampleKeys.add(`n${k}|${r.sample_code}`);
-    }
-  }
-  let existingSamples = 0;
-  const siteIds = [...new Set(existingSampleSiteIds)];
-  if (siteIds.length) {
-    const known = new Set(
-      db
-        .select({ siteId: samples.siteId, code: samples.fieldCode })
-        .from(samples)
-        .where(inArray(samples.siteId, siteIds))
-        .all()
-        .map((s) => `s${s.siteId}|${s.code}`),
-    );
-    for (const k of sampleKeys) if (known.has(k)) existingSamples++;
+  const byMethod: Record<string, number> = {};
+  for (const p of plans) {
+    byMethod[p.row.method] = (byMethod[p.row.method] ?? 0) + 1;
+    if ("newLab" in p.lab) newLabs.add(p.lab.newLab.name);
+    if ("site" in p.site) existingSites.add(p.site.site.id);
+    else newSites.add(p.site.newSite);
+    if ("newSample" in p.sample) newSamples.add(p.sample.newSample);
+    else existingSamples.add("sample" in p.sample ? p.sample.sample.id : p.sample.updateInPlace.id);
   }
   return {
-    newSites: newSiteKeys.length,
-    existingSites: existingSiteIds.size,
-    newSamples: sampleKeys.size - existingSamples,
-    existingSamples,
-    determinations: rows.length,
+    newSites: newSites.size,
+    existingSites: existingSites.size,
+    newSamples: newSamples.size,
+    existingSamples: existingSamples.size,
+    determinations: plans.length,
     newLabs: [...newLabs],
     byMethod,
   };
