@@ -6,7 +6,6 @@
 import { and, eq, sql } from "drizzle-orm";
 import type { Db } from "#app/db/client.server.ts";
 import { labs, publications, samples, sites } from "#app/db/schema.ts";
-import { audit } from "#app/models/audit.server.ts";
 import {
   sampleValues,
   siteValues,
