@@ -85,7 +85,8 @@ export const ACCESS: Record<string, Row> = {
     url: "/determinations/:id",
     params: { id: "determinationId" },
     get: signedIn("ok"),
-    post: "none",
+    // Reopening a graded determination: editors
+    post: only(["editor"], "allowed"),
   },
   "routes/explore/site": { url: "/sites/:id", params: { id: "siteId" }, get: signedIn("ok"), post: "none" },
   "routes/explore/map": { url: "/map", get: signedIn("ok"), post: "none" },

@@ -1,4 +1,5 @@
 import { beforeAll, describe, expect, it } from "vitest";
+import { recordReviews } from "#app/models/review/reviews.server.ts";
 import { doseRateFromFields } from "#app/science/dose-rate-fields.ts";
 import { getDb } from "#app/db/client.server.ts";
 import * as submitPage from "#app/routes/contribute/submit.tsx";
@@ -532,7 +533,7 @@ describe("edit and withdraw", () => {
     const id = await submitted();
     const defaults = await editForm(id);
     const reviewer = await personWithSession(["reviewer"]);
-    db().$client.prepare("insert into reviews (determination_id, reviewer_id, grade) values (?, ?, 2)").run(id, reviewer.id);
+    recordReviews(db(), [id], { grade: 2, flags: [] }, { userId: reviewer.id });
     const loader = await run(() =>
       editPage.loader(args(get(`/submissions/${id}/edit`, { cookie: contributor.cookie }), { id: String(id) })),
     );
@@ -543,7 +544,7 @@ describe("edit and withdraw", () => {
       listPage.action(args(post("/submissions", { intent: "withdraw", id: String(id) }, { cookie: contributor.cookie }))),
     );
     expect(withdraw.status).toBe(403);
-    expect(detRow(id)).toMatchObject({ version: 1, status: "submitted" });
+    expect(detRow(id)).toMatchObject({ status: "graded", c14_age_yr: 9000 });
 
     const graded = await submitted();
     db().$client.prepare("update determinations set status = 'graded', grade = 3 where id = ?").run(graded);

@@ -4,6 +4,7 @@
 
 import type { Db } from "#app/db/client.server.ts";
 import { env } from "#app/utils/env.server.ts";
+import { normaliseLabCode } from "#app/science/checks/duplicates.ts";
 import { runChecks } from "#app/science/checks/run.ts";
 import type { CheckItem, CheckResult } from "#app/science/checks/types.ts";
 import { loadAllLabCodes, loadCheckItems, loadCheckItemsById, loadCheckReconstruction } from "./check-items.server.ts";
@@ -52,7 +53,7 @@ export function runAllChecks(db: Db): CheckRunSummary {
 const KM_PER_DEG_LAT = 110.574;
 
 /** Bounds `km` around every item. */
-function around(items: readonly CheckItem[], km: number) {
+function around(items: readonly { latitude: number; longitude: number }[], km: number) {
   let south = Infinity;
   let north = -Infinity;
   let west = Infinity;
@@ -70,37 +71,61 @@ function around(items: readonly CheckItem[], km: number) {
   return { south: south - dLat, north: north + dLat, west: west - dLon, east: east + dLon };
 }
 
+/** A determination that has left the registry (withdrawn or deleted): where it was and its lab code. */
+export type RemovedDetermination = { latitude: number; longitude: number; labCode: string };
+
 /**
  * Checks the given determinations and every determination whose results they can change: those
  * within the neighbour radius (which includes the same site and sample) and those sharing a
- * normalised lab code. Context is loaded from twice the radius, so the affected ones see all of
- * their own neighbours. Runs in the caller's transaction when there is one.
+ * normalised lab code. `removed` are determinations already gone (an undone upload): their
+ * neighbours and lab-code twins are rechecked the same way. Context is loaded from twice the
+ * radius around each place, so every rechecked determination sees all of its own neighbours.
+ * Runs in the caller's transaction when there is one.
  */
-export function runChecksFor(db: Db, ids: readonly number[]): CheckRunSummary {
+export function runChecksFor(db: Db, ids: readonly number[], removed: readonly RemovedDetermination[] = []): CheckRunSummary {
   const seeds = loadCheckItemsById(db, ids);
   // Withdrawn determinations lose their results; the neighbours they leave behind are rechecked.
-  const withdrawn = ids.filter((id) => !seeds.some((s) => s.id === id));
+  const seen = new Set(seeds.map((s) => s.id));
+  const withdrawn = ids.filter((id) => !seen.has(id));
   const sqlite = db.$client;
-  for (const id of withdrawn) sqlite.prepare("delete from check_results where determination_id = ?").run(id);
-  const sites = withdrawn.length
-    ? (sqlite
+  const gone: RemovedDetermination[] = [...removed];
+  if (withdrawn.length) {
+    const del = sqlite.prepare("delete from check_results where determination_id = ?");
+    for (const id of withdrawn) del.run(id);
+    gone.push(
+      ...(sqlite
         .prepare(
-          `select st.latitude, st.longitude from determinations d join samples s on s.id = d.sample_id join sites st on st.id = s.site_id where d.id in (${withdrawn.map(() => "?").join(",")})`,
+          `select st.latitude, st.longitude, d.lab_code as labCode from determinations d join samples s on s.id = d.sample_id
+           join sites st on st.id = s.site_id where d.id in (${withdrawn.map(() => "?").join(",")})`,
         )
-        .all(...withdrawn) as { latitude: number; longitude: number }[])
-    : [];
-  const anchors = [...seeds, ...sites.map((s) => ({ ...s }) as CheckItem)];
-  if (anchors.length === 0) return { determinations: 0, bySeverity: {} };
-  const r = neighbourRadiusKm();
-  const context = loadCheckItems(db, around(anchors, 2 * r + 1));
-  const near = around(anchors, r + 0.5);
-  const targets = new Set<number>(seeds.map((s) => s.id));
-  const codes = loadAllLabCodes(db);
-  for (const it of context) {
-    if (it.latitude >= near.south && it.latitude <= near.north && it.longitude >= near.west && it.longitude <= near.east) {
-      targets.add(it.id);
-    }
+        .all(...withdrawn) as RemovedDetermination[]),
+    );
   }
-  const results = runChecks(context, { radiusKm: r, reconstruction: loadCheckReconstruction(db), allCodes: codes, targets });
+  const places = [...seeds, ...gone];
+  if (places.length === 0) return { determinations: 0, bySeverity: {} };
+  const r = neighbourRadiusKm();
+  const codes = loadAllLabCodes(db);
+  // Lab-code twins anywhere in the registry: rechecked with their own surroundings as context.
+  const wantedCodes = new Set(places.map((p) => normaliseLabCode(p.labCode)));
+  const twinIds = codes.filter((c) => wantedCodes.has(normaliseLabCode(c.labCode)) && !seen.has(c.id)).map((c) => c.id);
+  const twins = loadCheckItemsById(db, twinIds);
+  const context = new Map<number, CheckItem>();
+  for (const it of loadCheckItems(db, around(places, 2 * r + 1))) context.set(it.id, it);
+  const near = around(places, r + 0.5);
+  const targets = new Set<number>(seeds.map((s) => s.id));
+  const isNear = (it: CheckItem) =>
+    it.latitude >= near.south && it.latitude <= near.north && it.longitude >= near.west && it.longitude <= near.east;
+  for (const it of context.values()) if (isNear(it)) targets.add(it.id);
+  for (const twin of twins) {
+    targets.add(twin.id);
+    if (isNear(twin)) continue;
+    for (const it of loadCheckItems(db, around([twin], r + 1))) context.set(it.id, it);
+  }
+  const results = runChecks([...context.values()], {
+    radiusKm: r,
+    reconstruction: loadCheckReconstruction(db),
+    allCodes: codes,
+    targets,
+  });
   return storeCheckResults(db, results);
 }

@@ -2,6 +2,7 @@
 
 import type { Db } from "#app/db/client.server.ts";
 import type { Method, Status } from "#app/db/schema.ts";
+import { editableStatus } from "#app/models/submission/form/write.server.ts";
 import { LISTED_MEASUREMENT_SQL, type ListedMeasurement } from "#app/models/registry/query.server.ts";
 
 export const SUBMISSIONS_PAGE_SIZE = 50;
@@ -23,7 +24,6 @@ export type SubmissionListRow = {
 } & ListedMeasurement & {
     medianCalBp: number | null;
     calibrationError: string | null;
-    reviewed: boolean;
     createdAt: number;
     updatedAt: number;
   };
@@ -66,22 +66,17 @@ export function listSubmissions(db: Db, userId: number, filters: SubmissionFilte
          t.id as siteId, t.name as siteName, s.field_code as fieldCode, s.material,
          ${LISTED_MEASUREMENT_SQL},
          c.median_cal_bp as medianCalBp, c.error as calibrationError,
-         exists(select 1 from reviews r where r.determination_id = d.id) as reviewed,
          d.created_at as createdAt, d.updated_at as updatedAt
        ${from} order by d.created_at desc, d.id desc limit ? offset ?`,
     )
-    .all(...params, SUBMISSIONS_PAGE_SIZE, (page - 1) * SUBMISSIONS_PAGE_SIZE) as (Omit<
-    SubmissionListRow,
-    "isLimit" | "reviewed"
-  > & {
+    .all(...params, SUBMISSIONS_PAGE_SIZE, (page - 1) * SUBMISSIONS_PAGE_SIZE) as (Omit<SubmissionListRow, "isLimit"> & {
     isLimit: number;
-    reviewed: number;
   })[];
   const counts = db.$client
     .prepare("select status, count(*) as n from determinations where contributor_id = ? group by status")
     .all(userId) as { status: Status; n: number }[];
   return {
-    rows: rows.map((r) => ({ ...r, isLimit: r.isLimit === 1, reviewed: r.reviewed === 1 })),
+    rows: rows.map((r) => ({ ...r, isLimit: r.isLimit === 1 })),
     total,
     page,
     pageCount,
@@ -90,7 +85,7 @@ export function listSubmissions(db: Db, userId: number, filters: SubmissionFilte
   };
 }
 
-/** Whether a listed determination can still be edited or withdrawn by its contributor (the list's own rule). */
-export function listRowEditable(row: Pick<SubmissionListRow, "status" | "reviewed">): boolean {
-  return (row.status === "submitted" || row.status === "in_review") && !row.reviewed;
+/** Whether a listed determination can still be edited or withdrawn by its contributor (the same rule as editRefusal). */
+export function listRowEditable(row: Pick<SubmissionListRow, "status">): boolean {
+  return editableStatus(row.status);
 }

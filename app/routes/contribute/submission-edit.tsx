@@ -34,7 +34,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const user = await requireRole(request, "contributor");
   const db = getDb();
   const det = getDetermination(db, idFrom(params)) ?? notFound(MISSING);
-  const refusal = editRefusal(db, det, user.id);
+  const refusal = editRefusal(det, user.id);
   if (refusal) forbidden(refusal);
   return {
     determination: { id: det.id, labCode: det.labCode, version: det.version, status: det.status },
@@ -54,7 +54,7 @@ export async function action({ request, params }: Route.ActionArgs) {
   try {
     switch (intent) {
       case "save": {
-        const refusal = editRefusal(db, det, user.id);
+        const refusal = editRefusal(det, user.id);
         if (refusal) forbidden(refusal);
         applyChosenSite(db, formData);
         const submission = parseWithZod(formData, { schema: serverSubmissionSchema(db, referenceOptions(db), det) });

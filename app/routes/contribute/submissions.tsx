@@ -172,7 +172,8 @@ export default function Submissions({ loaderData, actionData }: Route.ComponentP
         <>
           <p className="text-sm text-muted">
             Showing {first.toLocaleString("en")}–{last.toLocaleString("en")} of {result.total.toLocaleString("en")}, newest first.
-            You can change or withdraw a determination until a reviewer grades it.
+            You can change or withdraw a determination until a reviewer grades it; when a reviewer asks a question, answer it
+            here.
           </p>
           <div className={`overflow-x-auto ${busy ? "opacity-60" : ""}`} aria-busy={busy}>
             <table className="data-table" data-testid="submissions-table">
@@ -225,6 +226,11 @@ export default function Submissions({ loaderData, actionData }: Route.ComponentP
                     </td>
                     <td data-testid="status">{STATUS_LABELS[row.status]}</td>
                     <td className="whitespace-nowrap text-right">
+                      {row.status === "awaiting_answer" ? (
+                        <Link to={`/submissions/${row.id}/answer`} className="btn mr-2 py-0.5 text-sm">
+                          Answer the question<span className="sr-only"> about {row.labCode}</span>
+                        </Link>
+                      ) : null}
                       {row.editable ? (
                         <div className="flex items-center justify-end gap-2">
                           <Link to={`/submissions/${row.id}/edit`} className="btn-quiet py-0.5 text-sm">

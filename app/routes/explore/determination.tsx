@@ -1,6 +1,9 @@
-import { Link } from "react-router";
+import { data, Link } from "react-router";
 import type { Route } from "./+types/determination";
-import { requireUser } from "#app/auth/session.server.ts";
+import { clientAddress, requireRole, requireUser } from "#app/auth/session.server.ts";
+import { ActionButton } from "#app/components/ui/action-button.tsx";
+import { reopenDetermination, ReviewRefused } from "#app/models/review/reviews.server.ts";
+import { redirectWithFlash } from "#app/utils/flash.server.ts";
 import { DetailList, showNumber, showWithError } from "#app/components/detail-list.tsx";
 import { ErrorView } from "#app/components/error-view.tsx";
 import { CalibrationPlot } from "#app/components/calibration-plot.tsx";
@@ -30,18 +33,38 @@ export const meta: Route.MetaFunction = ({ data }) => [
 ];
 
 export async function loader({ request, params }: Route.LoaderArgs) {
-  await requireUser(request);
+  const user = await requireUser(request);
   const id = Number(params.id);
   if (!Number.isSafeInteger(id) || id <= 0) notFound("There is no determination with this number.");
   const detail = determinationDetail(getDb(), id);
   if (!detail) notFound("There is no determination with this number.");
-  return { detail, plot: plotForDetermination(getDb(), id) };
+  const canReopen = user.roles.includes("editor") && detail.determination.status === "graded";
+  return { detail, plot: plotForDetermination(getDb(), id), canReopen };
+}
+
+/** Editors reopen a graded determination: back to the review queue, editable again by its contributor (audited). */
+export async function action({ request, params }: Route.ActionArgs) {
+  const user = await requireRole(request, "editor");
+  const id = Number(params.id);
+  if (!Number.isSafeInteger(id) || id <= 0) notFound("There is no determination with this number.");
+  const form = await request.formData();
+  if (form.get("intent") !== "reopen") return data({ error: "Unknown action." }, { status: 400 });
+  try {
+    reopenDetermination(getDb(), id, { userId: user.id, ip: clientAddress(request) });
+  } catch (e) {
+    if (e instanceof ReviewRefused) return data({ error: e.message }, { status: e.status });
+    throw e;
+  }
+  return redirectWithFlash(`/determinations/${id}`, {
+    kind: "success",
+    message: "Reopened: the determination is back in the review queue, and its contributor may change it again.",
+  });
 }
 
 type Detail = Route.ComponentProps["loaderData"]["detail"];
 
-export default function DeterminationPage({ loaderData }: Route.ComponentProps) {
-  const { detail } = loaderData;
+export default function DeterminationPage({ loaderData, actionData }: Route.ComponentProps) {
+  const { detail, canReopen } = loaderData;
   const d = detail.determination;
   return (
     <article>
@@ -137,7 +160,7 @@ export default function DeterminationPage({ loaderData }: Route.ComponentProps) 
           </div>
         </section>
 
-        <ReviewSection detail={detail} />
+        <ReviewSection detail={detail} canReopen={canReopen} error={actionData?.error ?? null} />
       </div>
 
       <ChecksSection checks={detail.checks} />
@@ -289,7 +312,7 @@ function CalibrationSection({ detail, plot }: { detail: Detail; plot: Route.Comp
   );
 }
 
-function ReviewSection({ detail }: { detail: Detail }) {
+function ReviewSection({ detail, canReopen, error }: { detail: Detail; canReopen: boolean; error: string | null }) {
   const r = detail.review;
   return (
     <section className="card" aria-labelledby="review-heading">
@@ -326,6 +349,23 @@ function ReviewSection({ detail }: { detail: Detail }) {
         ) : (
           <p className="text-muted">Not reviewed yet.</p>
         )}
+        {error ? (
+          <p role="alert" className="mt-3 text-conflict">
+            {error}
+          </p>
+        ) : null}
+        {canReopen ? (
+          <div className="mt-4 flex flex-wrap items-center gap-3 border-t border-rule pt-3">
+            <ActionButton
+              intent="reopen"
+              className="btn-quiet"
+              confirm="Reopen this determination? It returns to the review queue and its contributor may change it again."
+            >
+              Reopen for review
+            </ActionButton>
+            <span className="text-sm text-muted">Editors only; recorded in the history.</span>
+          </div>
+        ) : null}
       </div>
     </section>
   );

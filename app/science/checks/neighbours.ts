@@ -32,7 +32,8 @@ export interface NeighbourIndex {
 export function buildNeighbourIndex(items: readonly CheckItem[], radiusKm = DEFAULT_NEIGHBOUR_RADIUS_KM): NeighbourIndex {
   const index = new KDBush(Math.max(1, items.length));
   for (const it of items) index.add(it.longitude, it.latitude);
-  index.finish();
+  // An empty registry (the last determination of an area withdrawn) has nothing to index.
+  if (items.length) index.finish();
   const bySite = new Map<number, number[]>();
   return {
     radiusKm,

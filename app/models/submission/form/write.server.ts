@@ -53,18 +53,20 @@ export function getDetermination(db: Db, id: number): StoredDetermination | unde
   return db.select().from(determinations).where(eq(determinations.id, id)).get();
 }
 
-function hasReviews(db: Db, id: number): boolean {
-  return db.$client.prepare("select exists(select 1 from reviews where determination_id = ?)").pluck().get(id) === 1;
+/** A contributor may change or withdraw a determination in these states: not once it is graded or withdrawn. */
+export function editableStatus(status: Status): boolean {
+  return status !== "graded" && status !== "withdrawn";
 }
 
 /**
- * Whether this person may still change the determination: only its contributor, and only while
- * no reviewer has graded it (status submitted or in review, and no review recorded).
+ * Whether this person may still change the determination: only its contributor, and only while it
+ * is not graded. Earlier reviews do not lock it: an editor who reopens a graded determination
+ * hands it back to its contributor, and a question waiting for an answer invites an edit.
  */
-export function editRefusal(db: Db, det: StoredDetermination, userId: number): string | null {
+export function editRefusal(det: StoredDetermination, userId: number): string | null {
   if (det.contributorId !== userId) return `Only the contributor who submitted ${det.labCode} can change or withdraw it.`;
   if (det.status === "withdrawn") return `${det.labCode} has been withdrawn; it can no longer be changed.`;
-  if (det.status === "graded" || hasReviews(db, det.id)) {
+  if (!editableStatus(det.status)) {
     return `${det.labCode} has been graded by a reviewer, so it can no longer be changed or withdrawn. Ask the reviewer through the determination's review questions if something needs correcting.`;
   }
   return null;
@@ -103,7 +105,7 @@ export function updateSubmission(db: Db, id: number, value: SubmissionValue, act
   return db.$client.transaction(() => {
     const before = getDetermination(db, id);
     if (!before) throw new SubmissionRefused("There is no determination with this number.", 404);
-    const refusal = editRefusal(db, before, actor.userId);
+    const refusal = editRefusal(before, actor.userId);
     if (refusal) throw new SubmissionRefused(refusal, 403);
     const placeBefore = placeSnapshot(db, before.sampleId);
     const placed = placeRow(db, value, before, actor);
@@ -170,7 +172,7 @@ export function withdrawSubmission(db: Db, id: number, actor: Actor): StoredDete
   return db.$client.transaction(() => {
     const before = getDetermination(db, id);
     if (!before) throw new SubmissionRefused("There is no determination with this number.", 404);
-    const refusal = editRefusal(db, before, actor.userId);
+    const refusal = editRefusal(before, actor.userId);
     if (refusal) throw new SubmissionRefused(refusal, 403);
     const after = db
       .update(determinations)

@@ -5,6 +5,7 @@ import { eq, inArray } from "drizzle-orm";
 import type { Db } from "#app/db/client.server.ts";
 import { calibrations, checkResults, determinations, samples, sites, uploadBatches } from "#app/db/schema.ts";
 import { audit } from "#app/models/audit.server.ts";
+import { runChecksFor, type RemovedDetermination } from "#app/models/review/check-run.server.ts";
 import { auditSnapshot } from "#app/models/submission/determinations.server.ts";
 import type { BatchRow } from "#app/models/submission/uploads/batches.server.ts";
 import { CommitRefused } from "#app/models/submission/uploads/commit.server.ts";
@@ -53,7 +54,7 @@ export function undoRefusals(db: Db, batchIds: number[]): Map<number, string> {
 /**
  * Takes a committed batch back out of the registry when undoRefusals allows it: its determinations
  * (with their calibrations and checks) and the sites and samples it created that nothing else uses
- * since. Audited, one transaction.
+ * since; the determinations they leave behind nearby are rechecked. Audited, one transaction.
  */
 export function undoUpload(db: Db, batch: BatchRow, actor: { userId: number; ip?: string | null }): { removed: number } {
   if (batch.userId !== actor.userId) throw new CommitRefused("Not found.", 404);
@@ -64,6 +65,15 @@ export function undoUpload(db: Db, batch: BatchRow, actor: { userId: number; ip?
     if (refusal) throw new CommitRefused(refusal);
     const dets = tx.select().from(determinations).where(eq(determinations.uploadBatchId, batch.id)).all();
     const ids = dets.map((d) => d.id);
+    // Where the removed determinations were, so their neighbours and lab-code twins are rechecked once they are gone.
+    const removedPlaces: RemovedDetermination[] = [];
+    const placeOf = db.$client.prepare(
+      "select st.latitude, st.longitude from samples s join sites st on st.id = s.site_id where s.id = ?",
+    );
+    for (const d of dets) {
+      const at = placeOf.get(d.sampleId) as { latitude: number; longitude: number } | undefined;
+      if (at) removedPlaces.push({ ...at, labCode: d.labCode });
+    }
     const createdSampleIds = tx
       .select({ id: samples.id })
       .from(samples)
@@ -110,6 +120,7 @@ export function undoUpload(db: Db, batch: BatchRow, actor: { userId: number; ip?
         removedSites.push(id);
       }
     }
+    runChecksFor(db, [], removedPlaces);
     tx.update(uploadBatches).set({ status: "undone", undoneAt: new Date() }).where(eq(uploadBatches.id, batch.id)).run();
     audit(tx, {
       actorId: actor.userId,

@@ -147,6 +147,12 @@ describe("neighbours", () => {
     expect(checkNeighbours(max, index).severity).toBe("note");
   });
 
+  it("an empty set of determinations (the last of an area withdrawn) checks nothing and does not fail", () => {
+    expect(runChecks([]).size).toBe(0);
+    const lone = at(57, -65, { age: [10000, 100] });
+    expect(checkNeighbours(lone, buildNeighbourIndex([lone], 25)).message).toMatch(/No dated neighbour/);
+  });
+
   it("a maximum-limiting date older than deglaciation is expected, never a conflict", () => {
     const min = at(57, -65, { age: [10000, 100] });
     const max = at(57.03, -65, { constraintKind: "maximum", age: [25000, 300] });
