@@ -36,6 +36,7 @@ export default [
     route("people", "routes/admin/people.tsx"),
     route("curves", "routes/admin/curves.tsx"),
     route("labs", "routes/admin/labs.tsx"),
+    route("checks", "routes/admin/checks.tsx"),
   ]),
 
   layout("routes/constraints/layout.tsx", [route("constraints", "routes/constraints/constraints.tsx")]),

@@ -17,8 +17,15 @@ const MiB = 1024 * KiB;
  */
 export function bodyLimitFor(pathname, { uploadMaxBytes }) {
   if (pathname === "/sign-in" || pathname.startsWith("/sign-in/") || pathname === "/sign-out") return 16 * KiB;
-  // Multipart framing adds a little to the file itself.
-  if (pathname === "/uploads" || pathname.startsWith("/uploads/") || pathname.startsWith("/api/v1/uploads")) {
+  // Multipart framing adds a little to the file itself. Editors' file forms (a curve, a margin
+  // reconstruction) check their own, smaller, limits once the body is in.
+  if (
+    pathname === "/uploads" ||
+    pathname.startsWith("/uploads/") ||
+    pathname.startsWith("/api/v1/uploads") ||
+    pathname === "/curves" ||
+    pathname === "/checks"
+  ) {
     return uploadMaxBytes + 64 * KiB;
   }
   if (pathname.startsWith("/api/v1/") || pathname.startsWith("/calibrate")) return 8 * MiB;

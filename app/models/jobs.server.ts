@@ -18,7 +18,7 @@ import { handlerFor, type JobKind } from "#app/models/job-handlers.server.ts";
  */
 
 export type JobRow = typeof jobs.$inferSelect;
-export type JobView = Pick<JobRow, "id" | "kind" | "status" | "progress" | "total" | "message"> & {
+export type JobView = Pick<JobRow, "id" | "kind" | "status" | "progress" | "total" | "message" | "createdBy"> & {
   params: Record<string, unknown> | null;
   createdAt: number;
   finishedAt: number | null;
@@ -118,6 +118,7 @@ function view(row: JobRow): JobView {
     progress: row.progress,
     total: row.total,
     message: row.message,
+    createdBy: row.createdBy,
     params: row.params ?? null,
     createdAt: row.createdAt.getTime(),
     finishedAt: row.finishedAt ? row.finishedAt.getTime() : null,

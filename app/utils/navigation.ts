@@ -14,6 +14,8 @@ export const NAV_ITEMS: NavItem[] = [
   { to: "/submit", label: "Submit", roles: ["contributor"] },
   { to: "/uploads", label: "Upload", roles: ["contributor"] },
   { to: "/submissions", label: "My submissions", roles: ["contributor"] },
+  { to: "/review", label: "Review", roles: ["reviewer"] },
+  { to: "/checks", label: "Checks", roles: ["editor"] },
   { to: "/runs", label: "Model runs", roles: ["modeller"] },
   { to: "/people", label: "People", roles: ["editor"] },
   { to: "/labs", label: "Labs", roles: ["editor"] },

@@ -96,9 +96,10 @@ export const ACCESS: Record<string, Row> = {
   "routes/resources/calibrate-csv": { url: "/calibrate/results.csv", get: "status:405", post: "allowed" },
   "routes/api/v1/calibrate": { url: "/api/v1/calibrate", get: "status:405", post: "allowed" },
   "routes/resources/curve-window": { url: "/api/curve-window?curve=intcal20&from=12500&to=11500", get: "ok", post: "none" },
-  // Curves and background jobs: editors
+  // Curves, checks and reconstructions, background jobs: editors (reviewers follow check runs: review-admin.test.ts)
   "routes/admin/curves": { url: "/curves", get: only(["editor"], "ok"), post: only(["editor"], "allowed") },
   "routes/admin/labs": { url: "/labs", get: only(["editor"], "ok"), post: only(["editor"], "allowed") },
+  "routes/admin/checks": { url: "/checks", get: only(["editor"], "ok"), post: only(["editor"], "allowed") },
   "routes/resources/jobs": {
     url: "/api/jobs/:id",
     params: { id: "jobId" },

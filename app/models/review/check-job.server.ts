@@ -37,7 +37,7 @@ export const checkRunJob: JobHandler<CheckRunParams> = async (ctx) => {
   return `${summary.determinations} determinations checked: ${s.conflict} conflicts, ${s.warning} warnings, ${s.note} notes.`;
 };
 
-export function startCheckRun(db: Db, options: { actorId: number | null; reason: string }): { jobId: number } {
+export function startCheckRun(db: Db, options: { actorId: number | null; reason: string }): { jobId: number; total: number } {
   const total = db.$client.prepare("select count(*) from determinations where status != 'withdrawn'").pluck().get() as number;
   return startJob(db, { kind: "checks", total, params: { reason: options.reason }, actorId: options.actorId });
 }

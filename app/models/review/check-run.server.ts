@@ -3,6 +3,7 @@
 // replaces the results of the determinations it covers in one transaction.
 
 import type { Db } from "#app/db/client.server.ts";
+import { CHECK_SEVERITIES, type CheckSeverity } from "#app/db/schema.ts";
 import { env } from "#app/utils/env.server.ts";
 import { normaliseLabCode } from "#app/science/checks/duplicates.ts";
 import { runChecks } from "#app/science/checks/run.ts";
@@ -128,4 +129,20 @@ export function runChecksFor(db: Db, ids: readonly number[], removed: readonly R
     targets,
   });
   return storeCheckResults(db, results);
+}
+
+/** How many determinations (not withdrawn) have each worst check result. */
+export function checkSummary(db: Db): { determinations: number; worst: Partial<Record<CheckSeverity, number>> } {
+  const rows = db.$client
+    .prepare(
+      `select w, count(*) as n from (
+         select max(case c.severity when 'conflict' then 3 when 'warning' then 2 when 'note' then 1 else 0 end) as w
+         from check_results c join determinations d on d.id = c.determination_id
+         where d.status != 'withdrawn' group by c.determination_id)
+       group by w`,
+    )
+    .all() as { w: number; n: number }[];
+  const worst: Partial<Record<CheckSeverity, number>> = {};
+  for (const r of rows) worst[CHECK_SEVERITIES[r.w]!] = r.n;
+  return { determinations: rows.reduce((a, r) => a + r.n, 0), worst };
 }

@@ -1,16 +1,28 @@
 import type { Route } from "./+types/jobs";
 import { getOptionalUser } from "#app/auth/session.server.ts";
+import type { Role } from "#app/db/schema.ts";
 import { getDb } from "#app/db/client.server.ts";
-import { getJob } from "#app/models/jobs.server.ts";
+import { getJob, type JobView } from "#app/models/jobs.server.ts";
 import { json } from "#app/utils/http.server.ts";
 
-/** GET /api/jobs/:id — a background job's progress, polled by the page that started it. Editors only. */
+/**
+ * Who may follow a job: editors every job (they run recalibrations and check runs), reviewers the
+ * check runs (the queue shows one under way, since it changes the checks they read), and anyone
+ * the job they started.
+ */
+function mayFollow(job: JobView, user: { id: number; roles: Role[] }): boolean {
+  if (user.roles.includes("editor")) return true;
+  if (job.kind === "checks" && user.roles.includes("reviewer")) return true;
+  return job.createdBy === user.id;
+}
+
+/** GET /api/jobs/:id — a background job's progress, polled by the page that shows it. */
 export async function loader({ request, params }: Route.LoaderArgs) {
   const user = await getOptionalUser(request);
   if (!user) return json({ error: "Sign in first." }, { status: 401 });
-  if (!user.roles.includes("editor")) return json({ error: "Only editors may follow jobs." }, { status: 403 });
   const id = Number(params.id);
   const job = Number.isInteger(id) && id > 0 ? getJob(getDb(), id) : null;
   if (!job) return json({ error: "No such job." }, { status: 404 });
+  if (!mayFollow(job, user)) return json({ error: "This job is not yours to follow." }, { status: 403 });
   return json(job, { headers: { "Cache-Control": "no-store" } });
 }

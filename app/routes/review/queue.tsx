@@ -10,6 +10,8 @@ import { getDb } from "#app/db/client.server.ts";
 import { FLAGS } from "#app/db/schema.ts";
 import { listQueue, parseQueueFilters, queueFilterOptions, takeItem } from "#app/models/review/queue.server.ts";
 import { rankWord } from "#app/utils/check-rank.ts";
+import { JobProgress } from "#app/components/ui/job-progress.tsx";
+import { recentJobs } from "#app/models/jobs.server.ts";
 import { gradeSchema, recordReviews, ReviewRefused } from "#app/models/review/reviews.server.ts";
 import { formatCal } from "#app/utils/age-format.ts";
 import { FLAG_LABELS, STATUS_LABELS } from "#app/utils/labels.ts";
@@ -19,7 +21,9 @@ export const meta: Route.MetaFunction = () => [{ title: "Review queue · Thawlin
 export async function loader({ request }: Route.LoaderArgs) {
   const user = await requireRole(request, "reviewer");
   const filters = parseQueueFilters(new URL(request.url).searchParams);
-  return { filters, queue: listQueue(getDb(), filters, user.id), options: queueFilterOptions(getDb()) };
+  // A whole-registry check run under way changes the checks this queue shows: say so, with its progress.
+  const checkRun = recentJobs(getDb(), "checks", 1).find((j) => j.status === "queued" || j.status === "running") ?? null;
+  return { filters, queue: listQueue(getDb(), filters, user.id), options: queueFilterOptions(getDb()), checkRun };
 }
 
 /** The bulk form: the ids ticked in the queue and one grade, flags and comment for all of them. */
@@ -62,7 +66,7 @@ export async function action({ request }: Route.ActionArgs) {
 }
 
 export default function Queue({ loaderData, actionData }: Route.ComponentProps) {
-  const { filters, queue, options } = loaderData;
+  const { filters, queue, options, checkRun } = loaderData;
   const navigate = useNavigate();
   const table = useRef<HTMLTableSectionElement>(null);
   // j / k move between items, Enter opens one: the queue is worked from the keyboard.
@@ -92,6 +96,11 @@ export default function Queue({ loaderData, actionData }: Route.ComponentProps) 
         . {queue.awaitingAnswer} wait for a contributor's answer. Keys: <kbd>j</kbd> / <kbd>k</kbd> to move, <kbd>Enter</kbd> to
         open.
       </p>
+      {checkRun ? (
+        <div className="mt-4">
+          <JobProgress job={checkRun} unit="determinations" label="The checks are being rerun; the worst checks may change" />
+        </div>
+      ) : null}
       <Form method="get" className="card mt-4 grid gap-3 sm:grid-cols-4">
         <Select name="region" label="Region" value={sel(filters.region)} options={options.regions.map((r) => [r, r])} />
         <Select name="lab" label="Lab" value={sel(filters.lab)} options={options.labs.map((l) => [String(l.id), l.name])} />
