@@ -2,6 +2,7 @@ import { scaleLinear } from "d3-scale";
 import { Link } from "react-router";
 import { GRADE_FILL, gradeWord } from "#app/utils/labels.ts";
 import { formatYears } from "#app/utils/age-format.ts";
+import { showNumber } from "#app/components/detail-list.tsx";
 
 /*
  * A stratigraphic column beside an age axis: units stacked from the uppermost down, and each
@@ -37,7 +38,8 @@ const ROW_H = 22;
 const UNIT_PAD = 10;
 const AXIS_H = 46;
 
-export function StratColumn({ units }: { units: ColumnUnit[] }) {
+/** `highlightId`: the date the page is about (the review page), drawn with a teal ring and a bold label. */
+export function StratColumn({ units, highlightId }: { units: ColumnUnit[]; highlightId?: number }) {
   const all = units.flatMap((u) => u.dates);
   const ages = all.flatMap((d) => [d.ageBp, d.fromBp, d.toBp]).filter((v): v is number => v != null);
   if (units.length === 0 || ages.length === 0) return null;
@@ -60,8 +62,8 @@ export function StratColumn({ units }: { units: ColumnUnit[] }) {
     <figure className="mt-4 overflow-x-auto">
       <svg
         viewBox={`0 0 ${WIDTH} ${height}`}
-        width={WIDTH}
-        height={height}
+        width="100%"
+        style={{ maxWidth: WIDTH, height: "auto" }}
         role="img"
         aria-labelledby="strat-title strat-desc"
         className="font-serif text-[13px]"
@@ -109,10 +111,14 @@ export function StratColumn({ units }: { units: ColumnUnit[] }) {
             {unit.dates.map((d, j) => {
               const cy = top + UNIT_PAD + j * ROW_H + ROW_H / 2;
               const fill = d.grade != null ? (GRADE_FILL[d.grade] ?? "#fff") : "#ffffff";
+              const focus = d.id === highlightId;
               return (
-                <g key={d.id}>
+                <g key={d.id} data-focus={focus || undefined}>
+                  {focus && d.ageBp != null ? (
+                    <circle cx={x(d.ageBp)} cy={cy} r={9} fill="none" stroke="#0f6f78" strokeWidth={2.5} />
+                  ) : null}
                   <Link to={`/determinations/${d.id}`}>
-                    <text x={LABEL_X} y={cy + 4} fill="#0f6f78" className="underline">
+                    <text x={LABEL_X} y={cy + 4} fill="#0f6f78" className="underline" fontWeight={focus ? 700 : undefined}>
                       {truncate(d.labCode, 16)}
                     </text>
                   </Link>
@@ -148,4 +154,67 @@ export function StratColumn({ units }: { units: ColumnUnit[] }) {
 
 function truncate(s: string, n: number): string {
   return s.length > n ? `${s.slice(0, n - 1)}…` : s;
+}
+
+/** A site's sample rows as the column needs them (site page and review page; samples without a date included). */
+export type ColumnRow = {
+  sampleId: number;
+  fieldCode: string;
+  depthCm: number | null;
+  stratUnit: string | null;
+  stratOrder: number | null;
+  id: number | null;
+  labCode: string | null;
+  method: string | null;
+  status: string | null;
+  grade: number | null;
+  measuredAgeYr: number | null;
+  medianCalBp: number | null;
+  hpd95FromBp: number | null;
+  hpd95ToBp: number | null;
+};
+
+/** Groups the ordered rows into the units of the column (by order in the column, else by sample). */
+export function columnUnits(rows: readonly ColumnRow[]): ColumnUnit[] {
+  const units = new Map<string, ColumnUnit & { depths: number[] }>();
+  for (const r of rows) {
+    const key = r.stratOrder != null ? `o${r.stratOrder}` : `s${r.sampleId}`;
+    let unit = units.get(key);
+    if (!unit) {
+      unit = {
+        key,
+        label: r.stratUnit ?? (r.stratOrder != null ? `Unit ${r.stratOrder}` : r.fieldCode),
+        detail: "",
+        dates: [],
+        depths: [],
+      };
+      units.set(key, unit);
+    }
+    if (r.depthCm != null) unit.depths.push(r.depthCm);
+    if (r.id != null && r.labCode != null && r.status !== "withdrawn") {
+      const calibrated = r.medianCalBp != null;
+      unit.dates.push({
+        id: r.id,
+        labCode: r.labCode,
+        ageBp: r.medianCalBp ?? (r.method === "luminescence" ? r.measuredAgeYr : null),
+        fromBp: calibrated ? r.hpd95FromBp : null,
+        toBp: calibrated ? r.hpd95ToBp : null,
+        calibrated,
+        grade: r.grade,
+      });
+    }
+  }
+  return [...units.values()].map(({ depths, ...u }) => {
+    if (depths.length) {
+      const a = Math.min(...depths);
+      const b = Math.max(...depths);
+      u.detail = a === b ? `${showNumber(a)} cm` : `${showNumber(a)}–${showNumber(b)} cm`;
+    }
+    return u;
+  });
+}
+
+/** Whether the rows say anything about the column (an order or a depth); without, there is no column to draw. */
+export function hasColumnInfo(rows: readonly ColumnRow[]): boolean {
+  return rows.some((r) => r.stratOrder != null || r.depthCm != null);
 }

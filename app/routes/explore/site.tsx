@@ -4,7 +4,7 @@ import { requireUser } from "#app/auth/session.server.ts";
 import { DetailList, showNumber } from "#app/components/detail-list.tsx";
 import { ErrorView } from "#app/components/error-view.tsx";
 import { GradeBadge } from "#app/components/grade-badge.tsx";
-import { StratColumn, type ColumnUnit } from "#app/components/strat-column.tsx";
+import { columnUnits, hasColumnInfo, StratColumn } from "#app/components/strat-column.tsx";
 import { getDb } from "#app/db/client.server.ts";
 import { siteDetail } from "#app/models/registry/site-page.server.ts";
 import { formatCal, formatCalRange, formatMeasuredAge } from "#app/utils/age-format.ts";
@@ -26,50 +26,9 @@ export async function loader({ request, params }: Route.LoaderArgs) {
 
 type Rows = Route.ComponentProps["loaderData"]["detail"]["rows"];
 
-/** Groups the ordered rows into the units of the column (by order in the column, else by sample). */
-function columnUnits(rows: Rows): ColumnUnit[] {
-  const units = new Map<string, ColumnUnit & { depths: number[] }>();
-  for (const r of rows) {
-    const key = r.stratOrder != null ? `o${r.stratOrder}` : `s${r.sampleId}`;
-    let unit = units.get(key);
-    if (!unit) {
-      unit = {
-        key,
-        label: r.stratUnit ?? (r.stratOrder != null ? `Unit ${r.stratOrder}` : r.fieldCode),
-        detail: "",
-        dates: [],
-        depths: [],
-      };
-      units.set(key, unit);
-    }
-    if (r.depthCm != null) unit.depths.push(r.depthCm);
-    if (r.id != null && r.labCode != null && r.status !== "withdrawn") {
-      const calibrated = r.medianCalBp != null;
-      unit.dates.push({
-        id: r.id,
-        labCode: r.labCode,
-        ageBp: r.medianCalBp ?? (r.method === "luminescence" ? r.measuredAgeYr : null),
-        fromBp: calibrated ? r.hpd95FromBp : null,
-        toBp: calibrated ? r.hpd95ToBp : null,
-        calibrated,
-        grade: r.grade,
-      });
-    }
-  }
-  return [...units.values()].map(({ depths, ...u }) => {
-    if (depths.length) {
-      const a = Math.min(...depths);
-      const b = Math.max(...depths);
-      u.detail = a === b ? `${showNumber(a)} cm` : `${showNumber(a)}–${showNumber(b)} cm`;
-    }
-    return u;
-  });
-}
-
 export default function SitePage({ loaderData }: Route.ComponentProps) {
   const { site, rows, determinationCount, sampleCount } = loaderData.detail;
-  const hasColumnInfo = rows.some((r) => r.stratOrder != null || r.depthCm != null);
-  const units = hasColumnInfo ? columnUnits(rows) : [];
+  const units = hasColumnInfo(rows) ? columnUnits(rows) : [];
   const samples = groupBySample(rows);
 
   return (

@@ -4,6 +4,11 @@ import { parseWithZod } from "@conform-to/zod/v4";
 import type { Route } from "./+types/item";
 import { clientAddress, requireRole } from "#app/auth/session.server.ts";
 import { CalibrationPlot } from "#app/components/calibration-plot.tsx";
+import { LuminescenceAge } from "#app/components/luminescence-age.tsx";
+import { NeighboursPanel } from "#app/components/review/neighbours-panel.tsx";
+import { columnUnits, hasColumnInfo, StratColumn } from "#app/components/strat-column.tsx";
+import { reviewNeighbourhood } from "#app/models/review/neighbours.server.ts";
+import { siteDetail } from "#app/models/registry/site-page.server.ts";
 import { CheckBadge } from "#app/components/check-badge.tsx";
 import { DetailList, showNumber } from "#app/components/detail-list.tsx";
 import { ErrorView } from "#app/components/error-view.tsx";
@@ -53,9 +58,12 @@ export async function loader({ request, params }: Route.LoaderArgs) {
         .map((c) => c.suggestedFlag!),
     ),
   ];
+  const siteRows = siteDetail(db, detail.site.id)?.rows ?? [];
   return {
     detail,
     plot: plotForDetermination(db, id),
+    neighbourhood: reviewNeighbourhood(db, id),
+    column: hasColumnInfo(siteRows) ? columnUnits(siteRows) : [],
     messages: reviewMessages(db, id),
     ownSubmission: detail.determination.contributorId === user.id,
     lease: lease ? { name: lease.name, mine: lease.reviewerId === user.id, expiresAt: lease.expiresAt } : null,
@@ -104,7 +112,8 @@ export async function action({ request, params }: Route.ActionArgs) {
 }
 
 export default function ReviewItem({ loaderData, actionData }: Route.ComponentProps) {
-  const { detail, plot, messages, ownSubmission, lease, suggested, nextId } = loaderData;
+  const { detail, plot, neighbourhood, column, messages, ownSubmission, lease, suggested, nextId } = loaderData;
+  const cal = detail.calibration;
   const d = detail.determination;
   const navigate = useNavigate();
   useEffect(() => {
@@ -172,11 +181,28 @@ export default function ReviewItem({ loaderData, actionData }: Route.ComponentPr
       <div className="mt-6 grid gap-6 lg:grid-cols-2">
         <section className="card">
           <h2>Calendar age</h2>
-          <p>
-            Median {formatCal(detail.calibration?.medianCalBp ?? null)} cal BP
-            {detail.calibration ? ` on ${detail.calibration.curveLabel}` : ""}.
-          </p>
-          {plot ? <CalibrationPlot {...plot} heading={d.labCode} /> : null}
+          {cal && cal.medianCalBp != null ? (
+            <p>
+              Median {formatCal(cal.medianCalBp)} cal BP{d.method === "radiocarbon" ? ` on ${cal.curveLabel}` : ""}.
+            </p>
+          ) : (
+            <p className="text-muted">
+              {d.isLimit ? "A greater-than age is a limit and is not calibrated." : "No calendar age."}
+            </p>
+          )}
+          {plot ? (
+            <CalibrationPlot {...plot} heading={d.labCode} />
+          ) : d.method === "luminescence" ? (
+            <LuminescenceAge
+              fields={{ ...d, site: detail.site }}
+              heading={d.labCode}
+              summary={
+                cal && !cal.error && cal.medianCalBp != null
+                  ? { medianCalBp: cal.medianCalBp, hpd68: cal.hpd68 ?? [], hpd95: cal.hpd95 ?? [] }
+                  : null
+              }
+            />
+          ) : null}
         </section>
         <section className="card">
           <h2>Sample and site</h2>
@@ -193,6 +219,18 @@ export default function ReviewItem({ loaderData, actionData }: Route.ComponentPr
               ["Setting", detail.site.setting],
             ]}
           />
+        </section>
+      </div>
+
+      <div className="mt-6 grid gap-6 lg:grid-cols-2">
+        {neighbourhood ? <NeighboursPanel hood={neighbourhood} labCode={d.labCode} /> : null}
+        <section className="card" aria-labelledby="column-heading">
+          <h2 id="column-heading">Stratigraphic column at {detail.site.name}</h2>
+          {column.some((u) => u.dates.length > 0) ? (
+            <StratColumn units={column} highlightId={d.id} />
+          ) : (
+            <p className="mt-2 text-muted">The site's samples give no unit order or depth, so there is no column to draw.</p>
+          )}
         </section>
       </div>
 
