@@ -45,4 +45,6 @@ app.use((/** @type {unknown} */ error, /** @type {any} */ req, /** @type {any} *
 
 app.listen(port, host, () => {
   logLine({ level: "info", message: `Thawline listening on http://${host === "0.0.0.0" ? "localhost" : host}:${port}` });
+  // Background work a restart cut off (queued model runs) starts again.
+  build.entry?.module?.onServerStart?.();
 });

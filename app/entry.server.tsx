@@ -7,6 +7,9 @@ import { renderToPipeableStream, type RenderToPipeableStreamOptions } from "reac
 import { NonceContext } from "#app/utils/nonce.ts";
 import { logError } from "#app/http/request-log.js";
 
+/** Called once by server.js when the production server starts (see models/startup.server.ts). */
+export { resumeBackgroundWork as onServerStart } from "#app/models/startup.server.ts";
+
 /*
  * React Router's default Node entry, plus the CSP nonce: server.js makes one per request and
  * passes it in the load context; every inline script React or React Router writes carries it.

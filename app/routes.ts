@@ -63,6 +63,7 @@ export default [
   route("uploads/template.csv", "routes/resources/upload-template-csv.ts"),
   route("uploads/:publicId/errors.csv", "routes/resources/upload-errors-csv.ts"),
   route("runs/:id/file", "routes/resources/model-run-file.ts"),
+  route("runs/:id/margins.json", "routes/resources/model-run-margins.ts"),
   route("runs/ensembles/:name/runs.csv", "routes/resources/ensemble-csv.ts", { id: "routes/resources/ensemble-runs-csv" }),
   route("runs/ensembles/:name/scores.csv", "routes/resources/ensemble-csv.ts", { id: "routes/resources/ensemble-scores-csv" }),
 

@@ -56,7 +56,7 @@ for (const path of positionals) {
     const run = await openRunFile(path, { timeOffset, thresholdM, maxBytes: Infinity });
     let r;
     try {
-      r = scoreRun(run, set.constraints, { tolerance, epsilon });
+      r = await scoreRun(run, set.constraints, { tolerance, epsilon });
     } finally {
       closeRunFile(run);
     }

@@ -659,9 +659,37 @@ export const modelRuns = sqliteTable(
     summary: text("summary", { mode: "json" }).$type<Record<string, unknown>>(),
     jobId: integer("job_id").references(() => jobs.id),
     error: text("error"),
+    /** Number of time slices in the file (the scoring job counts progress in slices). */
+    nSlices: integer("n_slices"),
+    /**
+     * Set while the file's time units do not say how they map to cal BP: the units and the raw
+     * range of model time, shown on the run page's time-mapping step. Cleared once an offset is given.
+     */
+    timeMapping: text("time_mapping", { mode: "json" }).$type<TimeMappingNeeded>(),
     createdAt: createdAt(),
   },
   (t) => [index("model_runs_user_idx").on(t.userId), index("model_runs_ensemble_idx").on(t.ensemble)],
+);
+
+export interface TimeMappingNeeded {
+  units: string;
+  first: number;
+  last: number;
+  n: number;
+  message: string;
+}
+
+/** A run's ice margin at up to 60 slices (lon/lat MultiPolygon coordinates, bounded in size), for the run map. */
+export const modelRunMargins = sqliteTable(
+  "model_run_margins",
+  {
+    runId: integer("run_id")
+      .notNull()
+      .references(() => modelRuns.id, { onDelete: "cascade" }),
+    calBp: real("cal_bp").notNull(),
+    coordinates: text("coordinates", { mode: "json" }).$type<number[][][][]>().notNull(),
+  },
+  (t) => [primaryKey({ columns: [t.runId, t.calBp] })],
 );
 
 export const modelRunScores = sqliteTable(

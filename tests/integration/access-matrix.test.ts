@@ -227,9 +227,14 @@ export const ACCESS: Record<string, Row> = {
   // Model runs pages and downloads: modellers (no fixture run or ensemble: past the check, a 404)
   "routes/runs/layout": { url: "/runs", get: only(["modeller"], "ok"), post: "none" },
   "routes/runs/runs": { url: "/runs", get: only(["modeller"], "ok"), post: only(["modeller"], "allowed") },
-  "routes/runs/run": { url: "/runs/999999", get: only(["modeller"], "status:404"), post: "none" },
+  "routes/runs/run": { url: "/runs/999999", get: only(["modeller"], "status:404"), post: only(["modeller"], "status:404") },
   "routes/runs/ensemble": { url: "/runs/ensembles/none", get: only(["modeller"], "status:404"), post: "none" },
   "routes/resources/model-run-file": { url: "/runs/999999/file", get: only(["modeller"], "status:404"), post: "none" },
+  "routes/resources/model-run-margins": {
+    url: "/runs/999999/margins.json",
+    get: only(["modeller"], "status:404"),
+    post: "none",
+  },
   "routes/resources/ensemble-runs-csv": {
     url: "/runs/ensembles/none/runs.csv",
     get: only(["modeller"], "status:404"),

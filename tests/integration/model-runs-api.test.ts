@@ -1,52 +1,24 @@
-import { existsSync, mkdtempSync, readdirSync, readFileSync, rmSync } from "node:fs";
+import { existsSync, mkdtempSync, readdirSync, rmSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { getDb } from "#app/db/client.server.ts";
 import { calibrations, determinations, labs, modelRuns, samples, sites } from "#app/db/schema.ts";
 import { createToken } from "#app/models/accounts/tokens.server.ts";
-import { runFilesDir, scoringIdle } from "#app/models/model-runs/runs.server.ts";
-import { writeNetcdf4 } from "#app/models/model-runs/netcdf-writer.server.ts";
+import { runFilesDir } from "#app/models/model-runs/runs.server.ts";
+import { jobFinished } from "#app/models/jobs.server.ts";
 import { action as postRun } from "#app/routes/api/v1/model-runs.ts";
 import { loader as getRun } from "#app/routes/api/v1/model-run.ts";
 import { loader as getEnsemble } from "#app/routes/api/v1/ensemble.ts";
 import { args, ORIGIN, personWithSession, run } from "#tests/support/auth.ts";
+import { densityBlob, runFile as runFileIn } from "#tests/support/model-runs.ts";
 
 const dir = mkdtempSync(join(tmpdir(), "thawline-api-runs-"));
 afterAll(() => rmSync(dir, { recursive: true, force: true }));
 let token: string;
 let detIds: number[] = [];
 
-/** A normal density N(μ, σ) as stored: Float32 little-endian from the youngest year. */
-function densityBlob(mu: number, sigma: number) {
-  const start = Math.floor(mu - 5 * sigma);
-  const values = new Float32Array(Math.ceil(10 * sigma));
-  let t = 0;
-  for (let i = 0; i < values.length; i++) t += values[i] = Math.exp(-(((start + i - mu) / sigma) ** 2) / 2);
-  for (let i = 0; i < values.length; i++) values[i] /= t;
-  return { start, blob: Buffer.from(values.buffer) };
-}
-
-/** lat/lon grid 56–58 N, 67–65 W; ice leaves at `degl` cal BP. */
-async function runFile(name: string, degl: number, units = "years since 1950-01-01") {
-  const path = join(dir, name);
-  const ages = [12000, 11000, 10000, 9000, 8000];
-  await writeNetcdf4(path, {
-    time: {
-      name: "time",
-      values: units.startsWith("years since") ? ages.map((a) => -a) : ages.map((a) => 12000 - a),
-      attrs: { units },
-    },
-    y: { name: "lat", values: [56, 57, 58], attrs: { units: "degrees_north" } },
-    x: { name: "lon", values: [-67, -66, -65], attrs: { units: "degrees_east" } },
-    ice: {
-      name: "thk",
-      attrs: { standard_name: "land_ice_thickness", units: "m" },
-      slice: (k) => new Float32Array(9).fill(ages[k] > degl ? 500 : 0),
-    },
-  });
-  return new File([readFileSync(path)], name);
-}
+const runFile = (name: string, degl: number, units?: string) => runFileIn(dir, name, degl, units);
 
 function upload(form: Record<string, string | File>, auth = token) {
   const body = new FormData();
@@ -94,6 +66,18 @@ beforeAll(async () => {
     return d.id;
   });
 });
+
+/** Waits for every scoring job this file started (the runs record their job). */
+async function scoringIdle() {
+  const ids = new Set(
+    getDb()
+      .select({ jobId: modelRuns.jobId })
+      .from(modelRuns)
+      .all()
+      .map((r) => r.jobId),
+  );
+  for (const id of ids) if (id) await jobFinished(id);
+}
 
 describe("POST /api/v1/model-runs → background scoring → GET", () => {
   it("answers 202 queued, scores in the background, and reports raw scores", async () => {

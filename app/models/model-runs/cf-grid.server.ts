@@ -110,8 +110,15 @@ function interpret(src: NetcdfSource, options: GridOptions): GridRun {
       `The ice variable "${ice.v.name}" has ${ice.v.shape.length} dimensions; Thawline reads (time, y, x) or (time, lat, lon).`,
     );
   }
-  const mapped = mapTimeAxis(src.readAll(time.name), str(time, "units"), options.timeOffset);
-  if (!mapped.ok) throw new ModelRunFileError("time-mapping-needed", mapped.message);
+  const raw = src.readAll(time.name);
+  const mapped = mapTimeAxis(raw, str(time, "units"), options.timeOffset);
+  if (!mapped.ok)
+    throw new ModelRunFileError("time-mapping-needed", mapped.message, {
+      units: str(time, "units"),
+      first: raw[0],
+      last: raw[raw.length - 1],
+      n: raw.length,
+    });
 
   const lon = findAxis(vars, ["longitude"], "", /^(lon|longitude)$/i, /^degrees?_?e(ast)?$/i);
   const lat = findAxis(vars, ["latitude"], "", /^(lat|latitude)$/i, /^degrees?_?n(orth)?$/i);

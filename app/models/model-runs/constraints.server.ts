@@ -1,6 +1,7 @@
 // The constraints a run is scored against: a release's determinations (by slug) when one is
 // chosen, otherwise a filter of the live registry (default: every determination graded 2 or 3),
-// each with its site and its current calendar density.
+// each with its site and its calendar density: a release's as frozen at publication, the live
+// registry's current one otherwise.
 
 import type { Db } from "#app/db/client.server.ts";
 import type { ScoredKind } from "#app/science/scoring/constraint-score.ts";
@@ -59,9 +60,16 @@ export function loadConstraints(db: Db, choice: ConstraintChoice = {}): Constrai
     const release = sqlite.prepare("select id, name from releases where slug = ?").get(choice.releaseSlug) as
       { id: number; name: string } | undefined;
     if (!release) throw new UnknownReleaseError(`No release "${choice.releaseSlug}".`);
+    // A release is scored as it was published: the frozen item (site position, kind, grade) and the
+    // density copied into release_items, whatever the registry has done since.
     const rows = sqlite
       .prepare(
-        `${SELECT} and d.id in (select determination_id from release_items where release_id = ?) and coalesce(d.grade, -1) != 0 order by d.id`,
+        `select determination_id as id, json_extract(frozen, '$.latitude') as latitude,
+                json_extract(frozen, '$.longitude') as longitude, json_extract(frozen, '$.constraint_kind') as kind,
+                json_extract(frozen, '$.grade') as grade, density_start_cal_bp as start, density
+         from release_items where release_id = ? and density is not null
+           and coalesce(json_extract(frozen, '$.grade'), -1) != 0
+         order by determination_id`,
       )
       .all(release.id) as Row[];
     return { constraints: rows.map(toConstraint), releaseId: release.id, filter: null, label: `release ${choice.releaseSlug}` };

@@ -16,6 +16,8 @@ export class ModelRunFileError extends Error {
   constructor(
     readonly code: ModelRunFileErrorCode,
     message: string,
+    /** time-mapping-needed: the axis's units and raw range, for the page's time-mapping step. */
+    readonly timeAxis?: { units: string; first: number; last: number; n: number },
   ) {
     super(message);
     this.name = "ModelRunFileError";

@@ -63,6 +63,8 @@ export interface IntakeOptions extends Omit<NewRun, "filePath" | "fileName" | "n
   name?: string | null;
   parameters?: Record<string, number | string> | null;
   parametersCsv?: string | null;
+  /** Keep files whose time units need an offset, waiting for the time-mapping step (the page does; the API refuses them). */
+  keepUnmapped?: boolean;
 }
 
 /** Checks every file, then keeps and queues them all; a bad file keeps nothing. */
@@ -100,7 +102,7 @@ export async function intakeRuns(db: Db, files: File[], o: IntakeOptions): Promi
     const problems: { file: string; message: string; code?: string }[] = [];
     for (const s of staged) {
       try {
-        await checkRunFile(db, s);
+        await checkRunFile(db, s, o.keepUnmapped);
       } catch (e) {
         if (!(e instanceof ModelRunFileError)) throw e;
         problems.push({ file: s.fileName, message: e.message, code: e.code });
@@ -112,7 +114,7 @@ export async function intakeRuns(db: Db, files: File[], o: IntakeOptions): Promi
     }
     const created: ModelRunRow[] = [];
     try {
-      for (const s of staged) created.push(await createRun(db, s));
+      for (const s of staged) created.push(await createRun(db, s, o.keepUnmapped));
     } catch (e) {
       for (const r of created) deleteRun(db, r.id);
       throw e;

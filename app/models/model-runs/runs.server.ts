@@ -1,13 +1,16 @@
 // Model runs in the registry: a checked file kept under the data folder, a row that goes
-// queued → running → scored | failed, and its per-constraint scores. Scoring runs in the server
-// process in the background (a `jobs` row records its progress for the page's progress bar).
-// A file that fails its checks is refused before anything is written.
+// queued → running → scored | failed (a file whose time units need an offset waits, queued, with
+// `time_mapping` set until the modeller states it), its per-constraint scores and its margin
+// outlines. Scoring is a background job of the generic runner (models/jobs.server.ts, kind
+// "score-model-runs"; its progress counts time slices). A file that fails its checks is refused
+// before anything is written.
 
 import { copyFileSync, mkdirSync, rmSync } from "node:fs";
 import { basename, dirname, join, resolve } from "node:path";
-import { eq } from "drizzle-orm";
+import { and, eq, inArray, isNull } from "drizzle-orm";
 import type { Db } from "#app/db/client.server.ts";
-import { jobs, modelRunScores, modelRuns } from "#app/db/schema.ts";
+import { modelRunMargins, modelRunScores, modelRuns, type TimeMappingNeeded } from "#app/db/schema.ts";
+import { startJob } from "#app/models/jobs.server.ts";
 import { gradeWeight, logLikelihoodTerm } from "#app/science/scoring/likelihood.ts";
 import { env } from "#app/utils/env.server.ts";
 import { loadConstraints, type ConstraintChoice } from "./constraints.server.ts";
@@ -42,20 +45,38 @@ export function storedFile(run: Pick<ModelRunRow, "storedPath">): string | null 
   return run.storedPath ? join(runFilesDir(), run.storedPath) : null;
 }
 
+export interface CheckedFile {
+  format: "netcdf" | "geojson";
+  set: ReturnType<typeof loadConstraints>;
+  nSlices: number;
+  /** Set when the time units need an offset and the caller keeps such files for a later step. */
+  timeMapping: TimeMappingNeeded | null;
+}
+
 /**
  * Checks a file (it opens, has a time axis, ice and coordinates, and overlaps the chosen
- * constraints) without writing anything. Throws ModelRunFileError with the reason.
+ * constraints) without writing anything. Throws ModelRunFileError with the reason. With
+ * `keepUnmapped`, a file whose time units need an offset passes with `timeMapping` set (its
+ * overlap is checked once the offset is stated).
  */
-export async function checkRunFile(db: Db, input: NewRun) {
+export async function checkRunFile(db: Db, input: NewRun, keepUnmapped = false): Promise<CheckedFile> {
   const set = loadConstraints(db, input.choice);
-  const run = await openRunFile(input.filePath, {
-    timeOffset: input.timeOffset,
-    thresholdM: input.thresholdM ?? undefined,
-    maxBytes: input.maxBytes,
-  });
+  if (!set.constraints.length)
+    throw new ModelRunFileError("no-overlap", `There are no constraints to score against (${set.label}).`);
+  let run: Awaited<ReturnType<typeof openRunFile>>;
   try {
-    if (!set.constraints.length)
-      throw new ModelRunFileError("no-overlap", `There are no constraints to score against (${set.label}).`);
+    run = await openRunFile(input.filePath, {
+      timeOffset: input.timeOffset,
+      thresholdM: input.thresholdM ?? undefined,
+      maxBytes: input.maxBytes,
+    });
+  } catch (e) {
+    if (keepUnmapped && e instanceof ModelRunFileError && e.code === "time-mapping-needed" && e.timeAxis) {
+      return { format: "netcdf", set, nSlices: e.timeAxis.n, timeMapping: { ...e.timeAxis, message: e.message } };
+    }
+    throw e;
+  }
+  try {
     // A cheap overlap check on the slice ages: the run must reach some constraint's calendar ages.
     const ages = run.kind === "grid" ? run.slicesCalBp : run.slices.map((s) => s.calBp);
     const oldest = Math.max(...ages);
@@ -69,48 +90,46 @@ export async function checkRunFile(db: Db, input: NewRun) {
         `The run's times (${Math.round(youngest)}–${Math.round(oldest)} cal BP) do not overlap the constraints' calendar ages (${set.label}).`,
       );
     }
-    return { format: run.kind === "grid" ? ("netcdf" as const) : ("geojson" as const), set };
+    return { format: run.kind === "grid" ? "netcdf" : "geojson", set, nSlices: ages.length, timeMapping: null };
   } finally {
     closeRunFile(run);
   }
 }
 
-/** Checks, keeps the file and queues the run; returns its id. Nothing is kept for a bad file. */
-export async function createRun(db: Db, input: NewRun): Promise<ModelRunRow> {
-  const { format, set } = await checkRunFile(db, input);
-  const row = db.transaction((tx) => {
-    const job = tx
-      .insert(jobs)
-      .values({ kind: "score-model-run", status: "queued", total: 1, createdBy: input.userId })
-      .returning({ id: jobs.id })
-      .get();
-    return tx
-      .insert(modelRuns)
-      .values({
-        userId: input.userId,
-        name: input.name,
-        ensemble: input.ensemble || null,
-        fileName: basename(input.fileName),
-        format,
-        status: "queued",
-        parameters: input.parameters ?? null,
-        timeOffsetCalBp: input.timeOffset ?? null,
-        thresholdM: input.thresholdM ?? null,
-        tolerance: input.tolerance ?? null,
-        epsilon: input.epsilon ?? null,
-        releaseId: set.releaseId,
-        constraintFilter: set.filter,
-        jobId: job.id,
-      })
-      .returning()
-      .get();
-  });
+/**
+ * Checks, keeps the file and records the run as queued (or waiting for its time mapping when
+ * `keepUnmapped` and the units need an offset); nothing is kept for a bad file. Scoring is started
+ * separately (startScoring), so a batch can be checked whole first.
+ */
+export async function createRun(db: Db, input: NewRun, keepUnmapped = false): Promise<ModelRunRow> {
+  const { format, set, nSlices, timeMapping } = await checkRunFile(db, input, keepUnmapped);
+  const row = db
+    .insert(modelRuns)
+    .values({
+      userId: input.userId,
+      name: input.name,
+      ensemble: input.ensemble || null,
+      fileName: basename(input.fileName),
+      format,
+      status: "queued",
+      parameters: input.parameters ?? null,
+      timeOffsetCalBp: input.timeOffset ?? null,
+      thresholdM: input.thresholdM ?? null,
+      tolerance: input.tolerance ?? null,
+      epsilon: input.epsilon ?? null,
+      releaseId: set.releaseId,
+      constraintFilter: set.filter,
+      nSlices,
+      timeMapping,
+    })
+    .returning()
+    .get();
   const rel = join(String(row.id), basename(input.fileName).replace(/[^\w.-]+/g, "_") || "run");
   try {
     mkdirSync(join(runFilesDir(), String(row.id)), { recursive: true });
     copyFileSync(input.filePath, join(runFilesDir(), rel));
   } catch (e) {
-    db.delete(modelRuns).where(eq(modelRuns.id, row.id)).run();
+    deleteRun(db, row.id);
     throw e;
   }
   db.update(modelRuns).set({ storedPath: rel }).where(eq(modelRuns.id, row.id)).run();
@@ -139,6 +158,8 @@ export function saveScores(db: Db, runId: number, r: RunScore, grades: Map<numbe
       tx.insert(modelRunScores)
         .values(rows.slice(i, i + 500))
         .run();
+    tx.delete(modelRunMargins).where(eq(modelRunMargins.runId, runId)).run();
+    for (const m of r.margins) tx.insert(modelRunMargins).values({ runId, calBp: m.calBp, coordinates: m.coordinates }).run();
     tx.update(modelRuns)
       .set({
         status: "scored",
@@ -164,66 +185,77 @@ export function saveScores(db: Db, runId: number, r: RunScore, grades: Map<numbe
   });
 }
 
-const nextTick = () => new Promise<void>((r) => setImmediate(r));
+export type ScoreOutcome = "scored" | "failed" | "skipped";
 
-/** Scores a queued run now (awaitable: the seed and tests wait; the web starts it and returns). */
-export async function scoreStoredRun(db: Db, runId: number): Promise<void> {
+/**
+ * Scores one stored run now and records the outcome on the run (awaitable: the seed and the
+ * scoring job wait on it). A run that is gone, already scored or still waiting for its time
+ * mapping is skipped. `progress` gets the slices read so far.
+ */
+export async function scoreStoredRun(db: Db, runId: number, progress?: (slices: number) => void): Promise<ScoreOutcome> {
   const run = db.select().from(modelRuns).where(eq(modelRuns.id, runId)).get();
-  if (!run) return;
-  const setJob = (v: Partial<typeof jobs.$inferInsert>) =>
-    run.jobId && db.update(jobs).set(v).where(eq(jobs.id, run.jobId)).run();
+  if (!run || run.timeMapping || (run.status !== "queued" && run.status !== "running")) return "skipped";
   db.update(modelRuns).set({ status: "running" }).where(eq(modelRuns.id, runId)).run();
-  setJob({ status: "running" });
-  await nextTick();
   try {
-    const set = loadConstraints(
-      db,
-      run.releaseId
-        ? { releaseSlug: releaseSlug(db, run.releaseId) }
-        : { grades: run.constraintFilter?.grades as number[] | undefined },
-    );
+    const set = loadConstraints(db, constraintChoiceOf(db, run));
     const options: OpenOptions = { timeOffset: run.timeOffsetCalBp, thresholdM: run.thresholdM ?? undefined, maxBytes: Infinity };
     const file = await openRunFile(storedFile(run)!, options);
     const settings: ScoringSettings = { tolerance: run.tolerance ?? undefined, epsilon: run.epsilon ?? undefined };
-    let lastTick = Date.now();
     let result: RunScore;
     try {
-      result = scoreRun(file, set.constraints, settings, (done, total) => {
-        if (Date.now() - lastTick > 200) {
-          lastTick = Date.now();
-          setJob({ progress: done, total });
-        }
-      });
+      result = await scoreRun(file, set.constraints, settings, { margins: true, progress: (done) => progress?.(done) });
     } finally {
       closeRunFile(file);
     }
     saveScores(db, runId, result, new Map(set.constraints.map((c) => [c.determinationId, c.grade])));
-    setJob({ status: "done", progress: 1, total: 1, finishedAt: new Date() });
+    return "scored";
   } catch (e) {
     const message = e instanceof Error ? e.message : String(e);
     db.update(modelRuns).set({ status: "failed", error: message }).where(eq(modelRuns.id, runId)).run();
-    setJob({ status: "failed", message, finishedAt: new Date() });
+    return "failed";
   }
 }
 
-function releaseSlug(db: Db, id: number): string | null {
-  const r = db.$client.prepare("select slug from releases where id = ?").get(id) as { slug: string } | undefined;
-  return r?.slug ?? null;
+/** What a stored run is scored against: its release, or the registry filter it was uploaded with. */
+export function constraintChoiceOf(db: Db, run: Pick<ModelRunRow, "releaseId" | "constraintFilter">): ConstraintChoice {
+  if (!run.releaseId) return { grades: run.constraintFilter?.grades as number[] | undefined };
+  const r = db.$client.prepare("select slug from releases where id = ?").get(run.releaseId) as { slug: string } | undefined;
+  return { releaseSlug: r?.slug ?? null };
 }
 
-const queue: number[] = [];
-let draining: Promise<void> | null = null;
-
-/** Queues runs for background scoring, one at a time, in the server process. */
-export function startScoring(db: Db, ids: number[]): void {
-  queue.push(...ids);
-  if (draining) return;
-  draining = (async () => {
-    while (queue.length) await scoreStoredRun(db, queue.shift()!);
-  })().finally(() => (draining = null));
+/**
+ * Starts one background job (models/jobs.server.ts) that scores the given runs in turn; its
+ * progress counts time slices. Runs still waiting for a time mapping are left out. Returns the
+ * job's id, or null when there is nothing to score.
+ */
+export function startScoring(db: Db, ids: number[], actorId: number | null): number | null {
+  if (!ids.length) return null;
+  const rows = db
+    .select({ id: modelRuns.id, nSlices: modelRuns.nSlices })
+    .from(modelRuns)
+    .where(and(inArray(modelRuns.id, ids), isNull(modelRuns.timeMapping)))
+    .all();
+  if (!rows.length) return null;
+  const runIds = rows.map((r) => r.id);
+  const total = rows.reduce((n, r) => n + (r.nSlices ?? 1), 0);
+  const { jobId } = startJob(db, { kind: "score-model-runs", total, params: { runIds }, actorId });
+  db.update(modelRuns).set({ jobId }).where(inArray(modelRuns.id, runIds)).run();
+  return jobId;
 }
 
-/** Resolves when every queued run has been scored (tests). */
-export async function scoringIdle(): Promise<void> {
-  while (draining) await draining;
+/**
+ * After a restart: runs left queued or cut off while scoring (and not waiting for a time mapping)
+ * are queued again and scored by a new job. Returns that job's id, or null.
+ */
+export function resumeScoring(db: Db): number | null {
+  const rows = db
+    .select({ id: modelRuns.id })
+    .from(modelRuns)
+    .where(and(inArray(modelRuns.status, ["queued", "running"]), isNull(modelRuns.timeMapping)))
+    .orderBy(modelRuns.id)
+    .all();
+  if (!rows.length) return null;
+  const ids = rows.map((r) => r.id);
+  db.update(modelRuns).set({ status: "queued" }).where(inArray(modelRuns.id, ids)).run();
+  return startScoring(db, ids, null);
 }

@@ -5,11 +5,12 @@
 
 import type { CalendarDensity } from "#app/science/density.ts";
 import { scoreConstraint, OUTSIDE_SPAN_SHARE, type ScoredKind } from "#app/science/scoring/constraint-score.ts";
-import { cellsWithin, iceFreeShare } from "#app/science/scoring/grid.ts";
+import { cellsWithin, iceFreeShare, isIce } from "#app/science/scoring/grid.ts";
 import { siteHistory, type SiteHistory } from "#app/science/scoring/ice-history.ts";
 import { runTotals, DEFAULT_EPSILON, type RunTotals } from "#app/science/scoring/likelihood.ts";
 import type { GridRun } from "./cf-grid.server.ts";
 import { ModelRunFileError } from "./errors.ts";
+import { gridMargin, marginSlices, polygonsMargin, type MarginOutline } from "./margin-outline.ts";
 import { samplePoints, underIce, type MarginsRun } from "./margins-run.ts";
 
 export interface ScoringConstraint {
@@ -48,6 +49,15 @@ export interface RunScore {
   spanCalBp: { oldest: number; youngest: number };
   timeStepYears: number;
   settings: Required<ScoringSettings>;
+  /** The ice margin at up to MAX_MARGIN_SLICES slices, for the run page's map (when asked for). */
+  margins: MarginOutline[];
+}
+
+export interface ScoreOptions {
+  /** Called after each time slice read. */
+  progress?: Progress;
+  /** Also outline the ice margin (bounded; see margin-outline.ts). */
+  margins?: boolean;
 }
 
 type Progress = (done: number, total: number) => void;
@@ -73,34 +83,65 @@ function distinctSites(constraints: readonly ScoringConstraint[]): { sites: Site
   return { sites, index };
 }
 
+// Scoring yields to the event loop this often, so a server scoring in the background keeps answering.
+const YIELD_MS = 40;
+const nextTick = () => new Promise<void>((resolve) => setImmediate(resolve));
+
 /** F at every site for every slice of a grid run, reading one slice at a time. */
-function gridHistories(run: GridRun, sites: Site[], tolerance: number, progress?: Progress): (SiteHistory | null)[] {
+async function gridHistories(
+  run: GridRun,
+  sites: Site[],
+  tolerance: number,
+  o: ScoreOptions,
+  margins: MarginOutline[],
+): Promise<(SiteHistory | null)[]> {
   const cells = sites.map((s) => {
     const [x, y] = run.toGrid(s.lon, s.lat);
     return Number.isFinite(x) && Number.isFinite(y) ? cellsWithin(run.xs, run.ys, x, y, tolerance) : [];
   });
   const n = run.slicesCalBp.length;
   const free = sites.map(() => new Float32Array(n));
+  const outlined = o.margins ? marginSlices(n) : new Set<number>();
+  let last = performance.now();
   for (let k = 0; k < n; k++) {
     const slice = run.readSlice(k);
     for (let i = 0; i < sites.length; i++) if (cells[i].length) free[i][k] = iceFreeShare(slice, cells[i], run.iceRule);
-    progress?.(k + 1, n);
+    if (outlined.has(k))
+      margins.push({ calBp: run.slicesCalBp[k], coordinates: gridMargin(slice, run, (v) => isIce(v, run.iceRule)) });
+    o.progress?.(k + 1, n);
+    if (performance.now() - last > YIELD_MS) {
+      await nextTick();
+      last = performance.now();
+    }
   }
   return sites.map((_, i) => (cells[i].length ? siteHistory(run.slicesCalBp, free[i]) : null));
 }
 
-function marginHistories(run: MarginsRun, sites: Site[], toleranceKm: number, progress?: Progress): SiteHistory[] {
+async function marginHistories(
+  run: MarginsRun,
+  sites: Site[],
+  toleranceKm: number,
+  o: ScoreOptions,
+  margins: MarginOutline[],
+): Promise<SiteHistory[]> {
   const ages = run.slices.map((s) => s.calBp);
   const points = sites.map((s) => samplePoints(s.lon, s.lat, toleranceKm));
   const free = sites.map(() => new Float32Array(ages.length));
-  run.slices.forEach((slice, k) => {
+  const outlined = o.margins ? marginSlices(ages.length) : new Set<number>();
+  let last = performance.now();
+  for (const [k, slice] of run.slices.entries()) {
     points.forEach((pts, i) => {
       let f = 0;
       for (const [lon, lat] of pts) if (!underIce(slice, lon, lat)) f++;
       free[i][k] = f / pts.length;
     });
-    progress?.(k + 1, ages.length);
-  });
+    if (outlined.has(k)) margins.push({ calBp: slice.calBp, coordinates: polygonsMargin(slice.polygons.map((p) => p.geometry)) });
+    o.progress?.(k + 1, ages.length);
+    if (performance.now() - last > YIELD_MS) {
+      await nextTick();
+      last = performance.now();
+    }
+  }
   return sites.map((_, i) => siteHistory(ages, free[i]));
 }
 
@@ -112,21 +153,24 @@ function medianStep(agesDesc: Float64Array): number {
   return Math.max(1, steps[Math.floor(steps.length / 2)]);
 }
 
-/** Scores a run; throws ModelRunFileError "no-overlap" when no constraint falls in its domain and span. */
-export function scoreRun(
+/** Scores a run; rejects with ModelRunFileError "no-overlap" when no constraint falls in its domain and span. */
+export async function scoreRun(
   run: GridRun | MarginsRun,
   constraints: readonly ScoringConstraint[],
   settings: ScoringSettings = {},
-  progress?: Progress,
-): RunScore {
+  options: ScoreOptions = {},
+): Promise<RunScore> {
   const s: Required<ScoringSettings> = {
     epsilon: settings.epsilon ?? DEFAULT_EPSILON,
     tolerance: settings.tolerance ?? (run.kind === "grid" ? 1 : 0),
     discrepancyYears: settings.discrepancyYears ?? 0,
   };
   const { sites, index } = distinctSites(constraints);
+  const margins: MarginOutline[] = [];
   const histories =
-    run.kind === "grid" ? gridHistories(run, sites, s.tolerance, progress) : marginHistories(run, sites, s.tolerance, progress);
+    run.kind === "grid"
+      ? await gridHistories(run, sites, s.tolerance, options, margins)
+      : await marginHistories(run, sites, s.tolerance, options, margins);
   const any = histories.find((h) => h !== null);
   if (!any)
     throw new ModelRunFileError(
@@ -170,5 +214,6 @@ export function scoreRun(
     spanCalBp: { oldest: any.ages[0], youngest: any.ages[any.ages.length - 1] },
     timeStepYears,
     settings: s,
+    margins,
   };
 }

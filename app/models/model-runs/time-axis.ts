@@ -60,3 +60,12 @@ export function mapTimeAxis(values: ArrayLike<number>, units: string | undefined
     message: `The time axis's units "${u || "(none)"}" do not say how model time maps to cal BP: give a time offset (the cal BP age of model time 0; model time then runs forward).`,
   };
 }
+
+/**
+ * First and last slice of a waiting run in cal BP under a stated offset, as the time-mapping step
+ * previews it: the same rule as mapTimeAxis (model time runs forward from the offset).
+ */
+export function previewCalBp(units: string, first: number, last: number, offset: number): { first: number; last: number } {
+  const scale = scaleOf(units.trim()) ?? 1;
+  return { first: offset - first * scale, last: offset - last * scale };
+}

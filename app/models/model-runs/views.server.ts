@@ -3,8 +3,9 @@
 
 import { asc, desc, eq, sql } from "drizzle-orm";
 import type { Db } from "#app/db/client.server.ts";
-import { jobs, modelRunScores, modelRuns } from "#app/db/schema.ts";
+import { jobs, modelRunMargins, modelRunScores, modelRuns } from "#app/db/schema.ts";
 import { toCsv } from "#app/utils/csv.ts";
+import type { RunMapSite } from "#app/utils/run-map.ts";
 
 export type RunRow = typeof modelRuns.$inferSelect;
 
@@ -198,4 +199,27 @@ export function identifiability(db: Db, runIds: number[]) {
        join determinations d on d.id = s.determination_id group by d.constraint_kind order by d.constraint_kind`,
     )
     .all() as { kind: string; n: number; informative: number }[];
+}
+
+/** A scored run's constraints gathered by site, for the run page's map. */
+export function runSiteScores(db: Db, runId: number): RunMapSite[] {
+  return db.$client
+    .prepare(
+      `select si.id, si.name, si.latitude as lat, si.longitude as lon, count(*) as n, avg(s.score) as meanScore,
+              min(s.score) as minScore, sum(coalesce(s.implausibility, 0) > 3) as nImplausible
+       from model_run_scores s join determinations d on d.id = s.determination_id
+       join samples sa on sa.id = d.sample_id join sites si on si.id = sa.site_id
+       where s.run_id = ? group by si.id order by meanScore desc`,
+    )
+    .all(runId) as RunMapSite[];
+}
+
+/** A run's stored margin outlines, oldest first (see margin-outline.ts). */
+export function runMargins(db: Db, runId: number): { calBp: number; coordinates: number[][][][] }[] {
+  return db
+    .select({ calBp: modelRunMargins.calBp, coordinates: modelRunMargins.coordinates })
+    .from(modelRunMargins)
+    .where(eq(modelRunMargins.runId, runId))
+    .orderBy(desc(modelRunMargins.calBp))
+    .all();
 }

@@ -1,33 +1,75 @@
-import { Link } from "react-router";
+import { parseWithZod } from "@conform-to/zod/v4";
+import { data, Link, useActionData } from "react-router";
 import type { Route } from "./+types/run";
 import { requireRole } from "#app/auth/session.server.ts";
 import { ErrorView } from "#app/components/error-view.tsx";
 import { GradeBadge } from "#app/components/grade-badge.tsx";
+import { RunMapSection } from "#app/components/runs/run-map-section.tsx";
 import { fmt, RunStatus, usePollWhile } from "#app/components/runs/run-status.tsx";
+import { TimeMappingStep } from "#app/components/runs/time-mapping-step.tsx";
+import { JobProgress } from "#app/components/ui/job-progress.tsx";
 import { getDb } from "#app/db/client.server.ts";
-import { getRun, worstConstraints } from "#app/models/model-runs/views.server.ts";
-import { jobs } from "#app/db/schema.ts";
-import { eq } from "drizzle-orm";
+import { getJob } from "#app/models/jobs.server.ts";
+import { stateTimeOffset, waitingRuns } from "#app/models/model-runs/time-mapping.server.ts";
+import { getRun, runSiteScores, worstConstraints } from "#app/models/model-runs/views.server.ts";
+import { redirectWithFlash } from "#app/utils/flash.server.ts";
 import { notFound } from "#app/utils/http.server.ts";
+import { CONSTRAINT_KIND_LABELS } from "#app/utils/labels.ts";
+import { TimeOffsetSchema } from "#app/utils/time-offset.ts";
 
-export const meta: Route.MetaFunction = () => [{ title: "Model run · Thawline" }];
+export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data?.run.name ?? "Model run"} · Thawline` }];
 
 export async function loader({ request, params }: Route.LoaderArgs) {
-  await requireRole(request, "modeller");
+  const user = await requireRole(request, "modeller");
   const db = getDb();
   const run = getRun(db, Number(params.id));
   if (!run) notFound("No such model run.");
-  const job = run.jobId ? db.select().from(jobs).where(eq(jobs.id, run.jobId)).get() : undefined;
+  const job = run.jobId ? getJob(db, run.jobId) : null;
+  const scored = run.status === "scored";
   return {
     run,
-    job: job ? { progress: job.progress, total: job.total } : null,
-    worst: run.status === "scored" ? worstConstraints(db, run.id) : [],
+    job,
+    worst: scored ? worstConstraints(db, run.id) : [],
+    sites: scored ? runSiteScores(db, run.id) : [],
+    // Only the modeller who uploaded a waiting run states its offset.
+    waitingOthers: run.timeMapping && run.userId === user.id ? waitingRuns(db, run, true).length - 1 : null,
   };
 }
 
+export async function action({ request, params }: Route.ActionArgs) {
+  const user = await requireRole(request, "modeller");
+  const db = getDb();
+  const run = getRun(db, Number(params.id));
+  if (!run) notFound("No such model run.");
+  if (run.userId !== user.id)
+    throw new Response("Only the modeller who uploaded this run can state its time mapping.", { status: 403 });
+  const form = await request.formData();
+  const submission = parseWithZod(form, { schema: TimeOffsetSchema });
+  if (form.get("intent") !== "time-offset")
+    return data({ result: submission.reply({ formErrors: ["Unknown intent."] }) }, { status: 400 });
+  if (submission.status !== "success") return data({ result: submission.reply() }, { status: 400 });
+  if (!run.timeMapping)
+    return data({ result: submission.reply({ formErrors: ["This run's time mapping is already set."] }) }, { status: 409 });
+  const { time_offset: offset, whole_ensemble: whole } = submission.value;
+  const outcome = await stateTimeOffset(db, waitingRuns(db, run, whole), offset, user.id);
+  const own = outcome.problems.find((p) => p.id === run.id);
+  if (own) return data({ result: submission.reply({ fieldErrors: { time_offset: [own.message] } }) }, { status: 400 });
+  const n = outcome.queued.length;
+  const others = outcome.problems.map((p) => `${p.name}: ${p.message}`);
+  return redirectWithFlash(`/runs/${run.id}`, {
+    kind: others.length ? "info" : "success",
+    message:
+      `Model time 0 is ${offset.toLocaleString("en")} cal BP: ${n} run${n === 1 ? "" : "s"} queued for scoring.` +
+      (others.length ? ` Still waiting: ${others.join(" ")}` : ""),
+  });
+}
+
 export default function RunPage({ loaderData }: Route.ComponentProps) {
-  const { run, job, worst } = loaderData;
-  usePollWhile(run.status === "queued" || run.status === "running");
+  const { run, job, worst, sites, waitingOthers } = loaderData;
+  const acted = useActionData<typeof action>();
+  const active = !run.timeMapping && (run.status === "queued" || run.status === "running");
+  // The job may score several runs; the page follows this run's own state.
+  usePollWhile(active);
   const summary = (run.summary ?? {}) as {
     span?: { oldest: number; youngest: number };
     timeStepYears?: number;
@@ -48,9 +90,13 @@ export default function RunPage({ loaderData }: Route.ComponentProps) {
           ) : null}
         </p>
         <h1>{run.name}</h1>
-        <p className="mt-2">
-          <RunStatus status={run.status} progress={job?.progress ?? null} total={job?.total ?? null} error={run.error} />
-        </p>
+        {run.timeMapping ? (
+          <p className="mt-2">Waiting for its time mapping: not scored yet.</p>
+        ) : active && job ? null : (
+          <p className="mt-2">
+            <RunStatus status={run.status} progress={null} total={null} error={run.error} />
+          </p>
+        )}
         {run.storedPath ? (
           <p className="mt-2 text-sm">
             <a href={`/runs/${run.id}/file`} download>
@@ -59,6 +105,14 @@ export default function RunPage({ loaderData }: Route.ComponentProps) {
           </p>
         ) : null}
       </header>
+      {active && job ? <JobProgress job={job} unit="time slices" label="Scoring" /> : null}
+      {run.timeMapping ? (
+        waitingOthers === null ? (
+          <p className="card">The modeller who uploaded this run has not yet said how its model time maps to cal BP.</p>
+        ) : (
+          <TimeMappingStep mapping={run.timeMapping} others={waitingOthers} lastResult={acted?.result} />
+        )
+      ) : null}
       {run.status === "scored" ? (
         <>
           <dl className="card grid gap-4 sm:grid-cols-3" data-testid="run-totals">
@@ -97,6 +151,7 @@ export default function RunPage({ loaderData }: Route.ComponentProps) {
               </dd>
             </div>
           </dl>
+          <RunMapSection runId={run.id} sites={sites} />
           <section aria-labelledby="worst">
             <h2 id="worst">Worst-fitting constraints</h2>
             <div className="mt-4 overflow-x-auto">
@@ -128,7 +183,7 @@ export default function RunPage({ loaderData }: Route.ComponentProps) {
                         <Link to={`/determinations/${w.id}`}>{w.labCode}</Link>
                       </td>
                       <td>{w.site}</td>
-                      <td>{w.kind}</td>
+                      <td>{CONSTRAINT_KIND_LABELS[w.kind] ?? w.kind}</td>
                       <td>
                         <GradeBadge grade={w.grade} />
                       </td>

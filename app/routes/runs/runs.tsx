@@ -62,14 +62,24 @@ export async function action({ request }: Route.ActionArgs) {
       thresholdM: num(form, "threshold"),
       tolerance: num(form, "tolerance"),
       choice: { releaseSlug: String(form.get("release") ?? "").trim() || null },
+      keepUnmapped: true,
     });
     startScoring(
       db,
       runs.map((r) => r.id),
+      user.id,
     );
-    return redirectWithFlash("/runs", {
+    const waiting = runs.filter((r) => r.timeMapping);
+    const queued = runs.length - waiting.length;
+    const parts = [];
+    if (queued) parts.push(`${queued} run${queued === 1 ? "" : "s"} queued for scoring.`);
+    if (waiting.length)
+      parts.push(
+        `${waiting.length} run${waiting.length === 1 ? " needs" : "s need"} a time mapping: state how model time maps to cal BP on the run's page.`,
+      );
+    return redirectWithFlash(waiting.length === 1 && runs.length === 1 ? `/runs/${waiting[0].id}` : "/runs", {
       kind: "success",
-      message: `${runs.length} run${runs.length === 1 ? "" : "s"} queued for scoring.`,
+      message: parts.join(" "),
     });
   } catch (e) {
     if (e instanceof IntakeError) {

@@ -85,7 +85,7 @@ describe("NetCDF-4 through h5wasm", () => {
     const [x, y] = run.toGrid(SITE.lon, SITE.lat);
     expect(x).toBeCloseTo(run.xs[2], 3);
     expect(y).toBeCloseTo(run.ys[2], 3);
-    const r = scoreRun(run, [constraint()]);
+    const r = await scoreRun(run, [constraint()]);
     closeRunFile(run);
     // hand: F = min(1, (11000 − t)/1000) under N(10100, 100):
     // E = 0.9 − E[(10000 − t)+]/1000 = 0.9 − 100·(φ(1) − (1 − Φ(1)))/1000 = 0.9 − 0.00833
@@ -107,8 +107,8 @@ describe("NetCDF-4 through h5wasm", () => {
     );
     const thin = await open(path, { thresholdM: 10 });
     const thick = await open(path, { thresholdM: 1 });
-    expect(scoreRun(thin, [constraint()]).scores[0].score).toBeCloseTo(1, 6);
-    expect(scoreRun(thick, [constraint()]).scores[0].score).toBeCloseTo(0, 6);
+    expect((await scoreRun(thin, [constraint()])).scores[0].score).toBeCloseTo(1, 6);
+    expect((await scoreRun(thick, [constraint()])).scores[0].score).toBeCloseTo(0, 6);
     closeRunFile(thin);
     closeRunFile(thick);
   });
@@ -221,7 +221,7 @@ describe("every bad file gets its own message", () => {
       time: { name: "time", values: [-50000, -49000, -48000, -47000, -46000], attrs: { units: "years since 1950-01-01" } },
     });
     const run = await open(path);
-    expect(() => scoreRun(run, [constraint()])).toThrow(/do not overlap/);
+    await expect(scoreRun(run, [constraint()])).rejects.toThrow(/do not overlap/);
     closeRunFile(run);
   });
 
@@ -229,7 +229,7 @@ describe("every bad file gets its own message", () => {
     const path = join(dir, "elsewhere.nc");
     await writeNetcdf4(path, stereSpec());
     const run = await open(path);
-    expect(() => scoreRun(run, [constraint(10, 45)])).toThrow(/inside the run's grid/);
+    await expect(scoreRun(run, [constraint(10, 45)])).rejects.toThrow(/inside the run's grid/);
     closeRunFile(run);
   });
 
@@ -305,7 +305,7 @@ describe("GeoJSON margins", () => {
     );
     const run = await open(path);
     expect(run.kind).toBe("margins");
-    const r = scoreRun(run, [constraint()]);
+    const r = await scoreRun(run, [constraint()]);
     // hand: in the span (10,000–11,000) F = (11000 − t)/1000: (900·Φ(1) − 100·φ(1))/1000 = 0.7330;
     // below 10,000 the run has no slice, scored F = 1/2: 0.5·(1 − Φ(1)) = 0.0793
     expect(r.scores[0].score).toBeCloseTo(0.8123, 2);

@@ -60,7 +60,7 @@ export async function action({ request }: Route.ActionArgs) {
       tolerance: optionalNumber(form, "tolerance"),
       choice: { releaseSlug: String(form.get("release") ?? "").trim() || null },
     });
-    startScoring(db, [run.id]);
+    startScoring(db, [run.id], user.id);
     return json({ id: run.id, status: "queued" }, { status: 202, headers: { Location: `/api/v1/model-runs/${run.id}` } });
   } catch (e) {
     if (e instanceof IntakeError) return json({ error: e.message, problems: e.problems }, { status: e.status });
