@@ -129,12 +129,26 @@ describe("POST /api/v1/model-runs → background scoring → GET", () => {
   });
 
   it("ranks an ensemble by log L", async () => {
+    // Posted late first, so the ranking cannot be the upload order.
     const late = await run(async () =>
-      postRun(args(upload({ file: await runFile("late.nc", 9000), name: "late run", ensemble: "api-test" }))),
+      postRun(args(upload({ file: await runFile("late.nc", 9000), name: "late run", ensemble: "api-rank" }))),
     );
     expect(late.status).toBe(202);
+    const early = await run(async () =>
+      postRun(
+        args(
+          upload({
+            file: await runFile("early2.nc", 10500),
+            name: "early run",
+            ensemble: "api-rank",
+            parameters: '{"sliding": 1.2}',
+          }),
+        ),
+      ),
+    );
+    expect(early.status).toBe(202);
     await scoringIdle();
-    const e = await run(() => getEnsemble(args(apiGet("/api/v1/ensembles/api-test"), { name: "api-test" })));
+    const e = await run(() => getEnsemble(args(apiGet("/api/v1/ensembles/api-rank"), { name: "api-rank" })));
     expect(e.status).toBe(200);
     const runs = (
       e.data as { runs: { name: string; rank: number; log_likelihood: number; parameters: Record<string, number> }[] }

@@ -242,6 +242,12 @@ describe("release scoring", () => {
     });
     const jobId = resumeScoring(db);
     await jobFinished(jobId!);
+    // Put the registry back for the other tests.
+    const back = densityBlob(10000, 100);
+    db.update(calibrations)
+      .set({ densityStartCalBp: back.start, density: back.blob })
+      .where(eq(calibrations.determinationId, detId))
+      .run();
     const rel = runScores(db, withRelease.id).find((s) => s.determinationId === detId)!;
     const cur = runScores(db, live2.id).find((s) => s.determinationId === detId)!;
     expect(getRun(db, withRelease.id)!.releaseId).toBe(releaseId);
