@@ -180,7 +180,7 @@ export default function ApiDocs({ loaderData }: Route.ComponentProps) {
   "determinations": [
     {
       "id": 812,
-      "lab_code": "XMPL-0001",
+      "lab_code": "XMPL-0812",
       "lab": {"id": 3, "name": "…"},
       "site": {"id": 57, "name": "Example Cove", "latitude": 58.7123, "longitude": -64.3511, "elevation_m": 42},
       "sample_code": "EXC-01", "material": "marine shell", "depth_cm": 120, "strat_unit": "glaciomarine silt",
@@ -260,7 +260,7 @@ export default function ApiDocs({ loaderData }: Route.ComponentProps) {
   -H 'Content-Type: application/json' -d '[{
     "site_name": "Example Cove", "latitude": 58.7123, "longitude": -64.3511,
     "sample_code": "EXC-01", "material": "marine shell", "method": "radiocarbon",
-    "lab_code": "XMPL-0001", "constraint_kind": "minimum",
+    "lab_code": "XMPL-0812", "constraint_kind": "minimum",
     "c14_age": 9850, "c14_error": 40, "curve": "marine20", "delta_r": 150, "delta_r_error": 60
   }]'`}</Code>
         <Code label="201">{`{"determination_ids": [812]}`}</Code>

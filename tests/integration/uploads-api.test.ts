@@ -12,6 +12,7 @@ import * as errorsCsv from "#app/routes/resources/upload-errors-csv.ts";
 import * as templateXlsx from "#app/routes/resources/upload-template-xlsx.ts";
 import * as templateCsv from "#app/routes/resources/upload-template-csv.ts";
 import { readUpload } from "#app/models/submission/uploads/read-sheet.server.ts";
+import { createUpload } from "#app/models/submission/uploads/batches.server.ts";
 import { createTestUser } from "#tests/factories.ts";
 import { args, get, ORIGIN, personWithSession, post, run } from "#tests/support/auth.ts";
 import { toCsvText, toXlsx, uploadRows } from "#tests/support/upload-files.ts";
@@ -255,5 +256,22 @@ describe("upload pages", () => {
     const sheet = await readUpload(Buffer.from(await (raw as Response).arrayBuffer()), "t.xlsx");
     expect(sheet.rows).toHaveLength(2);
     expect(sheet.headers).toContain("dose_rate_gy_per_ka");
+  });
+
+  it("refuses the template's example rows when the template is uploaded unchanged", async () => {
+    const p = await personWithSession(["contributor"]);
+    const csv = await run(() => templateCsv.loader(args(get("/uploads/template.csv", { cookie: p.cookie }))));
+    const { validation } = await createUpload(getDb(), {
+      userId: p.id,
+      fileName: "template.csv",
+      file: Buffer.from(String(csv.data)),
+    });
+    expect(validation.validCount).toBe(0);
+    for (const row of [2, 3]) {
+      expect(validation.errors.find((e) => e.row === row && e.column === "lab_code")?.message).toMatch(
+        /is the template's example row: replace it with your own measurement, or delete the row/,
+      );
+      expect(validation.errors.find((e) => e.row === row && e.column === "doi")?.message).toMatch(/example DOI/);
+    }
   });
 });

@@ -72,8 +72,16 @@ describe("checkRow", () => {
     });
   });
 
-  it("accepts the template's example rows", () => {
-    for (const row of EXAMPLE_ROWS) expect(messages(row, { ...ctx, materials: [...ctx.materials] })).toEqual([]);
+  it("refuses the template's example rows as they are, and accepts them once they are one's own", () => {
+    for (const row of EXAMPLE_ROWS) {
+      const refused = checkRow(row, { ...ctx, materials: [...ctx.materials] });
+      expect(refused.ok).toBe(false);
+      expect(refused.issues.map((i) => i.column).sort()).toEqual(["doi", "lab_code"]);
+      expect(refused.issues.find((i) => i.column === "lab_code")!.message).toMatch(/template's example row/);
+      expect(String(row.notes)).toMatch(/^EXAMPLE ROW/);
+      const own = { ...row, lab_code: `OWN-${String(row.lab_code)}`, doi: "" };
+      expect(messages(own, { ...ctx, materials: [...ctx.materials] })).toEqual([]);
+    }
   });
 
   it("accepts a luminescence row with a dose rate, and one with K/U/Th instead", () => {
@@ -210,11 +218,12 @@ describe("nearest", () => {
 });
 
 describe("values of the other method", () => {
-  it("warns at each column that does not belong to the row's method, without blocking the row", () => {
+  it("warns once per row, naming every column that does not belong to the row's method, without blocking it", () => {
     const r = checkRow(lum({ c14_age: "9500", d13c: "-25" }), ctx);
     expect(r.ok).toBe(true);
-    expect(r.warnings.map((w) => w.column).sort()).toEqual(["c14_age", "d13c"]);
-    expect(r.warnings[0]!.message).toMatch(/not used for a luminescence row and is not stored/);
+    const notStored = r.warnings.filter((w) => /not stored/.test(w.message));
+    expect(notStored).toHaveLength(1);
+    expect(notStored[0]!.message).toBe("2 columns are not used for a luminescence row and are not stored: c14_age, d13c.");
     const back = checkRow(c14({ de_gy: "20" }), ctx);
     expect(back.ok).toBe(true);
     expect(back.warnings.map((w) => w.column)).toContain("de_gy");

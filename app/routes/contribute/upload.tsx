@@ -6,9 +6,13 @@ import { getDb } from "#app/db/client.server.ts";
 import { sendEmail } from "#app/mail/send.server.ts";
 import { uploadReceiptMessage } from "#app/mail/upload-receipt.server.ts";
 import { commitUpload, CommitRefused } from "#app/models/submission/uploads/commit.server.ts";
-import { getBatchForUser, remapUpload, sheetOf } from "#app/models/submission/uploads/batches.server.ts";
+import { batchDeterminations, getBatchForUser, remapUpload, sheetOf } from "#app/models/submission/uploads/batches.server.ts";
 import type { ColumnMapping } from "#app/models/submission/uploads/mapping.server.ts";
 import { COLUMNS } from "#app/utils/determination-input/columns.ts";
+import type { CreatedDetermination } from "#app/models/submission/uploads/batches.server.ts";
+import { formatCal, formatCalRange, formatCount } from "#app/utils/age-format.ts";
+import { METHOD_LABELS } from "#app/utils/labels.ts";
+import { describeRows, groupCautions } from "#app/utils/caution-groups.ts";
 import { env } from "#app/utils/env.server.ts";
 import { redirectWithFlash } from "#app/utils/flash.server.ts";
 import { badRequest, notFound } from "#app/utils/http.server.ts";
@@ -17,7 +21,9 @@ export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data?.batch.f
 
 /** Errors shown on the page; all of them are in the CSV download. */
 const SHOWN_ERRORS = 200;
-const SHOWN_WARNINGS = 50;
+const SHOWN_CAUTION_GROUPS = 100;
+/** Created determinations listed after a commit; all of them are in My submissions. */
+const SHOWN_CREATED = 500;
 
 export async function loader({ request, params }: Route.LoaderArgs) {
   const user = await requireRole(request, "contributor");
@@ -44,9 +50,10 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     errors: errors.slice(0, SHOWN_ERRORS),
     errorCount: errors.length,
     errorRows,
-    warnings: warnings.slice(0, SHOWN_WARNINGS),
+    cautions: groupCautions(warnings).slice(0, SHOWN_CAUTION_GROUPS),
     warningCount: warnings.length,
     columns: COLUMNS.map((c) => ({ name: c.name, label: c.label, unit: c.unit })),
+    created: batch.status === "committed" ? batchDeterminations(getDb(), batch.id, SHOWN_CREATED) : null,
   };
 }
 
@@ -110,7 +117,7 @@ export async function action({ request, params }: Route.ActionArgs) {
 }
 
 export default function Upload({ loaderData }: Route.ComponentProps) {
-  const { batch, headers, mapping, notices, preview, errors, errorCount, errorRows, warnings, warningCount, columns } =
+  const { batch, headers, mapping, notices, preview, errors, errorCount, errorRows, cautions, warningCount, columns, created } =
     loaderData;
   const navigation = useNavigation();
   const busy = navigation.state === "submitting";
@@ -138,15 +145,7 @@ export default function Upload({ loaderData }: Route.ComponentProps) {
         ) : null}
       </header>
 
-      {batch.status === "committed" ? (
-        <section className="card">
-          <h2>Committed</h2>
-          <p className="mt-2">
-            {batch.committedCount} determinations are in the registry with status “submitted”. Follow them in{" "}
-            <Link to="/submissions">My submissions</Link> or find them in <Link to="/explore">Explore</Link>.
-          </p>
-        </section>
-      ) : null}
+      {batch.status === "committed" && created ? <CreatedList created={created} /> : null}
 
       {parsed && preview ? (
         <section aria-labelledby="preview-h">
@@ -250,14 +249,22 @@ export default function Upload({ loaderData }: Route.ComponentProps) {
       {warningCount > 0 ? (
         <section aria-labelledby="warnings-h">
           <h2 id="warnings-h">Cautions</h2>
-          <p className="mt-1 text-muted">
-            These do not stop a commit, but reviewers will see them.
-            {warningCount > warnings.length ? ` First ${warnings.length} of ${warningCount}.` : ""}
+          <p className="mt-1 max-w-3xl text-muted">
+            {formatCount(warningCount)} caution{warningCount === 1 ? "" : "s"}, folded by column and kind. They do not stop a
+            commit, but reviewers will see them.
           </p>
-          <ul className="mt-3 space-y-1">
-            {warnings.map((w, i) => (
-              <li key={i}>
-                Row {w.row}, <code>{w.column}</code>: {w.message}
+          <ul className="mt-3 grid gap-2" data-testid="upload-cautions">
+            {cautions.map((c) => (
+              <li key={`${c.column}|${c.message}`}>
+                <details className="card py-2">
+                  <summary className="cursor-pointer">
+                    <code>{c.column}</code>: {c.message}{" "}
+                    <span className="text-sm text-muted">
+                      ({c.rows.length === 1 ? "1 row" : `${formatCount(c.rows.length)} rows`})
+                    </span>
+                  </summary>
+                  <p className="mt-2 text-sm">{describeRows(c.rows)}</p>
+                </details>
               </li>
             ))}
           </ul>
@@ -296,6 +303,52 @@ export default function Upload({ loaderData }: Route.ComponentProps) {
         </section>
       ) : null}
     </div>
+  );
+}
+
+/** After a commit: every determination the upload created, with its calendar age and a link. */
+function CreatedList({ created }: { created: { rows: CreatedDetermination[]; total: number } }) {
+  return (
+    <section aria-labelledby="created-h">
+      <h2 id="created-h">Created</h2>
+      <p className="mt-1 max-w-3xl text-muted">
+        {formatCount(created.total)} determination{created.total === 1 ? " is" : "s are"} in the registry with status “submitted”,
+        calibrated and waiting for review. Follow them in <Link to="/submissions">My submissions</Link>
+        {created.total > created.rows.length ? `; the first ${formatCount(created.rows.length)} are listed here` : ""}.
+      </p>
+      <div className="mt-4 overflow-x-auto">
+        <table className="data-table" data-testid="upload-created">
+          <thead>
+            <tr>
+              <th scope="col">Lab code</th>
+              <th scope="col">Site</th>
+              <th scope="col">Method</th>
+              <th scope="col" className="text-right">
+                Median (cal BP)
+              </th>
+              <th scope="col" className="text-right">
+                95.4 % range (cal BP)
+              </th>
+            </tr>
+          </thead>
+          <tbody>
+            {created.rows.map((d) => (
+              <tr key={d.id}>
+                <td>
+                  <Link to={`/determinations/${d.id}`}>{d.labCode}</Link>
+                </td>
+                <td>{d.siteName}</td>
+                <td>{METHOD_LABELS[d.method] ?? d.method}</td>
+                <td className="text-right tabular-nums">
+                  {d.medianCalBp == null ? "no calendar age" : formatCal(d.medianCalBp)}
+                </td>
+                <td className="text-right tabular-nums">{formatCalRange(d.hpd95FromBp, d.hpd95ToBp)}</td>
+              </tr>
+            ))}
+          </tbody>
+        </table>
+      </div>
+    </section>
   );
 }
 

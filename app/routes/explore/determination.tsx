@@ -13,6 +13,7 @@ import { GradeBadge } from "#app/components/grade-badge.tsx";
 import { getDb } from "#app/db/client.server.ts";
 import type { HpdRange } from "#app/db/schema.ts";
 import { determinationDetail, type DeterminationDetail } from "#app/models/registry/determination-page.server.ts";
+import { editRefusal, getDetermination } from "#app/models/submission/form/write.server.ts";
 import { formatCal, formatCalRange, formatMeasuredAge, formatProbability } from "#app/utils/age-format.ts";
 import { notFound } from "#app/utils/http.server.ts";
 import {
@@ -39,7 +40,10 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const detail = determinationDetail(getDb(), id);
   if (!detail) notFound("There is no determination with this number.");
   const canReopen = user.roles.includes("editor") && detail.determination.status === "graded";
-  return { detail, plot: plotForDetermination(getDb(), id), canReopen };
+  const stored = getDetermination(getDb(), id);
+  // The same rule the edit page and its action apply: the contributor, until a reviewer grades it.
+  const editable = stored != null && editRefusal(getDb(), stored, user.id) === null;
+  return { detail, plot: plotForDetermination(getDb(), id), canReopen, editable };
 }
 
 /** Editors reopen a graded determination: back to the review queue, editable again by its contributor (audited). */
@@ -64,7 +68,7 @@ export async function action({ request, params }: Route.ActionArgs) {
 type Detail = Route.ComponentProps["loaderData"]["detail"];
 
 export default function DeterminationPage({ loaderData, actionData }: Route.ComponentProps) {
-  const { detail, canReopen } = loaderData;
+  const { detail, canReopen, editable } = loaderData;
   const d = detail.determination;
   return (
     <article>
@@ -79,6 +83,11 @@ export default function DeterminationPage({ loaderData, actionData }: Route.Comp
         </p>
         <GradeBadge grade={d.grade} />
         <span className="rounded border border-rule px-2 text-sm">{STATUS_LABELS[d.status]}</span>
+        {editable ? (
+          <Link to={`/submissions/${d.id}/edit`} className="btn-quiet" data-testid="edit-link">
+            Edit or withdraw
+          </Link>
+        ) : null}
       </header>
       <p className="mt-1 text-muted">
         {METHOD_LABELS[d.method] ?? d.method}

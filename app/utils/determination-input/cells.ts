@@ -1,4 +1,5 @@
 import type { ColumnSpec } from "#app/utils/determination-input/columns.ts";
+import { invisibleCharacters, invisibleCharactersProblem, normaliseIdentifier } from "#app/utils/identifiers.ts";
 import { nearest } from "#app/utils/nearest.ts";
 
 // ---------------------------------------------------------------- cell readers
@@ -114,6 +115,28 @@ export function readText(v: unknown, spec: ColumnSpec, max = 200): Read<string> 
   if (t === "") return { issue: `${spec.name} takes text.` };
   if (t.length > max) return { issue: `${spec.name} is too long (${t.length} characters; at most ${max}).` };
   return { value: t };
+}
+
+/**
+ * Text that identifies something (a lab code, sample code, site or lab name): characters nobody can
+ * see are refused by name and position, and the rest is normalised (identifiers.ts), so a full-width
+ * letter or a non-breaking hyphen reads as what it looks like.
+ */
+export function readIdentifier(v: unknown, spec: ColumnSpec): Read<string> {
+  if (typeof v === "string") {
+    const trimmed = v.trim();
+    const problem = invisibleCharactersProblem(trimmed);
+    if (problem) {
+      const many = invisibleCharacters(trimmed).length > 1;
+      return {
+        issue: `The ${spec.label.toLowerCase()} ${problem}; type it again without ${many ? "those characters" : "that character"}.`,
+      };
+    }
+  }
+  const r = readText(v, spec);
+  if (r.value === undefined) return r;
+  const value = normaliseIdentifier(r.value);
+  return value ? { value } : { issue: `${spec.name} takes text.` };
 }
 
 const YES = new Set(["yes", "y", "true", "1", "ja", "oui"]);

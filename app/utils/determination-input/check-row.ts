@@ -2,13 +2,14 @@ import {
   type Read,
   listWords,
   readChoice,
+  readIdentifier,
   readInteger,
   readNumber,
   readText,
   readYesNo,
   truncate,
 } from "#app/utils/determination-input/cells.ts";
-import { COLUMNS } from "#app/utils/determination-input/columns.ts";
+import { COLUMNS, EXAMPLE_DOI, EXAMPLE_LAB_CODES } from "#app/utils/determination-input/columns.ts";
 import type { DeterminationRow, Region, RowContext, RowIssue } from "#app/utils/determination-input/row.ts";
 import { nearest } from "#app/utils/nearest.ts";
 
@@ -54,6 +55,9 @@ export const LUMINESCENCE_ONLY_COLUMNS = [
 ] as const;
 
 const TEXT_MAX: Record<string, number> = { notes: 2000, context: 1000 };
+
+/** Text columns that identify something: read with the invisible-character check and normalised. */
+export const IDENTIFIER_COLUMNS: ReadonlySet<string> = new Set(["site_name", "sample_code", "lab_code", "lab_name"]);
 
 /** One row being checked: the values read so far and every problem found, each at its column. */
 class RowState {
@@ -104,6 +108,7 @@ export function checkRow(raw: Record<string, unknown>, ctx: RowContext): RowChec
   }
   checkOtherMethodColumns(row, method);
   checkDuplicate(row);
+  checkExampleRow(row);
 
   const { issues, warnings, out } = row;
   if (out.age_normalised === undefined) out.age_normalised = true;
@@ -145,7 +150,7 @@ function readCells(row: RowState, raw: Record<string, unknown>) {
         r = readChoice(cell, spec, spec.choices ?? []);
         break;
       default:
-        r = readText(cell, spec, TEXT_MAX[spec.name] ?? 200);
+        r = IDENTIFIER_COLUMNS.has(spec.name) ? readIdentifier(cell, spec) : readText(cell, spec, TEXT_MAX[spec.name] ?? 200);
     }
     if (r.issue) row.add(spec.name, r.issue);
     else if (r.value !== undefined) row.out[spec.name] = r.value;
@@ -339,8 +344,11 @@ function checkLuminescence(row: RowState) {
 function checkOtherMethodColumns(row: RowState, method: DeterminationRow["method"] | undefined) {
   if (method !== "radiocarbon" && method !== "luminescence") return;
   const other = method === "radiocarbon" ? LUMINESCENCE_ONLY_COLUMNS : RADIOCARBON_ONLY_COLUMNS;
-  for (const column of other) {
-    if (row.has(column)) row.warn(column, `${column} is not used for a ${method} row and is not stored.`);
+  const given = other.filter((column) => row.has(column));
+  // One caution for the row, naming every such column, rather than a line per column.
+  if (given.length === 1) row.warn(given[0]!, `${given[0]} is not used for a ${method} row and is not stored.`);
+  else if (given.length > 1) {
+    row.warn(given[0]!, `${given.length} columns are not used for a ${method} row and are not stored: ${given.join(", ")}.`);
   }
 }
 
@@ -349,6 +357,17 @@ function checkDuplicate(row: RowState) {
   const code = row.text("lab_code");
   const existing = code !== undefined && row.ctx.labCodeInRegistry ? row.ctx.labCodeInRegistry(code) : null;
   if (existing != null) row.add("lab_code", `Lab code ${code} is already in the registry: /determinations/${existing}`);
+}
+
+/** The template's example rows are refused, so a file uploaded with them left in stores nothing invented. */
+function checkExampleRow(row: RowState) {
+  const code = row.text("lab_code");
+  if (code !== undefined && EXAMPLE_LAB_CODES.some((c) => c.toLowerCase() === code.toLowerCase())) {
+    row.add("lab_code", `${code} is the template's example row: replace it with your own measurement, or delete the row.`);
+  }
+  if (typeof row.out.doi === "string" && row.out.doi.toLowerCase() === EXAMPLE_DOI) {
+    row.add("doi", `${EXAMPLE_DOI} is the template's example DOI: give your publication's DOI, or leave the cell empty.`);
+  }
 }
 
 function describe(lat: number, lon: number): string {

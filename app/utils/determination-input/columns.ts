@@ -438,7 +438,12 @@ export function columnSpec(name: string): ColumnSpec | undefined {
   return SPEC.get(name);
 }
 
-/** Example rows for the template: one radiocarbon, one luminescence (invented values). */
+/** Lab codes and DOI of the template's example rows: a row that still carries one is refused (checkRow). */
+export const EXAMPLE_LAB_CODES = ["XMPL-0001", "XMPL-L001"] as const;
+export const EXAMPLE_DOI = "10.99999/example.1";
+const EXAMPLE_NOTE = "EXAMPLE ROW: replace it with your own measurement or delete it; it is refused if uploaded.";
+
+/** Example rows for the template: one radiocarbon, one luminescence (invented values), each marked in its notes. */
 export const EXAMPLE_ROWS: Record<string, string | number>[] = [
   {
     site_name: "Example Cove",
@@ -453,7 +458,7 @@ export const EXAMPLE_ROWS: Record<string, string | number>[] = [
     strat_order: 2,
     context: "paired valves in growth position",
     method: "radiocarbon",
-    lab_code: "XMPL-0001",
+    lab_code: EXAMPLE_LAB_CODES[0],
     lab_name: "Example Laboratory",
     constraint_kind: "minimum",
     c14_age: 9850,
@@ -466,8 +471,8 @@ export const EXAMPLE_ROWS: Record<string, string | number>[] = [
     delta_r: 150,
     delta_r_error: 60,
     delta_r_curve: "marine20",
-    doi: "10.99999/example.1",
-    notes: "",
+    doi: EXAMPLE_DOI,
+    notes: EXAMPLE_NOTE,
   },
   {
     site_name: "Example Terrace",
@@ -482,7 +487,7 @@ export const EXAMPLE_ROWS: Record<string, string | number>[] = [
     strat_order: 1,
     context: "sand above outwash gravel",
     method: "luminescence",
-    lab_code: "XMPL-L001",
+    lab_code: EXAMPLE_LAB_CODES[1],
     lab_name: "Example Laboratory",
     constraint_kind: "minimum",
     signal: "OSL",
@@ -501,6 +506,7 @@ export const EXAMPLE_ROWS: Record<string, string | number>[] = [
     aliquots: 24,
     age_model: "central",
     measurement_year: 2023,
-    doi: "10.99999/example.1",
+    doi: EXAMPLE_DOI,
+    notes: EXAMPLE_NOTE,
   },
 ];

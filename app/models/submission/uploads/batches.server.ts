@@ -162,3 +162,32 @@ export function listBatches(db: Db, userId: number, limit = 100): BatchSummary[]
     undoRefusal: refusals.get(r.id) ?? null,
   }));
 }
+
+export type CreatedDetermination = {
+  id: number;
+  labCode: string;
+  method: string;
+  siteName: string;
+  medianCalBp: number | null;
+  hpd95FromBp: number | null;
+  hpd95ToBp: number | null;
+};
+
+/** What a committed batch created: its determinations with their current calendar ages, in file order. */
+export function batchDeterminations(db: Db, batchId: number, limit = 500): { rows: CreatedDetermination[]; total: number } {
+  const rows = db.$client
+    .prepare(
+      `select d.id, d.lab_code as labCode, d.method, s.name as siteName, c.median_cal_bp as medianCalBp,
+              c.hpd95_from_bp as hpd95FromBp, c.hpd95_to_bp as hpd95ToBp
+       from determinations d
+       join samples m on m.id = d.sample_id join sites s on s.id = m.site_id
+       left join calibrations c on c.determination_id = d.id and c.is_current = 1
+       where d.upload_batch_id = ? order by d.id limit ?`,
+    )
+    .all(batchId, limit) as CreatedDetermination[];
+  const total = db.$client
+    .prepare("select count(*) from determinations where upload_batch_id = ?")
+    .pluck()
+    .get(batchId) as number;
+  return { rows, total };
+}

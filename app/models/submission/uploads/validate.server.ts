@@ -14,6 +14,7 @@ import { checkRow } from "#app/utils/determination-input/check-row.ts";
 import { columnSpec } from "#app/utils/determination-input/columns.ts";
 import type { DeterminationRow, RowContext, RowIssue } from "#app/utils/determination-input/row.ts";
 import { isBlankCell } from "#app/utils/determination-input/cells.ts";
+import { identifierKey, normaliseIdentifier } from "#app/utils/identifiers.ts";
 import type { ColumnMapping } from "#app/models/submission/uploads/mapping.server.ts";
 import type { StoredCell, StoredRow } from "#app/models/submission/uploads/read-sheet.server.ts";
 import { Placement, type RowPlan } from "#app/models/submission/placement.server.ts";
@@ -143,7 +144,7 @@ export function validateRows(
       : sheet.rows
           .map((r) => r.cells[labCodeAt])
           .filter((c): c is string | number => typeof c === "string" || typeof c === "number")
-          .map((c) => String(c).trim());
+          .map((c) => normaliseIdentifier(String(c)));
   const registry = loadRegistry(db, labCodes);
   const placement = new Placement(db, { userId: options.userId, userLabId: options.userLabId ?? null, mayRegisterLabs: true });
   const mapped = new Set(index.map(([, c]) => c));
@@ -164,10 +165,10 @@ export function validateRows(
     issues.push(...check.issues.filter((i) => !issues.some((f) => f.column === i.column)));
     const code = (check.ok ? check.value : check.partial).lab_code;
     if (code) {
-      const first = seenCodes.get(code.toLowerCase());
+      const first = seenCodes.get(identifierKey(code));
       if (first !== undefined)
         issues.push({ column: "lab_code", message: `Lab code ${code} also appears in row ${first} of this file.` });
-      else seenCodes.set(code.toLowerCase(), r.n);
+      else seenCodes.set(identifierKey(code), r.n);
     }
     const placed = placement.planRow(check.ok ? check.value : soundPart(check.partial, issues), { n: r.n });
     issues.push(...placed.issues);
