@@ -212,7 +212,10 @@ describe("validation of an upload", () => {
 
 describe("committing", () => {
   it("commits all rows of a good file in one go, calibrated, audited, with sites and samples", async () => {
-    const { batch, userId } = await upload(uploadRows(24, { prefix: prefix() }), "xlsx");
+    const p = prefix();
+    // Sites of its own, so the counts hold whichever tests ran before in this file's database.
+    const fileRows = uploadRows(24, { prefix: p }).map((r) => ({ ...r, site_name: `${p} ${String(r.site_name)}` }));
+    const { batch, userId } = await upload(fileRows, "xlsx");
     const before = counts();
     const result = commitUpload(db(), batch, "all", { userId });
     expect(result.committed).toBe(24);

@@ -41,8 +41,8 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   if (!detail) notFound("There is no determination with this number.");
   const canReopen = user.roles.includes("editor") && detail.determination.status === "graded";
   const stored = getDetermination(getDb(), id);
-  // The same rule the edit page and its action apply: the contributor, until a reviewer grades it.
-  const editable = stored != null && editRefusal(getDb(), stored, user.id) === null;
+  // The same rule the edit page and its action apply: the contributor, until the determination is graded.
+  const editable = stored != null && editRefusal(stored, user.id) === null;
   return { detail, plot: plotForDetermination(getDb(), id), canReopen, editable };
 }
 
