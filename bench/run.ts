@@ -312,6 +312,13 @@ for (const [kind, file] of [
   await benchReleases(db, seeded.userIds["editor@example.org"]!, report, median);
 }
 
+// ---------------------------------------------------------------- model-run scoring (issue 11)
+{
+  console.log("Model runs: a 200 × 200 × 100 NetCDF-4 grid and a 30-run GeoJSON ensemble…");
+  const { benchRuns } = await import("./runs.ts");
+  await benchRuns(db, dbFile, report);
+}
+
 // ---------------------------------------------------------------- load (its own table)
 console.log("Load: 50 connections × 20 s per target, idle and during 5,000-row commits…");
 db.$client.pragma("wal_checkpoint(TRUNCATE)");

@@ -60,7 +60,8 @@ function findAxis(
   return (
     findVar(vars, (v) => v.shape.length === 1 && standard.includes(str(v, "standard_name"))) ??
     findVar(vars, (v) => v.shape.length === 1 && !!units && units.test(str(v, "units"))) ??
-    findVar(vars, (v) => v.shape.length === 1 && str(v, "axis").toUpperCase() === axis) ??
+    // (An empty `axis` asks for none: lon/lat are found by name, standard name or units only.)
+    findVar(vars, (v) => v.shape.length === 1 && axis !== "" && str(v, "axis").toUpperCase() === axis) ??
     findVar(vars, (v) => v.shape.length === 1 && names.test(v.name))
   );
 }

@@ -85,7 +85,13 @@ async function openHdf5(path: string): Promise<NetcdfSource> {
   }
   const globalAttrs: Record<string, AttrValue> = {};
   for (const [k, a] of Object.entries(file.attrs)) globalAttrs[k] = plainValue(a.value);
-  const dataset = (name: string) => file.get(name) as InstanceType<typeof h5wasm.Dataset>;
+  // One handle per variable: opening a dataset reads its metadata, too slow to repeat per slice.
+  const handles = new Map<string, InstanceType<typeof h5wasm.Dataset>>();
+  const dataset = (name: string) => {
+    let d = handles.get(name);
+    if (!d) handles.set(name, (d = file.get(name) as InstanceType<typeof h5wasm.Dataset>));
+    return d;
+  };
   return {
     encoding: "netcdf4",
     variables,
