@@ -21,7 +21,15 @@ export type PlotCurve = {
   doi?: string | null;
   points: { calBp: number; c14: number; sigma: number }[];
 };
-export type PlotMeasurement = { age: number; error: number; deltaR?: number | null; deltaRError?: number | null };
+export type PlotMeasurement = {
+  age: number;
+  error: number;
+  deltaR?: number | null;
+  deltaRError?: number | null;
+  /** Freshwater (hard-water) offset on an atmospheric curve, drawn like ΔR. */
+  freshwaterOffset?: number | null;
+  freshwaterOffsetError?: number | null;
+};
 export type PlotCalibration = {
   medianCalBp: number;
   hpd68: PlotRange[];
@@ -80,8 +88,10 @@ export function CalibrationPlot({
   const figureRef = useRef<HTMLElement>(null);
   const { density } = calibration;
   const window = plotWindow(density);
-  const deltaR = curve.kind === "marine" ? (measurement.deltaR ?? 0) : 0;
-  const deltaRError = curve.kind === "marine" ? (measurement.deltaRError ?? 0) : 0;
+  const freshwater = curve.kind !== "marine" && measurement.freshwaterOffset != null;
+  const deltaR = curve.kind === "marine" ? (measurement.deltaR ?? 0) : freshwater ? measurement.freshwaterOffset! : 0;
+  const deltaRError =
+    curve.kind === "marine" ? (measurement.deltaRError ?? 0) : freshwater ? (measurement.freshwaterOffsetError ?? 0) : 0;
   const points = curve.points
     .filter((p, i, all) => {
       // keep the window plus the one row beyond each end
@@ -154,8 +164,8 @@ export function CalibrationPlot({
   const rangesText = (list: PlotRange[]) => list.map((r) => `${formatRange(r, scale)} (${formatProbability(r.p)})`).join("; ");
   const curveName = `${curve.displayName} (${curve.version})`;
   const measured = `${groupThousands(Math.round(mu))} ± ${groupThousands(Math.round(sd))} ¹⁴C yr BP`;
-  const offset =
-    curve.kind === "marine" ? `, ΔR ${groupThousands(Math.round(deltaR))} ± ${groupThousands(Math.round(deltaRError))}` : "";
+  const offsetValue = `${groupThousands(Math.round(deltaR))} ± ${groupThousands(Math.round(deltaRError))}`;
+  const offset = curve.kind === "marine" ? `, ΔR ${offsetValue}` : freshwater ? `, freshwater offset ${offsetValue}` : "";
   const label =
     `Calibration of ${heading ? `${heading}, ` : ""}${measured} on ${curveName}${offset}: median ` +
     `${formatCalAge(calibration.medianCalBp, scale)}; 95.4 % range ${rangesText(calibration.hpd95)}.`;
@@ -241,8 +251,13 @@ export function CalibrationPlot({
         <RangeList label="68.3 %" ranges={calibration.hpd68} scale={scale} tone="bg-ice-600" />
         <RangeList label="95.4 %" ranges={calibration.hpd95} scale={scale} tone="bg-ice-300" />
         <p className="text-muted">
-          Curve band: ±1σ of the curve{curve.kind === "marine" ? " with ΔR added and its error in quadrature" : ""}. Curve:{" "}
-          {curve.citation}
+          Curve band: ±1σ of the curve
+          {curve.kind === "marine"
+            ? " with ΔR added and its error in quadrature"
+            : freshwater
+              ? " with the freshwater offset added and its error in quadrature"
+              : ""}
+          . Curve: {curve.citation}
           {curve.doi ? ` doi:${curve.doi}` : ""}
         </p>
       </figcaption>

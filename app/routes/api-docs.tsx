@@ -263,11 +263,32 @@ export default function ApiDocs({ loaderData }: Route.ComponentProps) {
     "lab_code": "XMPL-0812", "constraint_kind": "minimum",
     "c14_age": 9850, "c14_error": 40, "curve": "marine20", "delta_r": 150, "delta_r_error": 60
   }]'`}</Code>
-        <Code label="201">{`{"determination_ids": [812]}`}</Code>
-        <Code label="400">{`{"errors": [{"index": 0, "row": 1, "column": "c14_error", "message": "Give the error of c14_age (one standard deviation, in 14C years)."}]}`}</Code>
+        <Code label="201">{`{"determination_ids": [812], "warnings": []}`}</Code>
+        <Code label="400">{`{"errors": [{"index": 0, "row": 1, "column": "c14_error", "message": "Give the error of c14_age (one standard deviation, in ¹⁴C years)."}], "warnings": []}`}</Code>
         <p>
-          <code>index</code> counts from 0, <code>row</code> from 1. Too many rows or too large a body is <code>413</code>.
+          <code>index</code> counts from 0, <code>row</code> from 1. Too many rows or too large a body is <code>413</code>.{" "}
+          <code>warnings</code> has the same shape and never blocks: an input the registry assumed (a dose-rate error left out,
+          the internal K of a feldspar), a site in the southern hemisphere calibrated on a northern curve, an F¹⁴C near background
+          stored as a limit.
         </p>
+        <p>
+          A luminescence row without <code>dose_rate_gy_per_ka</code> has its dose rate computed by the registry from K, U, Th,
+          water content and burial depth with every term (beta attenuated by grain size and etching, gamma, alpha for fine grains
+          with their <code>a_value</code>, Rb, the internal K and Rb of K-feldspar, cosmic scaled to the site or the lab&apos;s
+          own) and the error propagated through each input. Give each input&apos;s 1σ in its <code>…_error…</code> column; one
+          left out is assumed at the default the column table below states, and the determination says so.
+        </p>
+        <Code>{`curl -s -X POST ${base}/api/v1/determinations -H "Authorization: Bearer <token>" \\
+  -H 'Content-Type: application/json' -d '[{
+    "site_name": "Example Terrace", "latitude": 57.9402, "longitude": -66.1037, "elevation_m": 88,
+    "sample_code": "EXT-L1", "material": "quartz", "method": "luminescence",
+    "lab_code": "XMPL-L001", "constraint_kind": "minimum", "signal": "OSL", "mineral": "quartz",
+    "de_gy": 18.2, "de_error_gy": 0.9, "measurement_year": 2023,
+    "k_percent": 1.6, "k_error_percent": 0.05, "u_ppm": 1.2, "u_error_ppm": 0.1,
+    "th_ppm": 4.5, "th_error_ppm": 0.3, "water_content": 0.15, "water_content_error": 0.05,
+    "grain_size_um": 180, "etch_depth_um": 10,
+    "burial_depth_m": 1.5, "burial_depth_error_m": 0.1, "density_g_cm3": 1.8, "density_error_g_cm3": 0.1
+  }]'`}</Code>
       </Endpoint>
 
       <Endpoint id="uploads" method="POST" path="/api/v1/uploads" who="A contributor's token.">
@@ -279,7 +300,8 @@ export default function ApiDocs({ loaderData }: Route.ComponentProps) {
         </p>
         <Code>{`curl -s -X POST ${base}/api/v1/uploads -H "Authorization: Bearer <token>" -F "file=@dates.csv"`}</Code>
         <Code label="200">{`{"upload_id": "q3V9…", "rows": 120, "valid": 118,
- "errors": [{"row": 14, "column": "latitude", "message": "Latitude 95 is outside −90 to 90."}]}`}</Code>
+ "errors": [{"row": 14, "column": "latitude", "message": "Latitude 95 is outside −90 to 90."}],
+ "warnings": [{"row": 20, "column": "internal_k_percent", "message": "K-feldspar: no internal K given; 12.5 ± 0.5 % (Huntley & Baril 1997) is assumed for the internal dose rate."}]}`}</Code>
         <p>
           A file that cannot be read, of the wrong kind or too large is answered with <code>400</code>, <code>413</code> or{" "}
           <code>415</code> and <code>{`{"error": "…"}`}</code>.

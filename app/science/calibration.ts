@@ -82,7 +82,7 @@ export function beyondCurve(prepared: PreparedCurve, input: CalibrationInput): s
   const name = input.curveLabel ?? prepared.name;
   const last = prepared.startCalBp + prepared.length - 1;
   const covers =
-    `${name} covers ${fmt(lim.min)}–${fmt(lim.max)} 14C yr BP${deltaR !== 0 ? ` with ΔR ${fmt(deltaR)}` : ""} ` +
+    `${name} covers ${fmt(lim.min)}–${fmt(lim.max)} ¹⁴C yr BP${deltaR !== 0 ? ` with ΔR ${fmt(deltaR)}` : ""} ` +
     `(${fmt(prepared.startCalBp)}–${fmt(last)} cal BP)`;
   const below = Math.hypot(input.error, drs, prepared.minC14Sigma) * REACH_SD;
   const above = Math.hypot(input.error, drs, prepared.maxC14Sigma) * REACH_SD;
@@ -91,15 +91,15 @@ export function beyondCurve(prepared: PreparedCurve, input: CalibrationInput): s
     const fOld = ageToF(lim.max);
     const sCurve = (fOld * Math.hypot(prepared.maxC14Sigma, drs)) / LIBBY;
     if (input.f14c! + REACH_SD * Math.hypot(input.f14cError!, sCurve) < fOld) {
-      return `F14C ${input.f14c!.toPrecision(3)} ± ${input.f14cError!.toPrecision(2)} is beyond the curve and cannot overlap it: even F14C + 2σ is below ${name}'s oldest value (${fOld.toPrecision(3)}); ${covers}.`;
+      return `F¹⁴C ${input.f14c!.toPrecision(3)} ± ${input.f14cError!.toPrecision(2)} is beyond the curve and cannot overlap it: even F¹⁴C + 2σ is below ${name}'s oldest value (${fOld.toPrecision(3)}); ${covers}.`;
     }
     return null;
   }
   if (input.age + below < lim.min) {
-    return `${fmt(input.age)} ± ${fmt(input.error)} 14C yr BP is beyond the curve and cannot overlap it: even its age + 2σ (${fmt(input.age + below)}) is younger than the curve reaches; ${covers}.`;
+    return `${fmt(input.age)} ± ${fmt(input.error)} ¹⁴C yr BP is beyond the curve and cannot overlap it: even its age + 2σ (${fmt(input.age + below)}) is younger than the curve reaches; ${covers}.`;
   }
   if (input.age - above > lim.max) {
-    return `${fmt(input.age)} ± ${fmt(input.error)} 14C yr BP is beyond the curve and cannot overlap it: even its age − 2σ (${fmt(input.age - above)}) is older than the curve reaches; ${covers}.`;
+    return `${fmt(input.age)} ± ${fmt(input.error)} ¹⁴C yr BP is beyond the curve and cannot overlap it: even its age − 2σ (${fmt(input.age - above)}) is older than the curve reaches; ${covers}.`;
   }
   return null;
 }
@@ -159,7 +159,7 @@ export function calibrate(prepared: PreparedCurve, input: CalibrationInput): Cal
   }
   if (bFirst < 0) {
     // Only reachable if the curve has gaps in 14C coverage wider than the cutoff.
-    throw new CalibrationError(`${fmt(age)} 14C yr BP matches no part of ${input.curveLabel ?? prepared.name}.`, "beyond-curve");
+    throw new CalibrationError(`${fmt(age)} ¹⁴C yr BP matches no part of ${input.curveLabel ?? prepared.name}.`, "beyond-curve");
   }
   const g0 = bFirst * blockSize;
   const g1 = Math.min(length, (bLast + 1) * blockSize);
@@ -222,7 +222,7 @@ function likelihoodInF14c(prepared: PreparedCurve, input: CalibrationInput): Lik
   }
   if (!(max > 0)) {
     throw new CalibrationError(
-      `F14C ${f.toPrecision(3)} matches no part of ${input.curveLabel ?? prepared.name}.`,
+      `F¹⁴C ${f.toPrecision(3)} matches no part of ${input.curveLabel ?? prepared.name}.`,
       "beyond-curve",
     );
   }
@@ -252,6 +252,6 @@ function finish(prepared: PreparedCurve, input: CalibrationInput, l: Likelihood,
     );
   }
   if (inF14cSpace)
-    notes.push("Near background: the likelihood was computed in F14C, where the measurement's error is symmetric.");
+    notes.push("Near background: the likelihood was computed in F¹⁴C, where the measurement's error is symmetric.");
   return { ...summary, curveName: prepared.name, density, atCurveLimit, inF14cSpace, notes };
 }

@@ -131,7 +131,7 @@ export function validateCurve(
       continue;
     }
     if (!(sigma[i] > 0)) {
-      issues.push({ ...at(i), message: `The 14C error at ${calBp[i]} cal BP is ${sigma[i]}; it must be positive.` });
+      issues.push({ ...at(i), message: `The ¹⁴C error at ${calBp[i]} cal BP is ${sigma[i]}; it must be positive.` });
     }
     if (i > 0) {
       const step = calBp[i] - calBp[i - 1];

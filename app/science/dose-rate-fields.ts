@@ -27,6 +27,8 @@ export interface DoseRateFields {
   aValueError?: number | null;
   internalKPercent?: number | null;
   internalKErrorPercent?: number | null;
+  internalRbPpm?: number | null;
+  internalRbErrorPpm?: number | null;
   burialDepthM?: number | null;
   burialDepthErrorM?: number | null;
   densityGPerCm3?: number | null;
@@ -167,6 +169,7 @@ export function doseRateFromFields(f: DoseRateFields): FieldsDoseRate | null {
       grain: { kind, diameterUm: diameter, etchUm: etch },
       aValue: f.aValue == null ? null : given(f.aValue, f.aValueError),
       internalK: f.internalKPercent == null ? null : given(f.internalKPercent, f.internalKErrorPercent),
+      internalRb: f.internalRbPpm == null ? null : given(f.internalRbPpm, f.internalRbErrorPpm),
       depthM: given(f.burialDepthM ?? 0, f.burialDepthErrorM),
       density: { value: density.value, error: density.error },
       site: f.site ?? null,

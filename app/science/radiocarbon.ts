@@ -141,7 +141,7 @@ export function normaliseMeasurement(input: NormalisationInput): NormalisedMeasu
     // A blank-corrected F14C can fall slightly below zero near background; that is still a
     // measurement (it yields a limit), so only non-numbers are refused here.
     if (!Number.isFinite(m.f14c)) {
-      throw new RadiocarbonInputError("F14C must be a number.", "f14c");
+      throw new RadiocarbonInputError("F¹⁴C must be a number.", "f14c");
     }
     f = m.f14c;
     sf = m.error;
@@ -246,7 +246,7 @@ export function interpretRadiocarbon(input: RadiocarbonInput): RadiocarbonInterp
     const fromF = input.measurement.f14c !== undefined;
     const minAge = fromF ? limitAgeFromF14c(n.f14c, n.f14cError) : n.age;
     if (!Number.isFinite(minAge)) {
-      return { kind: "invalid", field: "f14c", message: "F14C + 2σ must be above zero to give a limiting age." };
+      return { kind: "invalid", field: "f14c", message: "F¹⁴C + 2σ must be above zero to give a limiting age." };
     }
     return {
       kind: "limit",
@@ -254,8 +254,8 @@ export function interpretRadiocarbon(input: RadiocarbonInput): RadiocarbonInterp
       f14c: n.f14c,
       f14cError: n.f14cError,
       message: fromF
-        ? `Reported as a limit: greater than ${fmtYears(minAge)} 14C yr BP (from F14C + 2σ), stored as a limit and not calibrated.`
-        : `Reported as greater than ${fmtYears(minAge)} 14C yr BP: stored as a limit and not calibrated.`,
+        ? `Reported as a limit: greater than ${fmtYears(minAge)} ¹⁴C yr BP (from F¹⁴C + 2σ), stored as a limit and not calibrated.`
+        : `Reported as greater than ${fmtYears(minAge)} ¹⁴C yr BP: stored as a limit and not calibrated.`,
     };
   }
   if (isNearBackground(n.f14c, n.f14cError)) {
@@ -263,7 +263,7 @@ export function interpretRadiocarbon(input: RadiocarbonInput): RadiocarbonInterp
       return {
         kind: "invalid",
         field: "f14c",
-        message: "F14C is below zero by more than twice its error; check the value and its error.",
+        message: "F¹⁴C is below zero by more than twice its error; check the value and its error.",
       };
     }
     const minAge = limitAgeFromF14c(n.f14c, n.f14cError);
@@ -273,8 +273,8 @@ export function interpretRadiocarbon(input: RadiocarbonInput): RadiocarbonInterp
       f14c: n.f14c,
       f14cError: n.f14cError,
       message:
-        `F14C ${n.f14c.toPrecision(3)} ± ${n.f14cError.toPrecision(3)} is within 2σ of zero: ` +
-        `reported as greater than ${fmtYears(minAge)} 14C yr BP (from F14C + 2σ) and not calibrated.`,
+        `F¹⁴C ${n.f14c.toPrecision(3)} ± ${n.f14cError.toPrecision(3)} is within 2σ of zero: ` +
+        `reported as greater than ${fmtYears(minAge)} ¹⁴C yr BP (from F¹⁴C + 2σ) and not calibrated.`,
     };
   }
   if (isPostBomb(n.f14c, n.f14cError)) {
@@ -284,12 +284,12 @@ export function interpretRadiocarbon(input: RadiocarbonInput): RadiocarbonInterp
       f14cError: n.f14cError,
       age: n.age,
       message:
-        `F14C ${n.f14c.toFixed(4)} ± ${n.f14cError.toFixed(4)} is above 1 by more than 2σ (age ${fmtYears(n.age)} BP): a post-bomb sample, ` +
+        `F¹⁴C ${n.f14c.toFixed(4)} ± ${n.f14cError.toFixed(4)} is above 1 by more than 2σ (age ${fmtYears(n.age)} BP): a post-bomb sample, ` +
         `which the bundled curves (ending at AD 1950) cannot calibrate.`,
     };
   }
   if (!Number.isFinite(n.age) || !Number.isFinite(n.ageError)) {
-    return { kind: "invalid", field: "f14c", message: "F14C must be greater than zero to give an age." };
+    return { kind: "invalid", field: "f14c", message: "F¹⁴C must be greater than zero to give an age." };
   }
   if (!(n.ageError > 0)) {
     return { kind: "invalid", field: "error", message: "The error must be greater than zero to calibrate." };

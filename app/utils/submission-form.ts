@@ -5,6 +5,7 @@
 
 import { z } from "zod";
 import { isBlankCell } from "#app/utils/determination-input/cells.ts";
+import { inFormWords } from "#app/utils/determination-input/form-words.ts";
 import { makeRowSchema } from "#app/utils/determination-input/schema.ts";
 import type { DeterminationRow, Region, RowContext, RowIssue } from "#app/utils/determination-input/row.ts";
 
@@ -53,8 +54,9 @@ export function makeSubmissionSchema(ctx: RowContext, serverChecks?: (value: Sub
     .object({ site_choice: z.unknown().optional(), site_id: z.unknown().optional() })
     .loose()
     .transform((raw, zctx): SubmissionValue => {
+      // The row check names columns; the form speaks of its fields by their labels.
       const issue = (column: string, message: string) =>
-        zctx.addIssue({ code: "custom", path: [column], message, input: raw[column] });
+        zctx.addIssue({ code: "custom", path: [column], message: inFormWords(message), input: raw[column] });
       const siteChoice: SiteChoice = raw.site_choice === "existing" ? "existing" : "new";
       let siteId: number | null = null;
       let failed = false;
@@ -110,6 +112,11 @@ export const PREVIEW_COLUMNS = [
   "curve",
   "delta_r",
   "delta_r_error",
+  "freshwater_offset",
+  "freshwater_offset_error",
+  "normalised_to_zero_permil",
+  "signal",
+  "mineral",
   "de_gy",
   "de_error_gy",
   "dose_rate_gy_per_ka",
@@ -120,11 +127,30 @@ export const PREVIEW_COLUMNS = [
   "water_content",
   "burial_depth_m",
   "density_g_cm3",
+  "k_error_percent",
+  "u_error_ppm",
+  "th_error_ppm",
+  "rb_ppm",
+  "rb_error_ppm",
+  "water_content_error",
+  "grain_size_um",
+  "grain_use",
+  "etch_depth_um",
+  "a_value",
+  "a_value_error",
+  "internal_k_percent",
+  "internal_k_error_percent",
+  "internal_rb_ppm",
+  "internal_rb_error_ppm",
+  "burial_depth_error_m",
+  "density_error_g_cm3",
+  "lab_cosmic_gy_per_ka",
+  "lab_cosmic_error_gy_per_ka",
   "measurement_year",
 ] as const;
 
-/** The live preview's answer. */
-export type PreviewResult =
+/** The live preview's answer; `warnings` are the row check's cautions, each at its field. */
+export type PreviewResult = { warnings?: RowIssue[] } & (
   | { state: "empty"; message: string }
   | { state: "incomplete"; column: string; message: string }
   | { state: "no-age"; message: string; label: string }
@@ -136,4 +162,5 @@ export type PreviewResult =
       hpd95: { from: number; to: number; p: number }[];
       /** Luminescence: the age in ka and the dose rate it used (computed from K, U, Th when not given). */
       luminescence?: { ageKa: number; errorKa: number; doseRate: number; doseRateError: number; computed: boolean };
-    };
+    }
+);

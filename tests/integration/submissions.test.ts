@@ -314,7 +314,9 @@ describe("/submit: bad input", () => {
     const out = await submit(radiocarbonForm({ c14_error: "", latitude: "95", material: "quartz", lab_name: "" }));
     expect(out.status).toBe(400);
     const errors = fieldErrors(out);
-    expect(errors.c14_error?.[0]).toMatch(/error of c14_age/);
+    // The form speaks of its fields by their labels, not the upload's column names.
+    expect(errors.c14_error?.[0]).toMatch(/error of ¹⁴C age/);
+    expect(errors.c14_error?.[0]).not.toMatch(/c14_/);
     expect(errors.latitude?.[0]).toMatch(/outside −90 to 90/);
     expect(errors.material?.[0]).toMatch(/quartz is dated by luminescence/);
     expect(errors.lab_name?.[0]).toMatch(/Choose the laboratory/);

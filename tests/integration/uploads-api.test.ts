@@ -67,7 +67,7 @@ describe("POST /api/v1/uploads and /commit", () => {
       valid: number;
       errors: { row: number; column: string; message: string }[];
     };
-    expect(Object.keys(body).sort()).toEqual(["errors", "rows", "upload_id", "valid"]);
+    expect(Object.keys(body).sort()).toEqual(["errors", "rows", "upload_id", "valid", "warnings"]);
     expect(body).toMatchObject({ rows: 8, valid: 7 });
     expect(body.errors).toEqual([{ row: 4, column: "c14_error", message: expect.stringContaining("must be greater than zero") }]);
     expect(count()).toBe(before);
@@ -150,6 +150,7 @@ describe("POST /api/v1/determinations", () => {
     expect(refused.status).toBe(400);
     expect(refused.data).toEqual({
       errors: [{ index: 2, row: 3, column: "latitude", message: expect.stringContaining("outside −90 to 90") }],
+      warnings: expect.any(Array),
     });
     expect(count()).toBe(before);
     const created = await run(() => determinationsApi.action(args(jsonPost("/api/v1/determinations", rows, person.token))));
@@ -169,7 +170,10 @@ describe("POST /api/v1/determinations", () => {
         args(jsonPost("/api/v1/determinations", [{ ...rows[0], lab_code: "ZZU-1", colour: "red" }], person.token)),
       ),
     );
-    expect(unknown.data).toEqual({ errors: [{ index: 0, row: 1, column: "colour", message: 'Unknown field "colour".' }] });
+    expect(unknown.data).toEqual({
+      warnings: [],
+      errors: [{ index: 0, row: 1, column: "colour", message: 'Unknown field "colour".' }],
+    });
   });
 });
 

@@ -125,7 +125,7 @@ describe("validation of an upload", () => {
     const { validation } = await upload(rows);
     const row = (i: number) => i + 2; // header is row 1
     expect(errorAt(validation, row(at[0]!), "c14_age")).toContain("use a point as the decimal separator");
-    expect(errorAt(validation, row(at[1]!), "c14_error")).toMatch(/plain number in 14C yr.*leave the unit out/);
+    expect(errorAt(validation, row(at[1]!), "c14_error")).toMatch(/plain number in ¹⁴C yr.*leave the unit out/);
     expect(errorAt(validation, row(at[2]!), "c14_age")).toContain("12 ka is 12000 years");
     expect(errorAt(validation, row(at[3]!), "c14_age")).toContain("is a date");
     expect(errorAt(validation, row(at[4]!), "latitude")).toContain("look swapped");

@@ -112,7 +112,7 @@ describe("checkRow", () => {
 
   it("reports comma decimals, units, dates and ± in numeric columns, each with its own message", () => {
     expect(issueAt(c14({ c14_age: "10,5" }), "c14_age")).toContain("use a point as the decimal separator");
-    expect(issueAt(c14({ c14_error: "45 yr" }), "c14_error")).toMatch(/takes a plain number in 14C yr.*leave the unit out/);
+    expect(issueAt(c14({ c14_error: "45 yr" }), "c14_error")).toMatch(/takes a plain number in ¹⁴C yr.*leave the unit out/);
     expect(issueAt(c14({ c14_age: "12 ka" }), "c14_age")).toContain("12 ka is 12000 years");
     expect(issueAt(c14({ c14_age: "2021-03-04" }), "c14_age")).toContain("is a date");
     expect(issueAt(c14({ c14_age: new Date(Date.UTC(2021, 2, 4)) }), "c14_age")).toContain("holds a date");

@@ -9,6 +9,7 @@ import {
   type PreviewResult,
   type SubmissionValue,
 } from "#app/utils/submission-form.ts";
+import { FieldWarningsProvider } from "./field-warnings.tsx";
 import type { Fields } from "./fields.tsx";
 import { LuminescenceSection } from "./luminescence-section.tsx";
 import { MeasurementSection } from "./measurement-section.tsx";
@@ -79,12 +80,14 @@ export function DeterminationForm({
             {form.errors.join(" ")}
           </p>
         ) : null}
-        <SiteSection f={f} sites={options.sites} start={start} />
-        <SampleSection f={f} choices={choices} />
-        <MeasurementSection f={f} choices={choices} labs={options.labs} defaultKind={defaultValue.constraint_kind} />
-        <RadiocarbonSection f={f} choices={choices} curves={options.curves} />
-        <LuminescenceSection f={f} method={choices.method} />
-        <ProvenanceSection f={f} />
+        <FieldWarningsProvider warnings={preview.data?.warnings}>
+          <SiteSection f={f} sites={options.sites} start={start} />
+          <SampleSection f={f} choices={choices} />
+          <MeasurementSection f={f} choices={choices} labs={options.labs} defaultKind={defaultValue.constraint_kind} />
+          <RadiocarbonSection f={f} choices={choices} curves={options.curves} />
+          <LuminescenceSection f={f} method={choices.method} />
+          <ProvenanceSection f={f} />
+        </FieldWarningsProvider>
         <div className="flex flex-wrap items-center gap-4">
           <button type="submit" className="btn" disabled={navigation.state === "submitting"}>
             {navigation.state === "submitting" ? "Saving…" : submitLabel}

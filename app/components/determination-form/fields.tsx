@@ -3,6 +3,7 @@ import { Link } from "react-router";
 import { FieldErrors } from "#app/components/ui/field-errors.tsx";
 import { columnSpec } from "#app/utils/determination-input/columns.ts";
 import { existingRecordLink } from "#app/utils/submission-form.ts";
+import { FieldWarning } from "./field-warnings.tsx";
 
 /* The determination form's field pieces: labels, units and help come from the upload template's column catalogue. */
 
@@ -80,6 +81,7 @@ export function TextField({
         </p>
       ) : null}
       <FieldError field={field} />
+      <FieldWarning column={column} />
     </div>
   );
 }

@@ -1,4 +1,4 @@
-import { formatCal, formatCalRange, formatProbability } from "#app/utils/age-format.ts";
+import { formatCal, formatCalRange, formatProbability, formatValueError, UNITS } from "#app/utils/age-format.ts";
 import type { PreviewResult } from "#app/utils/submission-form.ts";
 
 /** The live calendar age beside the form. */
@@ -49,10 +49,10 @@ function PreviewAge({ state }: { state: Extract<PreviewResult, { state: "ok" }> 
         </ul>
       </div>
       {state.luminescence ? (
-        <p className="text-sm">
-          {state.luminescence.ageKa.toFixed(2)} ± {state.luminescence.errorKa.toFixed(2)} ka before measurement; dose rate{" "}
-          {state.luminescence.doseRate.toFixed(3)} ± {state.luminescence.doseRateError.toFixed(3)} Gy/ka
-          {state.luminescence.computed ? " (computed from K, U, Th)" : ""}
+        <p className="text-sm" data-testid="preview-luminescence">
+          {formatValueError(state.luminescence.ageKa, state.luminescence.errorKa, UNITS.ka)} before measurement; dose rate{" "}
+          {formatValueError(state.luminescence.doseRate, state.luminescence.doseRateError, UNITS.gyPerKa)}
+          {state.luminescence.computed ? " (computed from the inputs with every term and error)" : " (the lab's value)"}
         </p>
       ) : null}
       <p className="text-sm text-muted">On {state.label}. Calibrated ages depend on the curve and its version.</p>

@@ -1,5 +1,6 @@
 import { getInputProps, getSelectProps } from "@conform-to/react";
 import type { FormOptions } from "#app/utils/submission-form.ts";
+import { FieldWarning } from "./field-warnings.tsx";
 import { FieldError, Radio, TextField, type Fields } from "./fields.tsx";
 import type { MeasurementChoices } from "./use-measurement-choices.ts";
 
@@ -31,7 +32,7 @@ export function RadiocarbonSection({
           Conventional age (¹⁴C yr BP)
         </Radio>
         <Radio name="c14_input" value="f14c" checked={c14Input === "f14c"} onChange={setC14Input}>
-          F14C
+          F¹⁴C
         </Radio>
       </div>
       <fieldset disabled={c14Input !== "age"} hidden={c14Input !== "age"} className="contents">
@@ -44,10 +45,10 @@ export function RadiocarbonSection({
       </fieldset>
       <TextField field={f.d13c!} column="d13c" inputMode="decimal" />
       <div className="field">
-        <label htmlFor={f.age_normalised!.id}>Already δ13C-normalised?</label>
+        <label htmlFor={f.age_normalised!.id}>Already δ¹³C-normalised?</label>
         <select {...getSelectProps(f.age_normalised!, { ariaDescribedBy: `${f.age_normalised!.id}-help` })} className="input">
           <option value="yes">yes — a conventional age</option>
-          <option value="no">no — normalise it with the δ13C given</option>
+          <option value="no">no — normalise it with the δ¹³C given</option>
         </select>
         <p id={`${f.age_normalised!.id}-help`} className="text-sm text-muted">
           An age is never normalised twice.
@@ -62,6 +63,15 @@ export function RadiocarbonSection({
           </span>
         </label>
         <FieldError field={f.greater_than!} />
+      </div>
+      <div className="field sm:col-span-2">
+        <label className="flex items-baseline gap-2 font-normal text-ink">
+          <input {...getInputProps(f.normalised_to_zero_permil!, { type: "checkbox", value: "yes" })} />
+          <span>
+            Normalised to δ¹³C = 0 ‰ <span className="text-muted">— an older shell age; brought to −25 ‰ before calibration</span>
+          </span>
+        </label>
+        <FieldError field={f.normalised_to_zero_permil!} />
       </div>
       <TextField field={f.pretreatment!} column="pretreatment" />
       <div className="field">
@@ -81,8 +91,10 @@ export function RadiocarbonSection({
           ))}
         </select>
         <FieldError field={f.curve!} />
+        <FieldWarning column="curve" />
       </div>
       <MarineReservoirFields f={f} choices={choices} />
+      <FreshwaterFields f={f} choices={choices} />
     </fieldset>
   );
 }
@@ -111,11 +123,34 @@ function MarineReservoirFields({ f, choices }: { f: Fields; choices: Measurement
           ))}
         </select>
         <FieldError field={f.delta_r_curve!} />
+        <FieldWarning column="delta_r_curve" />
       </div>
       <p className="text-sm text-muted sm:col-span-3">
         Marine ages depend on ΔR, and Marine20 is not meant for polar waters without great care. Without ΔR the age is calibrated
         with ΔR 0 ± 0, which is rarely right.
       </p>
+    </fieldset>
+  );
+}
+
+/** The freshwater (hard-water) offset of lake and river material, on an atmospheric curve. */
+function FreshwaterFields({ f, choices }: { f: Fields; choices: MeasurementChoices }) {
+  const atmospheric = !choices.isMarine;
+  return (
+    <fieldset
+      disabled={!atmospheric}
+      hidden={!atmospheric}
+      className="grid gap-4 sm:col-span-2 sm:grid-cols-2"
+      data-testid="freshwater-fields"
+    >
+      <legend className="text-sm font-semibold text-muted">Freshwater (hard-water) offset — lake and river material</legend>
+      <TextField field={f.freshwater_offset!} column="freshwater_offset" inputMode="decimal" />
+      <TextField
+        field={f.freshwater_offset_error!}
+        column="freshwater_offset_error"
+        inputMode="decimal"
+        label="Freshwater offset ± 1σ"
+      />
     </fieldset>
   );
 }

@@ -85,6 +85,8 @@ export function plotForDetermination(db: Db, determinationId: number): Calibrati
       error: interpreted.error,
       deltaR: marine ? (d.deltaRYr ?? 0) : null,
       deltaRError: marine ? (d.deltaRErrorYr ?? 0) : null,
+      freshwaterOffset: marine ? null : d.freshwaterOffsetYr,
+      freshwaterOffsetError: marine ? null : d.freshwaterOffsetErrorYr,
     },
     calibration: {
       medianCalBp: c.medianCalBp,

@@ -38,6 +38,9 @@ export type MeasurementFields = Pick<
   | "curveName"
   | "deltaRYr"
   | "deltaRErrorYr"
+  | "freshwaterOffsetYr"
+  | "freshwaterOffsetErrorYr"
+  | "normalisedToZeroPermil"
   | "deGy"
   | "deErrorGy"
   | "doseRateGyPerKa"
@@ -50,7 +53,8 @@ export type MeasurementFields = Pick<
  * not yet; a limit or a post-bomb value is not an age.
  */
 export function interpretMeasurement(
-  d: Pick<MeasurementFields, "c14AgeYr" | "c14ErrorYr" | "f14c" | "f14cError" | "d13cPermil" | "ageNormalised" | "isLimit">,
+  d: Pick<MeasurementFields, "c14AgeYr" | "c14ErrorYr" | "f14c" | "f14cError" | "d13cPermil" | "ageNormalised" | "isLimit"> &
+    Partial<Pick<MeasurementFields, "normalisedToZeroPermil">>,
 ) {
   return interpretRadiocarbon({
     measurement:
@@ -59,6 +63,7 @@ export function interpretMeasurement(
         : { f14c: d.f14c ?? Number.NaN, error: d.f14cError ?? Number.NaN },
     d13c: d.d13cPermil,
     alreadyNormalised: d.ageNormalised,
+    normalisedToZeroPermil: d.normalisedToZeroPermil ?? false,
     reportedAsLimit: d.isLimit,
   });
 }
@@ -80,6 +85,9 @@ export function radiocarbonAgeFields(
     curveName,
     deltaRYr: item.delta_r ?? null,
     deltaRErrorYr: item.delta_r_error ?? null,
+    freshwaterOffsetYr: null,
+    freshwaterOffsetErrorYr: null,
+    normalisedToZeroPermil: false,
     deGy: null,
     deErrorGy: null,
     doseRateGyPerKa: null,
@@ -95,12 +103,15 @@ export function radiocarbonAgeFields(
  */
 export function calibrationInputFor(
   curve: CurveRow,
-  d: Pick<MeasurementFields, "deltaRYr" | "deltaRErrorYr">,
+  d: Pick<MeasurementFields, "deltaRYr" | "deltaRErrorYr"> &
+    Partial<Pick<MeasurementFields, "freshwaterOffsetYr" | "freshwaterOffsetErrorYr">>,
   interpreted: { age: number; error: number; f14c: number; f14cError: number },
 ): CalibrationInput {
   const offset = appliedOffset(curve.kind === "marine" ? "marine" : "atmospheric", {
     deltaR: d.deltaRYr,
     deltaRError: d.deltaRErrorYr,
+    freshwaterOffset: d.freshwaterOffsetYr,
+    freshwaterOffsetError: d.freshwaterOffsetErrorYr,
   });
   return {
     age: interpreted.age,
@@ -113,9 +124,17 @@ export function calibrationInputFor(
   };
 }
 
-export function curveLabel(curve: CurveRow, deltaR?: number | null, deltaRError?: number | null): string {
+export function curveLabel(
+  curve: CurveRow,
+  deltaR?: number | null,
+  deltaRError?: number | null,
+  freshwater?: { offset: number | null; error: number | null },
+): string {
   const base = `${curve.displayName} (${curve.version})`;
-  if (curve.kind !== "marine") return base;
+  if (curve.kind !== "marine") {
+    if (freshwater?.offset == null) return base;
+    return `${base}, freshwater offset ${fmt(freshwater.offset)} ± ${fmt(freshwater.error ?? 0)}`;
+  }
   if (deltaR == null) return `${base}, ΔR 0 ± 0 (none given)`;
   return `${base}, ΔR ${fmt(deltaR)} ± ${fmt(deltaRError ?? 0)}`;
 }
@@ -138,7 +157,10 @@ export function calendarOutcome(
     const name = (d.curveName ?? "intcal20").toLowerCase();
     const curve = curveFor(name);
     if (!curve) return { ok: false, curve: null, label: name, error: `No active curve named "${name}".` };
-    const label = curveLabel(curve, d.deltaRYr, d.deltaRErrorYr);
+    const label = curveLabel(curve, d.deltaRYr, d.deltaRErrorYr, {
+      offset: d.freshwaterOffsetYr,
+      error: d.freshwaterOffsetErrorYr,
+    });
     const interpreted = interpretMeasurement(d);
     if (interpreted.kind !== "age") return { ok: false, curve, label, error: interpreted.message };
     try {

@@ -1,4 +1,6 @@
 import { and, asc, desc, eq, ne, sql } from "drizzle-orm";
+import { hemisphereWarning } from "#app/science/reservoir.ts";
+import { curveWords } from "#app/utils/labels.ts";
 import type { Db } from "#app/db/client.server.ts";
 import {
   auditLog,
@@ -195,8 +197,16 @@ export function determinationDetail(db: Db, id: number) {
     whole: r.before == null && r.after != null ? "created" : r.after == null && r.before != null ? "removed" : null,
   }));
 
+  const d = head.determination;
+  // A site calibrated on the other hemisphere's atmospheric curve (marine curves have none).
+  const hemisphere =
+    d.method === "radiocarbon" && d.curveName
+      ? hemisphereWarning(head.site.latitude, d.curveName, curveWords(d.curveName))
+      : null;
+
   return {
     ...head,
+    hemisphere,
     publication: head.publication?.id != null ? head.publication : null,
     contributor: head.contributor?.id != null ? head.contributor : null,
     upload: head.upload?.publicId != null ? head.upload : null,

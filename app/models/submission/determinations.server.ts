@@ -9,8 +9,10 @@ import type { SQLiteTable } from "drizzle-orm/sqlite-core";
 import type { Db } from "#app/db/client.server.ts";
 import { auditLog, determinations, labs, publications, samples, sites, type Method } from "#app/db/schema.ts";
 import type { MeasurementFields } from "#app/models/calibration/calibrations.server.ts";
-import { doseRateFromFields, type DoseRateFields } from "#app/science/dose-rate-fields.ts";
+import { doseRateFromFields } from "#app/science/dose-rate-fields.ts";
 import { DEFAULT_CONVERSION_FACTORS } from "#app/science/luminescence.ts";
+import { interpretRadiocarbon } from "#app/science/radiocarbon.ts";
+import { rowDoseRateFields } from "#app/utils/determination-input/dose-rate-row.ts";
 import type { DeterminationRow as ValidatedRow } from "#app/utils/determination-input/row.ts";
 
 export type NewLab = typeof labs.$inferInsert;
@@ -64,22 +66,6 @@ export function sampleValues(row: ValidatedRow) {
   } satisfies Partial<NewSample>;
 }
 
-/** A row's dose-rate fields as the one reading of them (dose-rate-fields.ts) takes them. */
-export function rowDoseRateFields(row: ValidatedRow): DoseRateFields {
-  return {
-    signal: row.signal ?? null,
-    mineral: row.mineral ?? null,
-    kPercent: row.k_percent ?? null,
-    uPpm: row.u_ppm ?? null,
-    thPpm: row.th_ppm ?? null,
-    waterContentFraction: row.water_content ?? null,
-    grainSizeUm: row.grain_size_um ?? null,
-    burialDepthM: row.burial_depth_m ?? null,
-    densityGPerCm3: row.density_g_cm3 ?? null,
-    site: { latitude: row.latitude, longitude: row.longitude, elevationM: row.elevation_m ?? null },
-  };
-}
-
 /**
  * The dose rate a luminescence row is calibrated with: given, or computed from K, U, Th and
  * water with every term and every error (defaults assumed where the lab gave none).
@@ -91,6 +77,21 @@ export function rowDoseRate(row: ValidatedRow): { value: number; error: number; 
   const r = doseRateFromFields(rowDoseRateFields(row));
   if (!r?.ok) return null;
   return { value: r.result.total, error: r.result.totalError, computed: true };
+}
+
+/**
+ * A measurement given as F14C within 2σ of zero (blank-corrected values may be slightly
+ * negative) is a limit, as the science reads it: it is stored as one, not as an age.
+ */
+function nearBackground(row: ValidatedRow): boolean {
+  if (row.c14_age != null || row.f14c == null || row.f14c_error == null) return false;
+  const r = interpretRadiocarbon({
+    measurement: { f14c: row.f14c, error: row.f14c_error },
+    d13c: row.d13c,
+    alreadyNormalised: row.age_normalised,
+    normalisedToZeroPermil: row.normalised_to_zero_permil,
+  });
+  return r.kind === "limit";
 }
 
 /**
@@ -114,25 +115,47 @@ export function determinationValues(row: ValidatedRow) {
     f14cError: onlyC14(row.f14c_error),
     d13cPermil: onlyC14(row.d13c),
     ageNormalised: c14 ? row.age_normalised : true,
-    isLimit: c14 ? row.greater_than : false,
+    isLimit: c14 ? row.greater_than || nearBackground(row) : false,
     pretreatment: onlyC14(row.pretreatment),
     curveName: c14 ? (row.curve ?? "intcal20") : null,
     deltaRYr: onlyC14(row.delta_r),
     deltaRErrorYr: onlyC14(row.delta_r_error),
     deltaRCurve: onlyC14(row.delta_r_curve),
+    freshwaterOffsetYr: onlyC14(row.freshwater_offset),
+    freshwaterOffsetErrorYr: onlyC14(row.freshwater_offset_error),
+    normalisedToZeroPermil: c14 ? row.normalised_to_zero_permil : false,
     signal: onlyLum(row.signal),
     mineral: onlyLum(row.mineral),
     deGy: onlyLum(row.de_gy),
     deErrorGy: onlyLum(row.de_error_gy),
     doseRateGyPerKa: rate?.value ?? null,
     doseRateErrorGyPerKa: rate?.error ?? null,
+    doseRateComputed: rate?.computed ?? false,
     kPercent: onlyLum(row.k_percent),
+    kErrorPercent: onlyLum(row.k_error_percent),
     uPpm: onlyLum(row.u_ppm),
+    uErrorPpm: onlyLum(row.u_error_ppm),
     thPpm: onlyLum(row.th_ppm),
+    thErrorPpm: onlyLum(row.th_error_ppm),
+    rbPpm: onlyLum(row.rb_ppm),
+    rbErrorPpm: onlyLum(row.rb_error_ppm),
     waterContentFraction: onlyLum(row.water_content),
+    waterContentError: onlyLum(row.water_content_error),
     grainSizeUm: onlyLum(row.grain_size_um),
+    grainUse: onlyLum(row.grain_use),
+    etchDepthUm: onlyLum(row.etch_depth_um),
+    aValue: onlyLum(row.a_value),
+    aValueError: onlyLum(row.a_value_error),
+    internalKPercent: onlyLum(row.internal_k_percent),
+    internalKErrorPercent: onlyLum(row.internal_k_error_percent),
+    internalRbPpm: onlyLum(row.internal_rb_ppm),
+    internalRbErrorPpm: onlyLum(row.internal_rb_error_ppm),
     burialDepthM: onlyLum(row.burial_depth_m),
+    burialDepthErrorM: onlyLum(row.burial_depth_error_m),
     densityGPerCm3: onlyLum(row.density_g_cm3),
+    densityErrorGPerCm3: onlyLum(row.density_error_g_cm3),
+    labCosmicGyPerKa: onlyLum(row.lab_cosmic_gy_per_ka),
+    labCosmicErrorGyPerKa: onlyLum(row.lab_cosmic_error_gy_per_ka),
     conversionFactors: rate?.computed ? DEFAULT_CONVERSION_FACTORS : null,
     measurementYear: onlyLum(row.measurement_year),
     aliquots: onlyLum(row.aliquots),
@@ -156,6 +179,9 @@ export function measurementFields(row: ValidatedRow): MeasurementFields {
     curveName: v.curveName,
     deltaRYr: v.deltaRYr,
     deltaRErrorYr: v.deltaRErrorYr,
+    freshwaterOffsetYr: v.freshwaterOffsetYr,
+    freshwaterOffsetErrorYr: v.freshwaterOffsetErrorYr,
+    normalisedToZeroPermil: v.normalisedToZeroPermil,
     deGy: v.deGy,
     deErrorGy: v.deErrorGy,
     doseRateGyPerKa: v.doseRateGyPerKa,

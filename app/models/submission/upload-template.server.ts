@@ -17,12 +17,15 @@ const REQUIRED = new Set([
 
 function requirement(name: string): string {
   if (REQUIRED.has(name)) return "always";
-  if (["c14_age", "c14_error", "f14c", "f14c_error"].includes(name)) return "radiocarbon: age ± error or F14C ± error";
+  if (["c14_age", "c14_error", "f14c", "f14c_error"].includes(name)) return "radiocarbon: age ± error or F¹⁴C ± error";
   if (["de_gy", "de_error_gy", "measurement_year"].includes(name)) return "luminescence";
   if (["dose_rate_gy_per_ka", "dose_rate_error_gy_per_ka"].includes(name))
-    return "luminescence: dose rate ± error, or K, U, Th, water, burial depth and density";
-  if (["k_percent", "u_ppm", "th_ppm", "water_content", "burial_depth_m", "density_g_cm3"].includes(name))
-    return "luminescence without a dose rate";
+    return "luminescence: the lab's dose rate ± error, or K, U, Th, water content and burial depth";
+  if (["k_percent", "u_ppm", "th_ppm", "water_content", "burial_depth_m"].includes(name))
+    return "luminescence without a dose rate (burial depth: unless lab_cosmic_gy_per_ka is given)";
+  if (name === "a_value") return "fine-grain luminescence without a dose rate";
+  if (name.includes("error") && !["c14_error", "f14c_error", "de_error_gy", "delta_r_error"].includes(name))
+    return name.startsWith("freshwater") ? "with freshwater_offset" : "optional: the lab's 1σ (else the stated default)";
   if (name === "curve") return "radiocarbon (empty: intcal20; marine material: marine20)";
   return "optional";
 }

@@ -202,6 +202,8 @@ function MeasurementFields({ d }: { d: Detail["determination"] }) {
           ["Curve", curveWords(d.curveName)],
           ["ΔR", showWithError(d.deltaRYr, d.deltaRErrorYr, "¹⁴C yr")],
           ["ΔR derived against", d.deltaRCurve ? curveWords(d.deltaRCurve) : null],
+          ["Freshwater offset", showWithError(d.freshwaterOffsetYr, d.freshwaterOffsetErrorYr, "¹⁴C yr")],
+          ["Normalised to 0 ‰", d.normalisedToZeroPermil ? "yes — brought to −25 ‰ before calibration" : null],
         ]}
       />
     );
@@ -215,14 +217,31 @@ function MeasurementFields({ d }: { d: Detail["determination"] }) {
           ["Signal", d.signal ? (SIGNAL_LABELS[d.signal] ?? d.signal) : null],
           ["Mineral", d.mineral],
           ["De", showWithError(d.deGy, d.deErrorGy, "Gy")],
-          ["Dose rate", showWithError(d.doseRateGyPerKa, d.doseRateErrorGyPerKa, "Gy/ka")],
-          ["K", showNumber(d.kPercent, "%")],
-          ["U", showNumber(d.uPpm, "ppm")],
-          ["Th", showNumber(d.thPpm, "ppm")],
-          ["Water content", d.waterContentFraction != null ? `${showNumber(d.waterContentFraction * 100)} %` : null],
+          [
+            "Dose rate",
+            d.doseRateGyPerKa != null
+              ? `${showWithError(d.doseRateGyPerKa, d.doseRateErrorGyPerKa, "Gy/ka")} (${d.doseRateComputed ? "computed by the registry from the inputs below" : "the lab's value"})`
+              : null,
+          ],
+          ["K", lab(d.kPercent, d.kErrorPercent, "%")],
+          ["U", lab(d.uPpm, d.uErrorPpm, "ppm")],
+          ["Th", lab(d.thPpm, d.thErrorPpm, "ppm")],
+          ["Rb", lab(d.rbPpm, d.rbErrorPpm, "ppm")],
+          [
+            "Water content",
+            d.waterContentFraction != null
+              ? lab(d.waterContentFraction * 100, d.waterContentError != null ? d.waterContentError * 100 : null, "% of dry mass")
+              : null,
+          ],
           ["Grain size", showNumber(d.grainSizeUm, "µm")],
-          ["Burial depth", showNumber(d.burialDepthM, "m")],
-          ["Density", showNumber(d.densityGPerCm3, "g/cm³")],
+          ["Coarse or fine grains", d.grainUse],
+          ["Etch depth", showNumber(d.etchDepthUm, "µm")],
+          ["a-value", lab(d.aValue, d.aValueError)],
+          ["Internal K", lab(d.internalKPercent, d.internalKErrorPercent, "%")],
+          ["Internal Rb", lab(d.internalRbPpm, d.internalRbErrorPpm, "ppm")],
+          ["Burial depth", lab(d.burialDepthM, d.burialDepthErrorM, "m")],
+          ["Density", lab(d.densityGPerCm3, d.densityErrorGPerCm3, "g/cm³")],
+          ["Lab's cosmic dose rate", lab(d.labCosmicGyPerKa, d.labCosmicErrorGyPerKa, "Gy/ka")],
           ["Conversion factors", d.conversionFactors ? conversionFactorWords(d.conversionFactors) : null],
           ["Year of measurement", d.measurementYear != null ? String(d.measurementYear) : null],
           ["Aliquots", showNumber(d.aliquots)],
@@ -234,6 +253,12 @@ function MeasurementFields({ d }: { d: Detail["determination"] }) {
   return (
     <DetailList items={[...common, ["¹⁰Be concentration", showWithError(d.be10AtomsPerG, d.be10ErrorAtomsPerG, "atoms/g")]]} />
   );
+}
+
+/** A lab's input with its error, or "(no error given)" when the registry assumes one (the breakdown says which). */
+function lab(x: number | null, err: number | null, unit?: string): string | null {
+  if (x == null) return null;
+  return err != null ? showWithError(x, err, unit) : `${showNumber(x, unit)} (no error given)`;
 }
 
 function RangeList({ ranges }: { ranges: HpdRange[] | null }) {
@@ -286,6 +311,11 @@ function CalibrationSection({ detail, plot }: { detail: Detail; plot: Route.Comp
         ) : (
           <p className="text-muted">Not calibrated yet.</p>
         )}
+        {detail.hemisphere ? (
+          <p className="mt-3 rounded border border-caution bg-caution-bg px-3 py-2 text-caution" data-testid="hemisphere-warning">
+            {detail.hemisphere}
+          </p>
+        ) : null}
         {plot ? (
           <div className="mt-4">
             <CalibrationPlot {...plot} heading={d.labCode} />

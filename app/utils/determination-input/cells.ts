@@ -42,10 +42,10 @@ function unitAdvice(spec: ColumnSpec, text: string, num: string, unit: string): 
     return `${base} (${num} ka is ${Math.round(n * 1000)} years).`;
   }
   if ((u === "bp" || u.startsWith("cal")) && spec.name === "c14_age") {
-    return `${base}. The age is a conventional 14C age, not calibrated.`;
+    return `${base}. The age is a conventional ¹⁴C age, not calibrated.`;
   }
   if (u === "%" && spec.name === "water_content") return `${base} and give a fraction (${num} % is ${n / 100}).`;
-  if (u === "pmc" && spec.name === "f14c") return `${base}; F14C is a fraction (${num} pMC is ${n / 100}).`;
+  if (u === "pmc" && spec.name === "f14c") return `${base}; F¹⁴C is a fraction (${num} pMC is ${n / 100}).`;
   if (u.startsWith("°") || u.startsWith("'") || /^[nsew]$/.test(u)) {
     return `"${text}": give ${spec.name} in decimal degrees, south and west negative (e.g. 58.71 or -64.35).`;
   }

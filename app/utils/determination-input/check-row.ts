@@ -12,6 +12,7 @@ import {
 import { COLUMNS, EXAMPLE_DOI, EXAMPLE_LAB_CODES } from "#app/utils/determination-input/columns.ts";
 import type { DeterminationRow, Region, RowContext, RowIssue } from "#app/utils/determination-input/row.ts";
 import { nearest } from "#app/utils/nearest.ts";
+import { checkDoseRateInputs, checkOffsets } from "#app/utils/determination-input/check-science.ts";
 
 function inRegion(region: Region, lat: number, lon: number): boolean {
   return lat >= region.south && lat <= region.north && lon >= region.west && lon <= region.east;
@@ -34,6 +35,8 @@ export const RADIOCARBON_ONLY_COLUMNS = [
   "delta_r",
   "delta_r_error",
   "delta_r_curve",
+  "freshwater_offset",
+  "freshwater_offset_error",
 ] as const;
 export const LUMINESCENCE_ONLY_COLUMNS = [
   "signal",
@@ -49,6 +52,24 @@ export const LUMINESCENCE_ONLY_COLUMNS = [
   "grain_size_um",
   "burial_depth_m",
   "density_g_cm3",
+  "k_error_percent",
+  "u_error_ppm",
+  "th_error_ppm",
+  "rb_ppm",
+  "rb_error_ppm",
+  "water_content_error",
+  "grain_use",
+  "etch_depth_um",
+  "a_value",
+  "a_value_error",
+  "internal_k_percent",
+  "internal_k_error_percent",
+  "internal_rb_ppm",
+  "internal_rb_error_ppm",
+  "burial_depth_error_m",
+  "density_error_g_cm3",
+  "lab_cosmic_gy_per_ka",
+  "lab_cosmic_error_gy_per_ka",
   "measurement_year",
   "aliquots",
   "age_model",
@@ -60,7 +81,7 @@ const TEXT_MAX: Record<string, number> = { notes: 2000, context: 1000 };
 export const IDENTIFIER_COLUMNS: ReadonlySet<string> = new Set(["site_name", "sample_code", "lab_code", "lab_name"]);
 
 /** One row being checked: the values read so far and every problem found, each at its column. */
-class RowState {
+export class RowState {
   readonly issues: RowIssue[] = [];
   readonly warnings: RowIssue[] = [];
   readonly out: Record<string, unknown> = {};
@@ -103,8 +124,10 @@ export function checkRow(raw: Record<string, unknown>, ctx: RowContext): RowChec
   if (method === "radiocarbon") {
     checkRadiocarbon(row);
     checkCurve(row);
+    checkOffsets(row);
   } else if (method === "luminescence") {
     checkLuminescence(row);
+    checkDoseRateInputs(row);
   }
   checkOtherMethodColumns(row, method);
   checkDuplicate(row);
@@ -113,6 +136,7 @@ export function checkRow(raw: Record<string, unknown>, ctx: RowContext): RowChec
   const { issues, warnings, out } = row;
   if (out.age_normalised === undefined) out.age_normalised = true;
   if (out.greater_than === undefined) out.greater_than = false;
+  if (out.normalised_to_zero_permil === undefined) out.normalised_to_zero_permil = false;
   // The calendar age needs only the measurement: asked whenever those columns are sound, so a
   // problem elsewhere in the row never hides an age beyond the curve.
   if (ctx.calendarProblem && method && !issues.some((i) => MEASUREMENT_COLUMNS.has(i.column))) {
@@ -128,6 +152,7 @@ const MEASUREMENT_COLUMNS = new Set<string>([
   "material",
   "age_normalised",
   "greater_than",
+  "normalised_to_zero_permil",
   ...RADIOCARBON_ONLY_COLUMNS,
   ...LUMINESCENCE_ONLY_COLUMNS,
 ]);
@@ -249,19 +274,19 @@ function checkRadiocarbon(row: RowState) {
     row.add("c14_age", "A radiocarbon row needs c14_age and c14_error (or f14c and f14c_error).");
   } else if (hasAge || !hasF) {
     row.need("c14_age", "Give c14_age with its c14_error.");
-    row.need("c14_error", "Give the error of c14_age (one standard deviation, in 14C years).");
+    row.need("c14_error", "Give the error of c14_age (one standard deviation, in ¹⁴C years).");
   } else {
     row.need("f14c", "Give f14c with its f14c_error.");
     row.need("f14c_error", "Give the error of f14c (one standard deviation).");
   }
   const f = row.num("f14c");
-  if (f !== undefined && !(f > 0)) row.add("f14c", `f14c must be greater than zero (got ${f}).`);
+  // F at or below zero is refused only when it is below zero by more than 2σ (check-science.ts).
   if (f !== undefined && f > 2 && !row.bad("f14c"))
     row.add("f14c", `f14c ${f} is a fraction near 1 or below; is it given in pMC? (${f} pMC is ${f / 100}).`);
   const d13 = row.num("d13c");
-  if (d13 !== undefined && (d13 < -60 || d13 > 20)) row.add("d13c", `δ13C ${d13} ‰ is outside the plausible range −60 to 20 ‰.`);
+  if (d13 !== undefined && (d13 < -60 || d13 > 20)) row.add("d13c", `δ¹³C ${d13} ‰ is outside the plausible range −60 to 20 ‰.`);
   if (row.out.age_normalised === false && d13 === undefined && !row.bad("d13c")) {
-    row.add("d13c", "An age that is not δ13C-normalised needs d13c.");
+    row.add("d13c", "An age that is not δ¹³C-normalised needs d13c.");
   }
 }
 
@@ -317,12 +342,15 @@ function checkLuminescence(row: RowState) {
   const de = row.num("de_gy");
   if (de !== undefined && !(de > 0)) row.add("de_gy", `de_gy must be greater than zero (got ${de}).`);
   const hasRate = row.has("dose_rate_gy_per_ka") || row.has("dose_rate_error_gy_per_ka");
-  const parts = ["k_percent", "u_ppm", "th_ppm", "water_content", "burial_depth_m", "density_g_cm3"];
+  // Density may be left out (assumed, with a warning); burial depth too when the lab gives its cosmic dose rate.
+  const parts = ["k_percent", "u_ppm", "th_ppm", "water_content", "burial_depth_m"].filter(
+    (p) => p !== "burial_depth_m" || !row.has("lab_cosmic_gy_per_ka"),
+  );
   if (hasRate || !parts.some((p) => row.has(p))) {
     if (!hasRate && !parts.some((p) => row.bad(p))) {
       row.add(
         "dose_rate_gy_per_ka",
-        "Give dose_rate_gy_per_ka with its error, or K, U, Th, water content, burial depth and density to compute it.",
+        "Give dose_rate_gy_per_ka with its error, or K, U, Th, water content, burial depth and density (with their errors) to compute it.",
       );
     } else {
       row.need("dose_rate_gy_per_ka", "Give dose_rate_gy_per_ka with its error.");

@@ -1,4 +1,4 @@
-import { ROW_CONSTRAINT_KINDS, ROW_METHODS, ROW_SIGNALS } from "#app/utils/determination-input/columns.ts";
+import { ROW_CONSTRAINT_KINDS, ROW_GRAIN_USES, ROW_METHODS, ROW_SIGNALS } from "#app/utils/determination-input/columns.ts";
 
 // ---------------------------------------------------------------- the validated row
 
@@ -25,6 +25,8 @@ export type DeterminationRow = {
   f14c_error?: number;
   d13c?: number;
   age_normalised: boolean;
+  /** The reported age was normalised to δ13C = 0 ‰ (older shell practice); false when not said. */
+  normalised_to_zero_permil: boolean;
   greater_than: boolean;
   pretreatment?: string;
   /** Lower-case short name; set for every radiocarbon row (intcal20 when left empty). */
@@ -32,6 +34,9 @@ export type DeterminationRow = {
   delta_r?: number;
   delta_r_error?: number;
   delta_r_curve?: string;
+  /** Freshwater (hard-water) offset ± 1σ, 14C yr, applied on an atmospheric curve like ΔR. */
+  freshwater_offset?: number;
+  freshwater_offset_error?: number;
   signal?: (typeof ROW_SIGNALS)[number];
   mineral?: string;
   de_gy?: number;
@@ -39,13 +44,32 @@ export type DeterminationRow = {
   dose_rate_gy_per_ka?: number;
   dose_rate_error_gy_per_ka?: number;
   k_percent?: number;
+  /** Errors are 1σ in the unit of their value; a missing one is assumed at its documented default. */
+  k_error_percent?: number;
   u_ppm?: number;
+  u_error_ppm?: number;
   th_ppm?: number;
+  th_error_ppm?: number;
+  rb_ppm?: number;
+  rb_error_ppm?: number;
   /** Fraction of dry mass (0.15 = 15 %). */
   water_content?: number;
+  water_content_error?: number;
   grain_size_um?: number;
+  grain_use?: (typeof ROW_GRAIN_USES)[number];
+  etch_depth_um?: number;
+  a_value?: number;
+  a_value_error?: number;
+  internal_k_percent?: number;
+  internal_k_error_percent?: number;
+  internal_rb_ppm?: number;
+  internal_rb_error_ppm?: number;
   burial_depth_m?: number;
+  burial_depth_error_m?: number;
   density_g_cm3?: number;
+  density_error_g_cm3?: number;
+  lab_cosmic_gy_per_ka?: number;
+  lab_cosmic_error_gy_per_ka?: number;
   aliquots?: number;
   age_model?: string;
   measurement_year?: number;

@@ -273,7 +273,7 @@ describe("calibration on the published curves", () => {
     expect(err).toBeInstanceOf(CalibrationError);
     expect((err as CalibrationError).code).toBe("beyond-curve");
     expect((err as Error).message).toMatch(
-      /cannot overlap it: even its age − 2σ \(58,487\) is older than the curve reaches; intcal20 covers 95–50,193 14C yr BP \(0–55,000 cal BP\)/,
+      /cannot overlap it: even its age − 2σ \(58,487\) is older than the curve reaches; intcal20 covers 95–50,193 ¹⁴C yr BP \(0–55,000 cal BP\)/,
     );
     expect(() => calibrate(intcal, { age: 20, error: 20 })).toThrow(/beyond the curve/);
     expect(() => calibrate(marine, { age: 54000, error: 500, deltaR: 100 })).toThrow(/with ΔR 100/);

@@ -5,7 +5,6 @@ import { eq } from "drizzle-orm";
 import type { Db } from "#app/db/client.server.ts";
 import { labs, publications, samples, sites } from "#app/db/schema.ts";
 import type { DeterminationRow as StoredDetermination } from "#app/models/submission/determinations.server.ts";
-import { DEFAULT_CONVERSION_FACTORS } from "#app/science/luminescence.ts";
 
 /** The form's fields (template column names) as strings, from a stored determination. */
 export function formDefaults(db: Db, det: StoredDetermination): Record<string, string> {
@@ -18,10 +17,8 @@ export function formDefaults(db: Db, det: StoredDetermination): Record<string, s
     .where(eq(samples.id, det.sampleId))
     .get()!;
   const s = (v: number | string | null | undefined) => (v == null ? "" : String(v));
-  // A dose rate computed from K, U and Th is shown as its components only, so an edit recomputes it.
-  const computedRate =
-    det.conversionFactors === DEFAULT_CONVERSION_FACTORS &&
-    [det.kPercent, det.uPpm, det.thPpm, det.waterContentFraction, det.burialDepthM, det.densityGPerCm3].every((v) => v != null);
+  // A dose rate computed from K, U and Th is shown as its inputs only, so an edit recomputes it.
+  const computedRate = det.doseRateComputed;
   return {
     site_choice: "existing",
     site_id: String(place.site.id),
@@ -52,6 +49,9 @@ export function formDefaults(db: Db, det: StoredDetermination): Record<string, s
     delta_r: s(det.deltaRYr),
     delta_r_error: s(det.deltaRErrorYr),
     delta_r_curve: s(det.deltaRCurve),
+    freshwater_offset: s(det.freshwaterOffsetYr),
+    freshwater_offset_error: s(det.freshwaterOffsetErrorYr),
+    normalised_to_zero_permil: det.normalisedToZeroPermil ? "yes" : "",
     signal: s(det.signal),
     mineral: s(det.mineral),
     de_gy: s(det.deGy),
@@ -59,12 +59,30 @@ export function formDefaults(db: Db, det: StoredDetermination): Record<string, s
     dose_rate_gy_per_ka: computedRate ? "" : s(det.doseRateGyPerKa),
     dose_rate_error_gy_per_ka: computedRate ? "" : s(det.doseRateErrorGyPerKa),
     k_percent: s(det.kPercent),
+    k_error_percent: s(det.kErrorPercent),
     u_ppm: s(det.uPpm),
+    u_error_ppm: s(det.uErrorPpm),
     th_ppm: s(det.thPpm),
+    th_error_ppm: s(det.thErrorPpm),
+    rb_ppm: s(det.rbPpm),
+    rb_error_ppm: s(det.rbErrorPpm),
     water_content: s(det.waterContentFraction),
+    water_content_error: s(det.waterContentError),
     grain_size_um: s(det.grainSizeUm),
+    grain_use: s(det.grainUse),
+    etch_depth_um: s(det.etchDepthUm),
+    a_value: s(det.aValue),
+    a_value_error: s(det.aValueError),
+    internal_k_percent: s(det.internalKPercent),
+    internal_k_error_percent: s(det.internalKErrorPercent),
+    internal_rb_ppm: s(det.internalRbPpm),
+    internal_rb_error_ppm: s(det.internalRbErrorPpm),
     burial_depth_m: s(det.burialDepthM),
+    burial_depth_error_m: s(det.burialDepthErrorM),
     density_g_cm3: s(det.densityGPerCm3),
+    density_error_g_cm3: s(det.densityErrorGPerCm3),
+    lab_cosmic_gy_per_ka: s(det.labCosmicGyPerKa),
+    lab_cosmic_error_gy_per_ka: s(det.labCosmicErrorGyPerKa),
     measurement_year: s(det.measurementYear),
     aliquots: s(det.aliquots),
     age_model: s(det.ageModel),

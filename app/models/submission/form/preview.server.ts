@@ -1,6 +1,8 @@
 // The form's live calendar-age preview.
 
+import { eq } from "drizzle-orm";
 import type { Db } from "#app/db/client.server.ts";
+import { sites } from "#app/db/schema.ts";
 import { calendarOutcome, interpretMeasurement } from "#app/models/calibration/calibrations.server.ts";
 import { activeCurve, type CurveRow } from "#app/models/calibration/curves.server.ts";
 import { measurementFields, rowDoseRate } from "#app/models/submission/determinations.server.ts";
@@ -34,30 +36,34 @@ export function previewCalendarAge(
   if (isBlankCell(measured.material)) {
     measured.material = options.materials.find((m) => m.methods.includes(method) && !m.marine)?.name;
   }
+  const place = previewPlace(db, raw);
   const filled = {
     site_name: "preview",
-    latitude: 58,
-    longitude: -64,
     sample_code: "preview",
     lab_code: "preview",
     constraint_kind: "minimum",
     ...measured,
+    ...place,
   };
   const check = checkRow(filled, clientRowContext(options));
+  // Cautions about the site's position only count when the form gave one.
+  const warnings = check.warnings.filter((w) => place.known || w.column !== "curve" || !/hemisphere/.test(w.message));
   if (!check.ok) {
     const first = check.issues[0]!;
-    return { state: "incomplete", column: first.column, message: first.message };
+    return { state: "incomplete", column: first.column, message: first.message, warnings };
   }
   const row = check.value;
   const fields = measurementFields(row);
   const curveFor = (name: string): CurveRow | undefined => activeCurve(db, name);
   if (row.method === "radiocarbon") {
     const interpreted = interpretMeasurement(fields);
-    if (interpreted.kind !== "age") return { state: "no-age", message: interpreted.message, label: fields.curveName ?? "" };
+    if (interpreted.kind !== "age")
+      return { state: "no-age", message: interpreted.message, label: fields.curveName ?? "", warnings };
   }
   const outcome = calendarOutcome(db, fields, curveFor);
-  if (!outcome.ok) return { state: "no-age", message: outcome.error, label: outcome.label };
+  if (!outcome.ok) return { state: "no-age", message: outcome.error, label: outcome.label, warnings };
   const result: PreviewResult = {
+    warnings,
     state: "ok",
     label: outcome.label,
     medianCalBp: outcome.summary.medianCalBp,
@@ -76,4 +82,30 @@ export function previewCalendarAge(
     };
   }
   return result;
+}
+
+/**
+ * Where the sample lies, for the cosmic dose rate and the hemisphere check: the chosen site's
+ * position from the registry, the new site's as typed, else a placeholder (`known` false).
+ */
+function previewPlace(db: Db, raw: Record<string, unknown>) {
+  if (raw.site_choice === "existing") {
+    const id = Number(raw.site_id);
+    const site = Number.isSafeInteger(id) && id > 0 ? db.select().from(sites).where(eq(sites.id, id)).get() : undefined;
+    if (site)
+      return { latitude: site.latitude, longitude: site.longitude, elevation_m: site.elevationM ?? undefined, known: true };
+  } else {
+    const lat = Number(raw.latitude);
+    const lon = Number(raw.longitude);
+    if (!isBlankCell(raw.latitude) && !isBlankCell(raw.longitude) && Number.isFinite(lat) && Number.isFinite(lon)) {
+      const elevation = Number(raw.elevation_m);
+      return {
+        latitude: lat,
+        longitude: lon,
+        elevation_m: isBlankCell(raw.elevation_m) || !Number.isFinite(elevation) ? undefined : elevation,
+        known: true,
+      };
+    }
+  }
+  return { latitude: 58, longitude: -64, elevation_m: undefined, known: false };
 }

@@ -143,13 +143,18 @@ export function commitUpload(
   });
 }
 
+/** A problem or warning of one item sent to the API: index from 0, row from 1. */
+export type ApiRowIssue = UploadRowError & { index: number };
+
 /** Rows sent as JSON to the API: all valid → committed as one batch of kind json; else errors and nothing written. */
 export function submitJsonRows(
   db: Db,
   items: unknown[],
   actor: { userId: number },
   options: CommitOptions = {},
-): { ok: true; determinationIds: number[] } | { ok: false; errors: (UploadRowError & { index: number })[] } {
+):
+  | { ok: true; determinationIds: number[]; warnings: ApiRowIssue[] }
+  | { ok: false; errors: ApiRowIssue[]; warnings: ApiRowIssue[] } {
   const headers = COLUMNS.map((c) => c.name);
   const errors: (UploadRowError & { index: number })[] = [];
   const rows: StoredRow[] = items.map((item, i) => {
@@ -181,9 +186,10 @@ export function submitJsonRows(
     }
   }
   for (const e of validation.errors) errors.push({ index: e.row - 1, ...e });
+  const warnings = validation.warnings.map((w) => ({ index: w.row - 1, ...w }));
   if (errors.length > 0) {
     errors.sort((a, b) => a.index - b.index);
-    return { ok: false, errors };
+    return { ok: false, errors, warnings };
   }
   return db.transaction((tx) => {
     const batch = tx
@@ -220,6 +226,6 @@ export function submitJsonRows(
       },
       ip: options.ip,
     });
-    return { ok: true as const, determinationIds: result.determinationIds };
+    return { ok: true as const, determinationIds: result.determinationIds, warnings };
   });
 }

@@ -10,8 +10,9 @@ import { json } from "#app/utils/http.server.ts";
 /*
  * POST /api/v1/determinations — a contract outside scripts rely on. Body: a JSON array of rows
  * with the upload template's column names and the same validation. All valid → 201
- * {"determination_ids":[…]} in the order sent; otherwise 400 {"errors":[{"index","row","column",
- * "message"}]} with index 0-based and row = index + 1, and nothing written.
+ * {"determination_ids":[…],"warnings":[…]} in the order sent; otherwise 400 {"errors":[{"index","row",
+ * "column","message"}],"warnings":[…]} with index 0-based and row = index + 1, and nothing written.
+ * Warnings (same shape) never block: assumed dose-rate inputs, a site on the other hemisphere's curve.
  * (GET on this path — the Explore API — belongs in this module's loader.)
  */
 
@@ -82,8 +83,8 @@ export async function action({ request }: Route.ActionArgs) {
   }
   try {
     const result = submitJsonRows(getDb(), body, { userId: user.id }, { ip: clientAddress(request) });
-    if (!result.ok) return json({ errors: result.errors }, { status: 400 });
-    return json({ determination_ids: result.determinationIds }, { status: 201 });
+    if (!result.ok) return json({ errors: result.errors, warnings: result.warnings }, { status: 400 });
+    return json({ determination_ids: result.determinationIds, warnings: result.warnings }, { status: 201 });
   } catch (e) {
     if (e instanceof CommitRefused)
       return json({ errors: [{ index: null, row: null, column: "", message: e.message }] }, { status: e.status });

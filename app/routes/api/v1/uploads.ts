@@ -9,7 +9,7 @@ import { json } from "#app/utils/http.server.ts";
 /*
  * POST /api/v1/uploads — a contract outside scripts rely on; keep the shapes exactly.
  * multipart field `file` (CSV or XLSX, headers = the template's column names) →
- * 200 {"upload_id","rows","valid","errors":[{"row","column","message"}]}; rows are numbered as a
+ * 200 {"upload_id","rows","valid","errors":[{"row","column","message"}],"warnings":[same]}; rows are numbered as a
  * spreadsheet shows them (header = row 1). Nothing is written to the registry until commit.
  */
 
@@ -30,6 +30,7 @@ export async function action({ request }: Route.ActionArgs) {
       rows: validation.results.length,
       valid: validation.validCount,
       errors: validation.errors.map((e) => ({ row: e.row, column: e.column, message: e.message })),
+      warnings: validation.warnings.map((w) => ({ row: w.row, column: w.column, message: w.message })),
     });
   } catch (e) {
     if (e instanceof UploadError) return json({ error: e.message }, { status: e.status });
