@@ -13,33 +13,45 @@ function filter(q: string) {
   return r.filter;
 }
 
-async function timeDownload(db: Db, format: "csv" | "json", densities: boolean): Promise<{ ms: number; bytes: number }> {
+/**
+ * One download of the whole demo, read chunk by chunk as a socket would take it (counting bytes,
+ * not gathering them into one buffer). Wall time, and this process's CPU time: the machine is
+ * shared, so the CPU figure is the steadier one.
+ */
+async function timeDownload(
+  db: Db,
+  format: "csv" | "json",
+  densities: boolean,
+): Promise<{ ms: number; cpu: number; bytes: number }> {
   const t0 = performance.now();
+  const c0 = process.cpuUsage();
   const res = selectionResponse(db, selectConstraints(db, filter("")), format, { densities });
-  const bytes = (await res.arrayBuffer()).byteLength;
-  return { ms: performance.now() - t0, bytes };
+  let bytes = 0;
+  const reader = res.body!.getReader();
+  for (let r = await reader.read(); !r.done; r = await reader.read()) bytes += r.value.byteLength;
+  const c = process.cpuUsage(c0);
+  return { ms: performance.now() - t0, cpu: (c.user + c.system) / 1000, bytes };
 }
 
+const cpuNote = (runs: { cpu: number }[], median: (xs: number[]) => number) =>
+  `CPU ${median(runs.map((r) => r.cpu)).toFixed(0)} ms`;
+
 export async function benchReleases(db: Db, userId: number, report: Report, median: (xs: number[]) => number) {
-  const csv: number[] = [];
-  let csvBytes = 0;
-  for (let i = 0; i < 5; i++)
-    ({ ms: csv[i], bytes: csvBytes } = (await timeDownload(db, "csv", false)) as { ms: number; bytes: number });
+  const csv: { ms: number; cpu: number; bytes: number }[] = [];
+  for (let i = 0; i < 5; i++) csv.push(await timeDownload(db, "csv", false));
   const n = selectionCount(db, filter(""));
   report(
     "constraints",
-    `CSV download, full demo (${n} rows, ${(csvBytes / 1e6).toFixed(1)} MB), median of 5`,
-    `${median(csv).toFixed(0)} ms`,
+    `CSV download, full demo (${n} rows, ${(csv[0]!.bytes / 1e6).toFixed(1)} MB), median of 5 (${cpuNote(csv, median)})`,
+    `${median(csv.map((r) => r.ms)).toFixed(0)} ms`,
     "≤ 200 ms",
   );
-  const dense: number[] = [];
-  let denseBytes = 0;
-  for (let i = 0; i < 3; i++)
-    ({ ms: dense[i], bytes: denseBytes } = (await timeDownload(db, "json", true)) as { ms: number; bytes: number });
+  const dense: { ms: number; cpu: number; bytes: number }[] = [];
+  for (let i = 0; i < 3; i++) dense.push(await timeDownload(db, "json", true));
   report(
     "constraints",
-    `JSON with densities, full demo (${(denseBytes / 1e6).toFixed(0)} MB), median of 3`,
-    `${median(dense).toFixed(0)} ms`,
+    `JSON with densities, full demo (${(dense[0]!.bytes / 1e6).toFixed(0)} MB), median of 3 (${cpuNote(dense, median)})`,
+    `${median(dense.map((r) => r.ms)).toFixed(0)} ms`,
     "≤ 1 s",
   );
   const f = filter("bbox=-70,56,-62,60&from_cal_bp=9000&to_cal_bp=11000");
@@ -51,10 +63,11 @@ export async function benchReleases(db: Db, userId: number, report: Report, medi
   }
   report("constraints", "live count, region + time window, median of 30", `${median(counts).toFixed(1)} ms`, "≤ 20 ms");
   const ids = db.$client.prepare("select count(*) n from determinations").get() as { n: number };
-  const pub: number[] = [];
+  const pub: { ms: number; cpu: number }[] = [];
   let items = 0;
   for (let i = 0; i < 3; i++) {
     const t0 = performance.now();
+    const c0 = process.cpuUsage();
     items = publishRelease(db, {
       name: "Bench release",
       version: `b${i}`,
@@ -62,7 +75,13 @@ export async function benchReleases(db: Db, userId: number, report: Report, medi
       userId,
       baseUrl: "http://localhost/releases/",
     }).count;
-    pub.push(performance.now() - t0);
+    const c = process.cpuUsage(c0);
+    pub.push({ ms: performance.now() - t0, cpu: (c.user + c.system) / 1000 });
   }
-  report("releases", `publish ${items} items (registry ${ids.n}), median of 3`, `${(median(pub) / 1000).toFixed(2)} s`, "≤ 2 s");
+  report(
+    "releases",
+    `publish ${items} items (registry ${ids.n}), median of 3 (${cpuNote(pub, median)})`,
+    `${(median(pub.map((r) => r.ms)) / 1000).toFixed(2)} s`,
+    "≤ 2 s",
+  );
 }

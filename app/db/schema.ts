@@ -394,6 +394,8 @@ export const calibrations = sqliteTable(
     density: blob("density", { mode: "buffer" }),
     /** SHA-256 (hex) of the density bytes, written with them; a release's items name it without copying the density. */
     densitySha256: text("density_sha256"),
+    /** Number of Float32 values in the density (its byte length / 4), so reading it needs no blob. */
+    densityLength: integer("density_length"),
     /** The probability reaches the first or last year of the curve and is cut there. */
     atCurveLimit: integer("at_curve_limit", { mode: "boolean" }).notNull().default(false),
     /** Plain notes from the calibration (truncation at the curve's end, F14C space near background). */
@@ -403,11 +405,13 @@ export const calibrations = sqliteTable(
   },
   (t) => [
     index("cal_det_idx").on(t.determinationId),
-    index("cal_current_median_idx").on(t.isCurrent, t.medianCalBp),
+    // Sorting by median (Explore) and the time-window filters read this index alone: it carries the
+    // 95.4 % bounds, the curve and the determination.
+    index("cal_current_median_idx").on(t.isCurrent, t.medianCalBp, t.hpd95FromBp, t.hpd95ToBp, t.curveId, t.determinationId),
     // Joining a determination to its current calibration: without both leading columns the planner may
     // pick cal_current_median_idx and scan every current calibration per row. The summary columns after
     // them cover the constraint filters and downloads, so those never read the table's wide rows
-    // (each carries a density of several kilobytes).
+    // (each carries a density of several kilobytes), and a release names a density without reading it.
     index("cal_det_current_cover_idx").on(
       t.determinationId,
       t.isCurrent,
@@ -418,6 +422,9 @@ export const calibrations = sqliteTable(
       t.curveLabel,
       t.hpd68,
       t.hpd95,
+      t.densityStartCalBp,
+      t.densityLength,
+      t.densitySha256,
     ),
   ],
 );

@@ -4,25 +4,33 @@
 const CHUNK_CHARS = 64 * 1024;
 
 /**
- * Streams the strings a generator yields, gathered into chunks of about 64 kB. The generator runs
- * only when the reader asks for more (so database reads inside it happen one batch at a time) and
- * is closed if the reader cancels.
+ * Streams the strings a generator yields, gathered into chunks of about 64 kB; a piece already
+ * encoded (UTF-8 bytes the generator will not touch again) passes through as it is. The generator
+ * runs only when the reader asks for more (so database reads inside it happen one batch at a
+ * time) and is closed if the reader cancels.
  */
-export function textStream(pieces: Iterator<string>): ReadableStream<Uint8Array> {
+export function textStream(pieces: Iterator<string | Uint8Array>): ReadableStream<Uint8Array> {
   const encoder = new TextEncoder();
   return new ReadableStream<Uint8Array>({
     pull(controller) {
       let buffer = "";
-      while (buffer.length < CHUNK_CHARS) {
+      let sent = 0;
+      while (buffer.length + sent < CHUNK_CHARS) {
         const next = pieces.next();
         if (next.done) {
           if (buffer) controller.enqueue(encoder.encode(buffer));
           controller.close();
           return;
         }
-        buffer += next.value;
+        if (typeof next.value === "string") buffer += next.value;
+        else {
+          if (buffer) controller.enqueue(encoder.encode(buffer));
+          buffer = "";
+          controller.enqueue(next.value);
+          sent += next.value.byteLength;
+        }
       }
-      controller.enqueue(encoder.encode(buffer));
+      if (buffer) controller.enqueue(encoder.encode(buffer));
     },
     cancel() {
       pieces.return?.(undefined);

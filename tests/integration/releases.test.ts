@@ -16,6 +16,8 @@ const BASE_URL = "http://localhost/releases/";
 let editorId: number;
 let release: ReleaseRow;
 let downloads: Record<string, string>;
+/** What independent SQL counted when the release was published (later tests change the registry). */
+let expectedCount: number;
 
 function filter(q: string): ConstraintFilter {
   const r = parseConstraintFilter(new URLSearchParams(q));
@@ -35,6 +37,14 @@ async function allDownloads(r: ReleaseRow): Promise<Record<string, string>> {
 beforeAll(async () => {
   await seedDemo(getDb(), { size: "small" });
   editorId = createTestUser(getDb(), ["editor"]).id;
+  expectedCount = (
+    sqlite()
+      .prepare(
+        `select count(*) n from determinations d join calibrations c on c.determination_id = d.id and c.is_current = 1
+         where d.status != 'withdrawn' and d.grade >= 1 and c.median_cal_bp is not null`,
+      )
+      .get() as { n: number }
+  ).n;
   const published = publishRelease(getDb(), {
     name: "Test release",
     version: "1",
@@ -49,15 +59,7 @@ beforeAll(async () => {
 
 describe("publishing a release", () => {
   it("freezes exactly the selection, with a checksum, a citation and the curves", () => {
-    const expected = (
-      sqlite()
-        .prepare(
-          `select count(*) n from determinations d join calibrations c on c.determination_id = d.id and c.is_current = 1
-           where d.status != 'withdrawn' and d.grade >= 1 and c.median_cal_bp is not null`,
-        )
-        .get() as { n: number }
-    ).n;
-    expect(release.itemCount).toBe(expected);
+    expect(release.itemCount).toBe(expectedCount);
     expect(release.checksum).toMatch(/^[0-9a-f]{64}$/);
     expect(release.citation).toContain("Test release, version 1");
     expect(release.citation).toContain(release.checksum);
@@ -126,6 +128,22 @@ describe("a release never changes", () => {
   it("the registry did change", () => {
     const row = sqlite().prepare("select grade from determinations where id = ?").get(regraded) as { grade: number };
     expect(row.grade).toBe(0);
+  });
+
+  it("the recalibration kept the released calibration (not current) beside the new current one", () => {
+    const released = sqlite()
+      .prepare("select calibration_id as id from release_items where release_id = ? and determination_id = ?")
+      .get(release.id, edited) as { id: number };
+    const rows = sqlite()
+      .prepare("select id, is_current as current, density_sha256 as sha from calibrations where determination_id = ? order by id")
+      .all(edited) as { id: number; current: number; sha: string }[];
+    expect(rows.find((r) => r.id === released.id)).toMatchObject({ current: 0 });
+    expect(rows.filter((r) => r.current === 1)).toHaveLength(1);
+    const frozen = JSON.parse(downloads.json!).constraints.find((i: { id: number }) => i.id === edited);
+    expect(frozen.density_ref).toMatchObject({
+      calibration_id: released.id,
+      sha256: rows.find((r) => r.id === released.id)!.sha,
+    });
   });
 
   it("the next release differs by what changed: removed, regraded, recalibrated, added", () => {

@@ -1,4 +1,5 @@
 import { and, eq, inArray } from "drizzle-orm";
+import { createHash } from "node:crypto";
 import type { Db } from "#app/db/client.server.ts";
 import { calibrations, curves, determinations, type HpdRange } from "#app/db/schema.ts";
 import { calibrate, CalibrationError, type CalibrationInput } from "#app/science/calibration.ts";
@@ -204,6 +205,7 @@ export function encodeDensity(values: Float32Array): Buffer {
 }
 
 export function decodeDensity(buf: Buffer | Uint8Array, startCalBp: number): CalendarDensity {
+  if (buf.byteOffset % 4 === 0) return { startCalBp, values: new Float32Array(buf.buffer, buf.byteOffset, buf.byteLength >> 2) };
   // Copy so the Float32Array is aligned whatever the buffer's offset.
   const copy = new Uint8Array(buf.byteLength);
   copy.set(buf);
@@ -232,13 +234,17 @@ export function calibrateDeterminations(db: Db, ids: number[]): { calibrated: nu
   const sqlite = db.$client;
   // "+is_current" keeps SQLite on the determination index; the is_current index would scan every current row.
   const demote = sqlite.prepare("update calibrations set is_current = 0 where determination_id = ? and +is_current = 1");
+  // A calibration a release names (release_items.calibration_id) is kept, demoted, so the release's
+  // density never changes; the others on the same curve version are replaced.
   const dropSame = sqlite.prepare(
-    "delete from calibrations where determination_id = ? and coalesce(curve_id, -1) = coalesce(?, -1)",
+    `delete from calibrations where determination_id = ? and coalesce(curve_id, -1) = coalesce(?, -1)
+       and not exists (select 1 from release_items ri where ri.calibration_id = calibrations.id)`,
   );
   const insert = sqlite.prepare(
     `insert into calibrations (determination_id, curve_id, curve_label, is_current, median_cal_bp, hpd68, hpd95,
-       hpd95_from_bp, hpd95_to_bp, density_start_cal_bp, density, at_curve_limit, notes, error)
-     values (?, ?, ?, 1, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)`,
+       hpd95_from_bp, hpd95_to_bp, density_start_cal_bp, density, density_sha256, density_length, at_curve_limit,
+       notes, error)
+     values (?, ?, ?, 1, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)`,
   );
   let calibrated = 0;
   let failed = 0;
@@ -255,6 +261,7 @@ export function calibrateDeterminations(db: Db, ids: number[]): { calibrated: nu
           const s = outcome.summary;
           const oldest = s.hpd95.length ? Math.max(...s.hpd95.map((r) => r.from)) : null;
           const youngest = s.hpd95.length ? Math.min(...s.hpd95.map((r) => r.to)) : null;
+          const density = encodeDensity(outcome.density.values);
           insert.run(
             d.id,
             curveId,
@@ -265,14 +272,16 @@ export function calibrateDeterminations(db: Db, ids: number[]): { calibrated: nu
             oldest,
             youngest,
             outcome.density.startCalBp,
-            encodeDensity(outcome.density.values),
+            density,
+            createHash("sha256").update(density).digest("hex"),
+            outcome.density.values.length,
             outcome.atCurveLimit ? 1 : 0,
             outcome.notes?.length ? JSON.stringify(outcome.notes) : null,
             null,
           );
           calibrated++;
         } else {
-          insert.run(d.id, curveId, outcome.label, null, null, null, null, null, null, null, 0, null, outcome.error);
+          insert.run(d.id, curveId, outcome.label, null, null, null, null, null, null, null, null, null, 0, null, outcome.error);
           failed++;
         }
       }

@@ -4,6 +4,7 @@
 // registry's current one otherwise.
 
 import type { Db } from "#app/db/client.server.ts";
+import { RELEASE_DENSITY_SQL } from "#app/models/releases/releases.server.ts";
 import type { ScoredKind } from "#app/science/scoring/constraint-score.ts";
 import type { ScoringConstraint } from "./score-run.server.ts";
 
@@ -61,15 +62,18 @@ export function loadConstraints(db: Db, choice: ConstraintChoice = {}): Constrai
       { id: number; name: string } | undefined;
     if (!release) throw new UnknownReleaseError(`No release "${choice.releaseSlug}".`);
     // A release is scored as it was published: the frozen item (site position, kind, grade) and the
-    // density copied into release_items, whatever the registry has done since.
+    // released density (a copy in release_items for older releases, else the calibration the item
+    // names, which is never deleted), whatever the registry has done since.
     const rows = sqlite
       .prepare(
-        `select determination_id as id, json_extract(frozen, '$.latitude') as latitude,
-                json_extract(frozen, '$.longitude') as longitude, json_extract(frozen, '$.constraint_kind') as kind,
-                json_extract(frozen, '$.grade') as grade, density_start_cal_bp as start, density
-         from release_items where release_id = ? and density is not null
-           and coalesce(json_extract(frozen, '$.grade'), -1) != 0
-         order by determination_id`,
+        `select ri.determination_id as id, json_extract(ri.frozen, '$.latitude') as latitude,
+                json_extract(ri.frozen, '$.longitude') as longitude, json_extract(ri.frozen, '$.constraint_kind') as kind,
+                json_extract(ri.frozen, '$.grade') as grade, ${RELEASE_DENSITY_SQL.start} as start,
+                ${RELEASE_DENSITY_SQL.density} as density
+         from release_items ri ${RELEASE_DENSITY_SQL.join}
+         where ri.release_id = ? and ${RELEASE_DENSITY_SQL.density} is not null
+           and coalesce(json_extract(ri.frozen, '$.grade'), -1) != 0
+         order by ri.determination_id`,
       )
       .all(release.id) as Row[];
     return { constraints: rows.map(toConstraint), releaseId: release.id, filter: null, label: `release ${choice.releaseSlug}` };

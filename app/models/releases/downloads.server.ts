@@ -5,6 +5,7 @@ import type { Db } from "#app/db/client.server.ts";
 import type { ConstraintItem, SelectedRow } from "#app/models/releases/selection.server.ts";
 import { csvStream, type CsvCell } from "#app/utils/csv-stream.ts";
 import { geojsonStream } from "#app/utils/geojson-stream.ts";
+import { probabilityArrayBytes } from "#app/utils/probability-text.ts";
 import { textStream } from "#app/utils/text-stream.ts";
 
 export const DOWNLOAD_FORMATS = ["json", "csv", "geojson", "metadata"] as const;
@@ -156,16 +157,6 @@ export function geojsonDownload(meta: DownloadMetadata, items: Iterable<Constrai
 
 export type DensityOut = { start: number; values: Float32Array };
 
-/** Probabilities to 6 significant digits: Float32 holds about seven, and the text stays a third the size. */
-function densityJson(d: DensityOut): string {
-  let p = "";
-  for (let i = 0; i < d.values.length; i++) {
-    const v = d.values[i]!;
-    p += (i ? "," : "") + (v === 0 ? "0" : v.toPrecision(6));
-  }
-  return `{"start_cal_bp":${d.start},"step":1,"p":[${p}]}`;
-}
-
 /**
  * `{...metadata, "constraints": [...]}` written item by item. With densities, each item gets
  * `density: {start_cal_bp, step, p}`: p[i] is the probability of calendar year start_cal_bp + i·step.
@@ -180,8 +171,17 @@ export function jsonDownload(
     let first = true;
     for (const { item, density } of items) {
       const text = JSON.stringify(item);
-      yield (first ? "\n" : ",\n") + (density ? `${text.slice(0, -1)},"density":${densityJson(density)}}` : text);
+      const lead = first ? "\n" : ",\n";
       first = false;
+      if (!density) {
+        yield lead + text;
+        continue;
+      }
+      // Probabilities to 6 significant digits (Float32 holds about seven), written as bytes: a full
+      // download holds millions of them.
+      yield `${lead}${text.slice(0, -1)},"density":{"start_cal_bp":${density.start},"step":1,"p":`;
+      yield probabilityArrayBytes(density.values);
+      yield "}}";
     }
     yield "\n]}\n";
   }

@@ -1,13 +1,14 @@
-// Releases: a frozen, named, citable constraint set. Publishing copies every selected item (and
-// its calendar density) into release_items in one transaction; nothing here ever updates or
-// deletes a release or its items, so edits, regrades and withdrawals in the registry leave
-// published releases exactly as they were.
+// Releases: a frozen, named, citable constraint set. Publishing copies every selected item into
+// release_items in one transaction and names the calibration whose density it released (with the
+// density's SHA-256); recalibration never deletes a calibration a release names. Nothing here ever
+// updates or deletes a release or its items, so edits, regrades, recalibrations and withdrawals
+// in the registry leave published releases exactly as they were.
 import { createHash } from "node:crypto";
 import type { Db } from "#app/db/client.server.ts";
 import { CHECKSUM_RULE, releaseChecksum, roundForFreezing } from "#app/models/releases/canonical.server.ts";
 import { usageOf, type CurveUse } from "#app/models/releases/downloads.server.ts";
 import { selectionIds } from "#app/models/registry/constraints.server.ts";
-import { densitiesFor, selectionItems, type ConstraintItem } from "#app/models/releases/selection.server.ts";
+import { densitiesFor, selectionItems, type ConstraintItem, type SelectedRow } from "#app/models/releases/selection.server.ts";
 import { filterRecord, type ConstraintFilter } from "#app/utils/constraint-filter.ts";
 
 export type DensityRef = { calibration_id: number; start_cal_bp: number; step: 1; length: number; sha256: string };
@@ -95,22 +96,21 @@ export function publishRelease(db: Db, input: PublishInput): { id: number; slug:
       throw new PublishRefused(`A release named “${name}” version ${version} already exists; give a new version.`, "version");
     const rows = [...selectionItems(db, selectionIds(db, input.filter))];
     if (rows.length === 0) throw new PublishRefused("The filter selects no determinations; a release cannot be empty.", "filter");
-    const blobs = densitiesFor(
-      db,
-      rows.map((r) => r.calibrationId),
-    );
+    fillDensityHashes(db, rows);
     const frozen = rows.map((r) => {
-      const b = blobs.get(r.calibrationId);
-      const ref: DensityRef | null = b
+      const ref: DensityRef | null = r.density
         ? {
             calibration_id: r.calibrationId,
-            start_cal_bp: b.start,
+            start_cal_bp: r.density.start,
             step: 1,
-            length: b.blob.byteLength / 4,
-            sha256: createHash("sha256").update(b.blob).digest("hex"),
+            length: r.density.length,
+            sha256: r.density.sha256!,
           }
         : null;
-      return { item: roundForFreezing({ ...r.item, density_ref: ref }) as FrozenItem, density: b ?? null };
+      return {
+        item: roundForFreezing({ ...r.item, density_ref: ref }) as FrozenItem,
+        calibrationId: ref ? r.calibrationId : null,
+      };
     });
     const checksum = releaseChecksum(frozen.map((f) => f.item));
     const now = input.now ?? new Date();
@@ -152,10 +152,9 @@ export function publishRelease(db: Db, input: PublishInput): { id: number; slug:
       );
     const releaseId = Number(lastInsertRowid);
     const insert = sqlite.prepare(
-      "insert into release_items (release_id, determination_id, frozen, density_start_cal_bp, density) values (?, ?, ?, ?, ?)",
+      "insert into release_items (release_id, determination_id, frozen, calibration_id) values (?, ?, ?, ?)",
     );
-    for (const f of frozen)
-      insert.run(releaseId, f.item.id, JSON.stringify(f.item), f.density?.start ?? null, f.density?.blob ?? null);
+    for (const f of frozen) insert.run(releaseId, f.item.id, JSON.stringify(f.item), f.calibrationId);
     sqlite
       .prepare(
         "insert into audit_log (actor_id, action, entity, entity_id, after) values (?, 'release.publish', 'release', ?, ?)",
@@ -163,6 +162,26 @@ export function publishRelease(db: Db, input: PublishInput): { id: number; slug:
       .run(input.userId, String(releaseId), JSON.stringify({ slug, name, version, count: rows.length, checksum }));
     return { id: releaseId, slug, checksum, count: rows.length };
   })();
+}
+
+/**
+ * Calibrations written before density_sha256 existed get it now (read once, hashed, stored), so
+ * every released density is named by its hash. Runs inside the publishing transaction.
+ */
+function fillDensityHashes(db: Db, rows: SelectedRow[]): void {
+  const missing = rows.filter((r) => r.density && r.density.sha256 == null);
+  if (missing.length === 0) return;
+  const blobs = densitiesFor(
+    db,
+    missing.map((r) => r.calibrationId),
+  );
+  const store = db.$client.prepare("update calibrations set density_sha256 = ? where id = ? and density_sha256 is null");
+  for (const r of missing) {
+    const b = blobs.get(r.calibrationId);
+    if (!b) continue;
+    r.density!.sha256 = createHash("sha256").update(b.blob).digest("hex");
+    store.run(r.density!.sha256, r.calibrationId);
+  }
 }
 
 const RELEASE_SELECT = `select r.id, r.slug, r.name, r.version, r.description, r.filter, r.curve_versions as curves,
@@ -206,11 +225,23 @@ export function releaseItems(db: Db, releaseId: number): FrozenItem[] {
   return releaseItemTexts(db, releaseId).map((t) => JSON.parse(t) as FrozenItem);
 }
 
+/**
+ * The released density of each item of a release: a copy in release_items (releases published
+ * before release_items.calibration_id existed) or the calibration it names, which is never
+ * deleted or changed. Columns: ri (release_items) is the alias; gives `start` and `blob`.
+ * Model-run scoring and the downloads read densities through this.
+ */
+export const RELEASE_DENSITY_SQL = {
+  columns: "coalesce(ri.density_start_cal_bp, rc.density_start_cal_bp) as start, coalesce(ri.density, rc.density) as blob",
+  join: "left join calibrations rc on rc.id = ri.calibration_id",
+};
+
 /** The frozen densities of a release's items, a few hundred at a time, in id order. */
 export function* releaseItemsWithDensities(db: Db, releaseId: number, batch = 500) {
   const stmt = db.$client.prepare(
-    `select determination_id as id, frozen, density_start_cal_bp as start, density as blob from release_items
-     where release_id = ? and determination_id > ? order by determination_id limit ?`,
+    `select ri.determination_id as id, ri.frozen, ${RELEASE_DENSITY_SQL.columns}
+     from release_items ri ${RELEASE_DENSITY_SQL.join}
+     where ri.release_id = ? and ri.determination_id > ? order by ri.determination_id limit ?`,
   );
   let after = -1;
   for (;;) {

@@ -51,84 +51,163 @@ export type ConstraintItem = {
   publication: { citation: string; doi: string | null } | null;
 };
 
-type Row = Omit<ConstraintItem, "grade_name" | "flags" | "checks" | "worst_check" | "hpd68" | "hpd95" | "publication"> & {
-  flags: string | null;
-  checks: string | null;
-  hpd68: string | null;
-  hpd95: string | null;
-  pub_citation: string | null;
-  pub_doi: string | null;
-  calibration_id: number;
-  curve_id: number | null;
-};
+/** A row of the items query in column order (read with .raw(): arrays cost far less than objects). */
+type RowTuple = [
+  id: number,
+  lab_code: string,
+  lab: string,
+  site_id: number,
+  site_name: string,
+  latitude: number,
+  longitude: number,
+  elevation_m: number | null,
+  sample_code: string,
+  material: string,
+  depth_cm: number | null,
+  method: string,
+  signal: string | null,
+  constraint_kind: string,
+  grade: number | null,
+  determination_version: number,
+  c14_age: number | null,
+  c14_error: number | null,
+  f14c: number | null,
+  f14c_error: number | null,
+  d13c: number | null,
+  delta_r: number | null,
+  delta_r_error: number | null,
+  de_gy: number | null,
+  de_error_gy: number | null,
+  dose_rate_gy_per_ka: number | null,
+  dose_rate_error_gy_per_ka: number | null,
+  measurement_year: number | null,
+  calibration_id: number,
+  curve_id: number | null,
+  calibration_curve: string,
+  median_cal_bp: number,
+  hpd68: string | null,
+  hpd95: string | null,
+  density_start: number | null,
+  density_length: number | null,
+  density_sha256: string | null,
+  pub_citation: string | null,
+  pub_doi: string | null,
+];
 
 const WORST: Record<string, number> = { pass: 0, note: 1, warning: 2, conflict: 3 };
 
-function toItem(r: Row): ConstraintItem {
-  const checks = (r.checks ? (JSON.parse(r.checks) as CheckSummary[]) : []).sort((a, b) =>
+function toItem(r: RowTuple, flags: string | undefined, unsorted: CheckSummary[] | undefined): ConstraintItem {
+  const [
+    id,
+    lab_code,
+    lab,
+    site_id,
+    site_name,
+    latitude,
+    longitude,
+    elevation_m,
+    sample_code,
+    material,
+    depth_cm,
+    method,
+    signal,
+    constraint_kind,
+    grade,
+    determination_version,
+    c14_age,
+    c14_error,
+    f14c,
+    f14c_error,
+    d13c,
+    delta_r,
+    delta_r_error,
+    de_gy,
+    de_error_gy,
+    dose_rate_gy_per_ka,
+    dose_rate_error_gy_per_ka,
+    measurement_year,
+    _calibration_id,
+    _curve_id,
+    calibration_curve,
+    median_cal_bp,
+    hpd68,
+    hpd95,
+    _density_start,
+    _density_length,
+    _density_sha256,
+    pub_citation,
+    pub_doi,
+  ] = r;
+  const checks = (unsorted ?? []).sort((a, b) =>
     a.check === b.check ? WORST[b.severity]! - WORST[a.severity]! : a.check < b.check ? -1 : 1,
   );
   let worst: string | null = null;
   for (const c of checks) if (worst === null || WORST[c.severity]! > WORST[worst]!) worst = c.severity;
   return {
-    id: r.id,
-    lab_code: r.lab_code,
-    lab: r.lab,
-    site_id: r.site_id,
-    site_name: r.site_name,
-    latitude: r.latitude,
-    longitude: r.longitude,
-    elevation_m: r.elevation_m,
-    sample_code: r.sample_code,
-    material: r.material,
-    depth_cm: r.depth_cm,
-    method: r.method,
-    signal: r.signal,
-    constraint_kind: r.constraint_kind,
-    grade: r.grade,
-    grade_name: gradeWord(r.grade),
-    flags: r.flags ? (JSON.parse(r.flags) as string[]).sort() : [],
+    id,
+    lab_code,
+    lab,
+    site_id,
+    site_name,
+    latitude,
+    longitude,
+    elevation_m,
+    sample_code,
+    material,
+    depth_cm,
+    method,
+    signal,
+    constraint_kind,
+    grade,
+    grade_name: gradeWord(grade),
+    flags: flags ? (JSON.parse(flags) as string[]).sort() : [],
     checks,
     worst_check: worst,
-    determination_version: r.determination_version,
-    c14_age: r.c14_age,
-    c14_error: r.c14_error,
-    f14c: r.f14c,
-    f14c_error: r.f14c_error,
-    d13c: r.d13c,
-    delta_r: r.delta_r,
-    delta_r_error: r.delta_r_error,
-    de_gy: r.de_gy,
-    de_error_gy: r.de_error_gy,
-    dose_rate_gy_per_ka: r.dose_rate_gy_per_ka,
-    dose_rate_error_gy_per_ka: r.dose_rate_error_gy_per_ka,
-    measurement_year: r.measurement_year,
-    calibration_curve: r.calibration_curve,
-    median_cal_bp: r.median_cal_bp,
-    hpd68: r.hpd68 ? (JSON.parse(r.hpd68) as HpdRange[]) : [],
-    hpd95: r.hpd95 ? (JSON.parse(r.hpd95) as HpdRange[]) : [],
-    publication: r.pub_citation == null ? null : { citation: r.pub_citation, doi: r.pub_doi },
+    determination_version,
+    c14_age,
+    c14_error,
+    f14c,
+    f14c_error,
+    d13c,
+    delta_r,
+    delta_r_error,
+    de_gy,
+    de_error_gy,
+    dose_rate_gy_per_ka,
+    dose_rate_error_gy_per_ka,
+    measurement_year,
+    calibration_curve,
+    median_cal_bp,
+    hpd68: hpd68 ? (JSON.parse(hpd68) as HpdRange[]) : [],
+    hpd95: hpd95 ? (JSON.parse(hpd95) as HpdRange[]) : [],
+    publication: pub_citation == null ? null : { citation: pub_citation, doi: pub_doi },
   };
 }
 
-export type SelectedRow = { item: ConstraintItem; calibrationId: number; curveId: number | null };
+/** Where a selected item's density is, read from the calibration's index entry (never the blob). */
+export type DensityInfo = { start: number; length: number; sha256: string | null };
+
+export type SelectedRow = { item: ConstraintItem; calibrationId: number; curveId: number | null; density: DensityInfo | null };
 
 const CHUNK = 900; // below SQLite's bound-parameter limit
 
-/** The items for the given ids, in the order given, read in chunks of a few hundred. */
+/**
+ * The items for the given ids, in the order given, read in chunks of a few hundred: one query for
+ * the rows (the calibration read from its covering index), one for the latest review's flags and
+ * one for the check results of the chunk.
+ */
 export function* selectionItems(db: Db, ids: readonly number[]): Generator<SelectedRow> {
+  const sqlite = db.$client;
   const stmt = (n: number) =>
-    db.$client.prepare(
+    sqlite.prepare(
       `select d.id, d.lab_code, l.name as lab, t.id as site_id, t.name as site_name, t.latitude, t.longitude,
          t.elevation_m, s.field_code as sample_code, s.material, s.depth_cm, d.method, d.signal, d.constraint_kind,
          d.grade, d.version as determination_version,
-         (select r.flags from reviews r where r.determination_id = d.id order by r.id desc limit 1) as flags,
-         (select json_group_array(json_object('check', k."check", 'severity', k.severity))
-            from check_results k where k.determination_id = d.id) as checks,
          d.c14_age_yr as c14_age, d.c14_error_yr as c14_error, d.f14c, d.f14c_error, d.d13c_permil as d13c,
          d.delta_r_yr as delta_r, d.delta_r_error_yr as delta_r_error, d.de_gy, d.de_error_gy,
          d.dose_rate_gy_per_ka, d.dose_rate_error_gy_per_ka, d.measurement_year,
          c.id as calibration_id, c.curve_id, c.curve_label as calibration_curve, c.median_cal_bp, c.hpd68, c.hpd95,
+         c.density_start_cal_bp as density_start, c.density_length, c.density_sha256,
          p.citation as pub_citation, p.doi as pub_doi
        from determinations d
        join samples s on s.id = d.sample_id
@@ -138,13 +217,40 @@ export function* selectionItems(db: Db, ids: readonly number[]): Generator<Selec
        left join publications p on p.id = d.publication_id
        where d.id in (${placeholders(n)})`,
     );
+  const flagsStmt = (n: number) =>
+    sqlite.prepare(
+      `select determination_id as id, flags from reviews
+       where id in (select max(id) from reviews where determination_id in (${placeholders(n)}) group by determination_id)`,
+    );
+  const checksStmt = (n: number) =>
+    sqlite.prepare(
+      `select determination_id as id, "check", severity from check_results where determination_id in (${placeholders(n)})`,
+    );
   for (let i = 0; i < ids.length; i += CHUNK) {
     const chunk = ids.slice(i, i + CHUNK);
-    const rows = stmt(chunk.length).all(...chunk) as Row[];
-    const byId = new Map(rows.map((r) => [r.id, r]));
+    const rows = stmt(chunk.length)
+      .raw(true)
+      .all(...chunk) as RowTuple[];
+    const byId = new Map(rows.map((r) => [r[0], r]));
+    const flags = new Map(
+      flagsStmt(chunk.length)
+        .raw(true)
+        .all(...chunk) as [number, string][],
+    );
+    const checks = new Map<number, CheckSummary[]>();
+    for (const [kid, check, severity] of checksStmt(chunk.length)
+      .raw(true)
+      .all(...chunk) as [number, string, string][]) {
+      const list = checks.get(kid) ?? [];
+      list.push({ check, severity });
+      checks.set(kid, list);
+    }
     for (const id of chunk) {
       const r = byId.get(id);
-      if (r) yield { item: toItem(r), calibrationId: r.calibration_id, curveId: r.curve_id };
+      if (!r) continue;
+      const [start, length, sha256] = [r[34], r[35], r[36]];
+      const density = start != null && length != null ? { start, length, sha256 } : null;
+      yield { item: toItem(r, flags.get(id), checks.get(id)), calibrationId: r[28], curveId: r[29], density };
     }
   }
 }
