@@ -1,6 +1,7 @@
 import { beforeAll, describe, expect, it } from "vitest";
 import { getDb } from "#app/db/client.server.ts";
 import { calibrateDeterminations } from "#app/models/calibration/calibrations.server.ts";
+import { loadConstraints } from "#app/models/model-runs/constraints.server.ts";
 import { releaseChecksum } from "#app/models/releases/canonical.server.ts";
 import { releaseResponse } from "#app/models/releases/release-download.server.ts";
 import { releaseDiff } from "#app/models/releases/release-diff.server.ts";
@@ -144,6 +145,18 @@ describe("a release never changes", () => {
       calibration_id: released.id,
       sha256: rows.find((r) => r.id === released.id)!.sha,
     });
+  });
+
+  it("model-run scoring of the release reads the released density, not the recalibrated one", () => {
+    const set = loadConstraints(getDb(), { releaseSlug: release.slug });
+    const scored = set.constraints.find((c) => c.determinationId === edited)!;
+    const dense = JSON.parse(downloads.densities!).constraints.find((i: { id: number }) => i.id === edited);
+    expect(scored.density.startCalBp).toBe(dense.density.start_cal_bp);
+    expect(scored.density.values.length).toBe(dense.density.p.length);
+    const current = sqlite()
+      .prepare("select density_start_cal_bp as start from calibrations where determination_id = ? and is_current = 1")
+      .get(edited) as { start: number };
+    expect(current.start).not.toBe(dense.density.start_cal_bp); // the registry moved (+400 ¹⁴C years)
   });
 
   it("the next release differs by what changed: removed, regraded, recalibrated, added", () => {

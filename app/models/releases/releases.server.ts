@@ -228,18 +228,19 @@ export function releaseItems(db: Db, releaseId: number): FrozenItem[] {
 /**
  * The released density of each item of a release: a copy in release_items (releases published
  * before release_items.calibration_id existed) or the calibration it names, which is never
- * deleted or changed. Columns: ri (release_items) is the alias; gives `start` and `blob`.
+ * deleted or changed. `start` and `density` are expressions over ri (release_items) and the `join`.
  * Model-run scoring and the downloads read densities through this.
  */
 export const RELEASE_DENSITY_SQL = {
-  columns: "coalesce(ri.density_start_cal_bp, rc.density_start_cal_bp) as start, coalesce(ri.density, rc.density) as blob",
+  start: "coalesce(ri.density_start_cal_bp, rc.density_start_cal_bp)",
+  density: "coalesce(ri.density, rc.density)",
   join: "left join calibrations rc on rc.id = ri.calibration_id",
 };
 
 /** The frozen densities of a release's items, a few hundred at a time, in id order. */
 export function* releaseItemsWithDensities(db: Db, releaseId: number, batch = 500) {
   const stmt = db.$client.prepare(
-    `select ri.determination_id as id, ri.frozen, ${RELEASE_DENSITY_SQL.columns}
+    `select ri.determination_id as id, ri.frozen, ${RELEASE_DENSITY_SQL.start} as start, ${RELEASE_DENSITY_SQL.density} as blob
      from release_items ri ${RELEASE_DENSITY_SQL.join}
      where ri.release_id = ? and ri.determination_id > ? order by ri.determination_id limit ?`,
   );
