@@ -25,20 +25,30 @@ export type SiteMapProps = {
   highlightAge: number | null;
   ageDomain: [number, number];
   onReady: (markerCount: number) => void;
+  /**
+   * Popups link to the site page (signed-in pages). A public map (a release's) sets false: its
+   * popups then say everything themselves, with the site's position, and link nowhere.
+   */
+  linkSites?: boolean;
 };
 
 function escapeHtml(s: string): string {
   return s.replace(/[&<>"']/g, (c) => ({ "&": "&amp;", "<": "&lt;", ">": "&gt;", '"': "&quot;", "'": "&#39;" })[c]!);
 }
 
-function popupHtml(s: ClientMapSite): string {
+const degrees = (v: number, pos: string, neg: string) => `${Math.abs(v).toFixed(3)}° ${v >= 0 ? pos : neg}`;
+
+function popupHtml(s: ClientMapSite, linkSites: boolean): string {
   const age = s.med != null ? `${formatYears(s.med)} cal BP (median of deglaciation dates)` : "no age yet";
   const grade = s.grade != null ? `best grade ${s.grade} ${gradeWord(s.grade)}` : "ungraded";
+  const more = linkSites
+    ? `<a href="/sites/${s.id}" data-site-link>Open the site page</a>`
+    : `<p style="margin:0">${degrees(s.lat, "N", "S")}, ${degrees(s.lon, "E", "W")} · site ${s.id} in the downloads (site_id)</p>`;
   return `<div class="font-serif">
     <p style="margin:0;font-weight:600;font-size:15px">${escapeHtml(s.name)}</p>
-    <p style="margin:2px 0 0">${s.n} determination${s.n === 1 ? "" : "s"} · ${age}</p>
+    <p style="margin:2px 0 0">${s.n.toLocaleString("en")} determination${s.n === 1 ? "" : "s"} · ${age}</p>
     <p style="margin:2px 0 6px">${grade}</p>
-    <a href="/sites/${s.id}" data-site-link>Open the site page</a>
+    ${more}
   </div>`;
 }
 
@@ -93,10 +103,12 @@ function SiteMarkers({
   sites,
   styleFor,
   onReady,
+  linkSites,
 }: {
   sites: ClientMapSite[];
   styleFor: (s: ClientMapSite) => L.CircleMarkerOptions;
   onReady: (n: number) => void;
+  linkSites: boolean;
 }) {
   const map = useMap();
   const navigate = useNavigate();
@@ -130,7 +142,7 @@ function SiteMarkers({
     const group = L.layerGroup();
     markersRef.current = sites.map((site) => {
       const marker = L.circleMarker([site.lat, site.lon], { renderer, ...styleRef.current(site) });
-      marker.bindPopup(() => popupHtml(site));
+      marker.bindPopup(() => popupHtml(site, linkSites));
       marker.bindTooltip(() => textLabel(site.name), { direction: "top", offset: [0, -4] });
       group.addLayer(marker);
       return { site, marker };
@@ -147,7 +159,7 @@ function SiteMarkers({
     };
     // onReady is a notification; a new callback identity must not rebuild thousands of markers.
     // eslint-disable-next-line react-hooks/exhaustive-deps
-  }, [map, sites]);
+  }, [map, sites, linkSites]);
 
   useEffect(() => {
     for (const { site, marker } of markersRef.current) marker.setStyle(styleFor(site));
@@ -156,7 +168,7 @@ function SiteMarkers({
 }
 
 export default function SiteMap(props: SiteMapProps) {
-  const { sites, isochrones, showIsochrones, colourBy, time, highlightAge, ageDomain, onReady } = props;
+  const { sites, isochrones, showIsochrones, colourBy, time, highlightAge, ageDomain, onReady, linkSites = true } = props;
   const ageScale = useMemo(() => ageColourScale(ageDomain[0], ageDomain[1]), [ageDomain]);
   const colour = useMemo(() => (age: number) => ageScale(age), [ageScale]);
 
@@ -188,7 +200,7 @@ export default function SiteMap(props: SiteMapProps) {
       {isochrones ? (
         <Isochrones features={isochrones} visible={showIsochrones} highlightAge={highlightAge} colour={colour} />
       ) : null}
-      <SiteMarkers sites={sites} styleFor={styleFor} onReady={onReady} />
+      <SiteMarkers sites={sites} styleFor={styleFor} onReady={onReady} linkSites={linkSites} />
     </MapContainer>
   );
 }

@@ -278,6 +278,7 @@ function ReleaseMap({ sites }: { sites: MapSite[] }) {
             highlightAge={null}
             ageDomain={domain}
             onReady={onReady}
+            linkSites={false}
           />
         </Suspense>
       ) : (
