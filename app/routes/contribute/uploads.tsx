@@ -140,7 +140,9 @@ export default function Uploads({ loaderData }: Route.ComponentProps) {
                 ))}
               </tbody>
             </table>
-            <p className="mt-2 text-sm text-muted">An upload can be undone until a reviewer grades one of its determinations.</p>
+            <p className="mt-2 text-sm text-muted">
+              An upload can be undone while its determinations are untouched: none reviewed, withdrawn, released or scored.
+            </p>
           </div>
         )}
       </section>
