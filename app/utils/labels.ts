@@ -106,6 +106,7 @@ export const AUDIT_ACTION_VERBS: Record<string, string> = {
   "determination.withdraw": "Withdrawn",
   "determination.delete": "Deleted",
   "determination.grade": "Graded",
+  "determination.dose_rate_recompute": "Dose rate computed again with the full model",
   "calibration.recalibrate": "Recalibrated",
   "sample.delete": "Sample removed",
   "lab.create": "Lab registered",
