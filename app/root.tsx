@@ -19,6 +19,7 @@ import { getOptionalUser } from "#app/auth/session.server.ts";
 import { readFlash } from "#app/utils/flash.server.ts";
 import { navigationFor } from "#app/utils/navigation.ts";
 import { useNonce } from "#app/utils/nonce.ts";
+import { useHydrated } from "#app/utils/use-hydrated.ts";
 
 export const meta: Route.MetaFunction = () => [
   { title: "Thawline — a registry of ice-free dates" },
@@ -37,6 +38,7 @@ export async function loader({ request }: Route.LoaderArgs) {
 
 export function Layout({ children }: { children: React.ReactNode }) {
   const nonce = useNonce();
+  const hydrated = useHydrated();
   return (
     <html lang="en">
       <head>
@@ -46,7 +48,8 @@ export function Layout({ children }: { children: React.ReactNode }) {
         <Meta />
         <Links />
       </head>
-      <body>
+      {/* data-hydrated: scripts have taken over the page (browser tests wait for it). */}
+      <body data-hydrated={hydrated ? "true" : undefined}>
         {children}
         <ScrollRestoration nonce={nonce} />
         <Scripts nonce={nonce} />

@@ -18,13 +18,15 @@ function step(label: string, cmd: string, args: string[]) {
   return r.status === 0;
 }
 
-function vitest(project: string) {
+/** `shuffle`: run the files and tests in a random order (each integration test has a database of its own). */
+function vitest(project: string, { shuffle = false } = {}) {
   const out = path.resolve(`tmp/vitest-${project}.json`);
   fs.rmSync(out, { force: true });
   step(`${project} tests`, bin("vitest"), [
     "run",
     "--project",
     project,
+    ...(shuffle ? ["--sequence.shuffle"] : []),
     "--reporter=default",
     "--reporter=json",
     `--outputFile.json=${out}`,
@@ -44,8 +46,8 @@ function vitest(project: string) {
   }
 }
 
-vitest("unit");
-vitest("integration");
+vitest("unit", { shuffle: true });
+vitest("integration", { shuffle: true });
 if (step("build", bin("vite"), ["build"])) vitest("e2e");
 
 console.log(`\n${totals.passed} passed, ${totals.failed} failed, ${totals.skipped} skipped`);

@@ -1,6 +1,7 @@
 import fs from "node:fs";
 import { expect, inject, test } from "vitest";
 import { useBrowser } from "./browser.ts";
+import { waitForHydration } from "./helpers.ts";
 
 const e2e = useBrowser();
 
@@ -8,7 +9,7 @@ test("calibrate one age as you type, see the plot, download the CSV", async () =
   const page = await e2e.browser.newPage({ acceptDownloads: true });
   await page.goto(`${inject("baseUrl")}/calibrate`);
   // Typing only calibrates once the page is interactive.
-  await page.waitForLoadState("networkidle");
+  await waitForHydration(page);
   await page.fill("#age", "10250");
   await page.fill("#error", "45");
 
@@ -35,7 +36,7 @@ test("calibrate one age as you type, see the plot, download the CSV", async () =
 test("a pasted list shows each result and a message for a bad line", async () => {
   const page = await e2e.browser.newPage();
   await page.goto(`${inject("baseUrl")}/calibrate`);
-  await page.waitForLoadState("networkidle");
+  await waitForHydration(page);
   await page.check("#mode-list");
   await page.fill("#list", "a1, 10250, 45\nm1, 9500, 70, marine20, 50, 40\nbad, x, 3");
   await page.waitForFunction(() => document.querySelectorAll('[data-testid="median"]').length === 2);

@@ -1,7 +1,7 @@
 import { describe, expect, inject, test } from "vitest";
 import type { Page } from "playwright-core";
 import { useBrowserAndDatabase } from "./browser.ts";
-import { signIn } from "./helpers.ts";
+import { signInAs, waitForHydration } from "./helpers.ts";
 
 /*
  * The modeller's first look round: Explore with a filter, a sort and a second page, one
@@ -31,11 +31,11 @@ describe("exploring the registry", () => {
     const context = await e2e.browser.newContext();
     const page = await context.newPage();
     const foreign = recordForeignRequests(page);
-    await signIn(page, "modeller@example.org");
+    await signInAs(page, "modeller@example.org");
 
     await page.goto(`${baseUrl}/explore`);
     await page.getByRole("heading", { name: "Explore determinations" }).waitFor();
-    await page.waitForLoadState("networkidle");
+    await waitForHydration(page);
     const table = page.getByTestId("explore-table");
     await table.waitFor();
     const allTotal = firstNumber(await page.getByTestId("explore-total").textContent());
@@ -115,9 +115,9 @@ describe("exploring the registry", () => {
   });
 
   test("the filter form works without JavaScript", async () => {
-    // Sign in with scripts on, then carry the session into a context with scripts off.
+    // Sign in, then carry the session into a context with scripts off.
     const signedIn = await e2e.browser.newContext();
-    await signIn(await signedIn.newPage(), "modeller@example.org");
+    await signInAs(signedIn, "modeller@example.org");
     const cookies = await signedIn.cookies(baseUrl);
     await signedIn.close();
     const noScript = await e2e.browser.newContext({ javaScriptEnabled: false });

@@ -1,4 +1,5 @@
 import { spawn, spawnSync, type ChildProcess } from "node:child_process";
+import crypto from "node:crypto";
 import fs from "node:fs";
 import net from "node:net";
 import path from "node:path";
@@ -11,6 +12,8 @@ declare module "vitest" {
     outboxDir: string;
     mailFakeUrl: string;
     databaseFile: string;
+    /** The app's SESSION_SECRET, so the sign-in fixture (helpers.ts signInAs) can sign its cookie. */
+    sessionSecret: string;
   }
 }
 
@@ -57,6 +60,7 @@ export default async function setup(project: TestProject) {
 
   const mail = await startMailFake({ port: 0, outboxDir });
   const port = await freePort();
+  const sessionSecret = crypto.randomBytes(32).toString("hex");
   const baseUrl = `http://127.0.0.1:${port}`;
   const env = {
     ...process.env,
@@ -65,6 +69,7 @@ export default async function setup(project: TestProject) {
     HOST: "127.0.0.1",
     APP_URL: baseUrl,
     DATABASE_URL: databaseFile,
+    SESSION_SECRET: sessionSecret,
     RESEND_API_KEY: "re_fake_e2e",
     DEV_OUTBOX: "true",
     RESEND_BASE_URL: mail.url,
@@ -89,6 +94,7 @@ export default async function setup(project: TestProject) {
   project.provide("outboxDir", outboxDir);
   project.provide("mailFakeUrl", mail.url);
   project.provide("databaseFile", databaseFile);
+  project.provide("sessionSecret", sessionSecret);
 
   return async () => {
     child.kill("SIGTERM");

@@ -2,7 +2,7 @@ import Database from "better-sqlite3";
 import { afterAll, beforeAll, expect, inject, test } from "vitest";
 import type { Locator, Page } from "playwright-core";
 import { useBrowser } from "./browser.ts";
-import { signIn } from "./helpers.ts";
+import { signInAs } from "./helpers.ts";
 
 /*
  * Hardening corpus, case 1: a site name with markup is shown as text in every map label. Every
@@ -51,7 +51,7 @@ async function expectTextOnly(page: Page, tooltip: Locator) {
 
 test("the map's hover label shows a hostile site name as text", async () => {
   const page = await e2e.browser.newPage({ viewport: { width: 1280, height: 900 } });
-  await signIn(page, "modeller@example.org");
+  await signInAs(page, "modeller@example.org");
   await page.goto(`${baseUrl}/map`);
   await page.getByTestId("map-ready").waitFor({ state: "attached", timeout: 30_000 });
   const tooltip = await hoverUntilTooltip(page, page.locator(".leaflet-container").first());
@@ -61,7 +61,7 @@ test("the map's hover label shows a hostile site name as text", async () => {
 
 test("the site picker's hover label shows a hostile site name as text", async () => {
   const page = await e2e.browser.newPage({ viewport: { width: 1280, height: 900 } });
-  await signIn(page, "contributor@example.org");
+  await signInAs(page, "contributor@example.org");
   await page.goto(`${baseUrl}/submit`);
   await page.getByLabel("A new site").check();
   const map = page.getByRole("application", { name: "Map for placing the new site" });

@@ -1,5 +1,8 @@
+import crypto from "node:crypto";
+import Database from "better-sqlite3";
+import type { BrowserContext, Page } from "playwright-core";
+import { createCookie } from "react-router";
 import { inject } from "vitest";
-import type { Page } from "playwright-core";
 
 type OutboxMessage = { id: string; to: string[] | string; subject: string; text?: string; html?: string; created_at?: string };
 
@@ -30,14 +33,41 @@ export function codeFrom(message: OutboxMessage): string {
   return match[1]!;
 }
 
-/** Signs in through the real form: address → code from the mail fake → signed in. */
-export async function signIn(page: Page, email: string) {
-  const before = (await messagesFor(email)).length;
-  await page.goto(`${inject("baseUrl")}/sign-in`);
-  await page.fill('input[name="email"]', email);
-  await page.click('button[type="submit"]');
-  const message = await waitForMessage(email, before);
-  await page.waitForSelector('input[name="code"]');
-  await page.fill('input[name="code"]', codeFrom(message));
-  await Promise.all([page.waitForURL((url) => !url.pathname.startsWith("/sign-in")), page.click('button[type="submit"]')]);
+/**
+ * Signs a person in without the code flow — for every browser test except the sign-in tests, which
+ * keep the real form. Writes a session row for the (active) person with this address into the app's
+ * database, as the sign-in would, and sets its signed cookie on the page's browser context. The page
+ * stays where it is: `goto` next.
+ */
+export async function signInAs(target: Page | BrowserContext, email: string): Promise<{ userId: number; sessionId: string }> {
+  const context = "context" in target ? target.context() : target;
+  const db = new Database(inject("databaseFile"), { fileMustExist: true });
+  try {
+    db.pragma("busy_timeout = 5000");
+    const user = db.prepare("SELECT id FROM users WHERE lower(email) = lower(?) AND active = 1").get(email) as
+      { id: number } | undefined;
+    if (!user) throw new Error(`No active person ${email} in the e2e database`);
+    const sessionId = crypto.randomBytes(32).toString("base64url");
+    db.prepare("INSERT INTO sessions (id, user_id, expires_at, user_agent, ip) VALUES (?, ?, ?, ?, ?)").run(
+      sessionId,
+      user.id,
+      Date.now() + 24 * 60 * 60 * 1000,
+      "e2e sign-in fixture",
+      "127.0.0.1",
+    );
+    const cookie = createCookie(SESSION_COOKIE, { secrets: [inject("sessionSecret")], path: "/" });
+    const value = (await cookie.serialize(sessionId)).split(";")[0]!.slice(SESSION_COOKIE.length + 1);
+    await context.addCookies([{ name: SESSION_COOKIE, value, url: inject("baseUrl"), httpOnly: true, sameSite: "Lax" }]);
+    return { userId: user.id, sessionId };
+  } finally {
+    db.close();
+  }
 }
+
+/** Waits until React has hydrated the page (root.tsx marks the body), so typing and clicks reach its handlers. */
+export async function waitForHydration(page: Page) {
+  await page.locator("body[data-hydrated]").waitFor({ state: "attached" });
+}
+
+/** The app's session cookie (app/auth/session.server.ts). */
+const SESSION_COOKIE = "thawline_session";

@@ -1,7 +1,7 @@
 import { expect, inject, test } from "vitest";
 import type { Locator } from "playwright-core";
 import { useBrowser } from "./browser.ts";
-import { signIn } from "./helpers.ts";
+import { signInAs, waitForHydration } from "./helpers.ts";
 
 const e2e = useBrowser();
 
@@ -17,9 +17,9 @@ async function centreOf(locator: Locator): Promise<{ x: number; y: number }> {
 
 test("a contributor places a new site on the map; typed coordinates move the marker; Enter places it from the keyboard", async () => {
   const page = await e2e.browser.newPage({ viewport: { width: 1280, height: 900 } });
-  await signIn(page, "contributor@example.org");
+  await signInAs(page, "contributor@example.org");
   await page.goto(`${inject("baseUrl")}/submit`);
-  await page.waitForLoadState("networkidle");
+  await waitForHydration(page);
   await page.getByLabel("A new site").check();
 
   const map = page.getByRole("application", { name: "Map for placing the new site" });

@@ -1,6 +1,6 @@
 import { expect, inject, test } from "vitest";
 import { useBrowser } from "./browser.ts";
-import { signIn } from "./helpers.ts";
+import { signInAs, waitForHydration } from "./helpers.ts";
 
 const e2e = useBrowser();
 
@@ -8,11 +8,11 @@ test("a contributor submits a radiocarbon date by form, sees it calibrate live, 
   const page = await e2e.browser.newPage();
   const base = inject("baseUrl");
   const labCode = `FORM-${Date.now() % 1_000_000}`;
-  await signIn(page, "contributor@example.org");
+  await signInAs(page, "contributor@example.org");
 
   await page.goto(`${base}/submit`);
   // Typing only previews once the page is interactive.
-  await page.waitForLoadState("networkidle");
+  await waitForHydration(page);
   await page.getByLabel("A new site").check();
   await page.fill('input[name="site_name"]', "Browser Test Knoll");
   await page.fill('input[name="latitude"]', "58.6012");
@@ -65,7 +65,7 @@ test("without script, choosing a new site and submitting reveals the new-site fi
   const context = await e2e.browser.newContext({ javaScriptEnabled: false });
   const page = await context.newPage();
   const base = inject("baseUrl");
-  await signIn(page, "contributor@example.org");
+  await signInAs(page, "contributor@example.org");
   await page.goto(`${base}/submit`);
   // The registry has sites, so the form starts on "a site already in the registry".
   expect(await page.locator('input[name="site_name"]').isVisible()).toBe(false);

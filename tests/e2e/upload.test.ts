@@ -2,7 +2,7 @@ import fs from "node:fs";
 import ExcelJS from "exceljs";
 import { describe, expect, inject, test } from "vitest";
 import { useBrowserAndDatabase } from "./browser.ts";
-import { signIn } from "./helpers.ts";
+import { signInAs } from "./helpers.ts";
 import { uploadRows } from "../support/upload-files.ts";
 
 /*
@@ -17,7 +17,7 @@ describe("uploading a spreadsheet", () => {
   test("template → 50 rows with 3 bad → errors → commit the valid rows → Explore", async () => {
     const context = await e2e.browser.newContext({ acceptDownloads: true });
     const page = await context.newPage();
-    await signIn(page, "contributor@example.org");
+    await signInAs(page, "contributor@example.org");
 
     await page.goto(`${baseUrl}/uploads`);
     await page.getByRole("heading", { name: "Upload determinations" }).waitFor();

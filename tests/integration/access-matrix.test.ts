@@ -7,7 +7,8 @@
  * called with the person's session cookie; routes marked `auth: "token"` with their API token.
  */
 import path from "node:path";
-import { beforeAll, describe, expect, it } from "vitest";
+import { describe, expect, it } from "vitest";
+import { seedForFile } from "#tests/support/test-db.ts";
 import type { RouteConfigEntry } from "@react-router/dev/routes";
 import routes from "#app/routes.ts";
 import { getDb } from "#app/db/client.server.ts";
@@ -292,7 +293,7 @@ async function freshSessions() {
   cookies = next;
 }
 
-beforeAll(async () => {
+seedForFile(async () => {
   const db = getDb();
   for (const role of AUDIENCES.filter((a): a is Role => a !== "signed-out")) {
     const p = await personWithSession([role], { email: `matrix-${role}@example.org` });

@@ -1,4 +1,5 @@
-import { beforeAll, describe, expect, it } from "vitest";
+import { describe, expect, it } from "vitest";
+import { seedForFile } from "#tests/support/test-db.ts";
 import { getDb } from "#app/db/client.server.ts";
 import { publications } from "#app/db/schema.ts";
 import { loader } from "#app/routes/explore/determination.tsx";
@@ -19,7 +20,7 @@ async function detail(id: number | string): Promise<DeterminationDetail> {
   return (outcome.data as { detail: DeterminationDetail }).detail;
 }
 
-beforeAll(async () => {
+seedForFile(async () => {
   const db = getDb();
   cookie = (await personWithSession(["modeller"])).cookie;
   const reviewer = await personWithSession(["reviewer"], { name: "Ottilie Reviewer-Test" });
@@ -75,12 +76,6 @@ beforeAll(async () => {
 });
 
 describe("determination page loader", () => {
-  it("sends signed-out visitors to sign in", async () => {
-    const outcome = await run(() => loader(args(get(`/determinations/${mainId}`), { id: String(mainId) })));
-    expect(outcome.status).toBe(302);
-    expect(outcome.location).toBe(`/sign-in?redirectTo=${encodeURIComponent(`/determinations/${mainId}`)}`);
-  });
-
   it("answers 404 for a missing or malformed id", async () => {
     for (const id of ["999999", "abc", "0", "-4", "1.5"]) {
       const outcome = await run(() => loader(args(get(`/determinations/${id}`, { cookie }), { id })));

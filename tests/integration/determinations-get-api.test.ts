@@ -1,4 +1,5 @@
-import { beforeAll, describe, expect, it } from "vitest";
+import { describe, expect, it } from "vitest";
+import { seedForFile } from "#tests/support/test-db.ts";
 import { getDb } from "#app/db/client.server.ts";
 import { calibrateDeterminations } from "#app/models/calibration/calibrations.server.ts";
 import { createToken } from "#app/models/accounts/tokens.server.ts";
@@ -31,7 +32,7 @@ let luminescenceId: number;
 let withdrawnId: number;
 let siteId: number;
 
-beforeAll(() => {
+seedForFile(() => {
   modellerToken = tokenFor(["modeller"]);
   const lab = createTestLab(db(), { name: "Corniche Test Lab", codePrefix: "CTL" });
   const site = createTestSite(db(), { name: "Apiward Test Point", latitude: 58.25, longitude: -63.75 });

@@ -1,4 +1,5 @@
-import { beforeAll, describe, expect, it } from "vitest";
+import { describe, expect, it } from "vitest";
+import { seedForFile } from "#tests/support/test-db.ts";
 import { getDb } from "#app/db/client.server.ts";
 import { loader } from "#app/routes/explore/explore.tsx";
 import {
@@ -30,7 +31,7 @@ async function explore(query: string): Promise<Outcome["result"]> {
 
 const labCodes = (rows: ExploreRow[]) => rows.map((r) => r.labCode);
 
-beforeAll(async () => {
+seedForFile(async () => {
   const db = getDb();
   cookie = (await personWithSession(["modeller"])).cookie;
 

@@ -1,4 +1,5 @@
-import { beforeAll, describe, expect, it } from "vitest";
+import { beforeEach, describe, expect, it } from "vitest";
+import { seedForFile } from "#tests/support/test-db.ts";
 import { getDb } from "#app/db/client.server.ts";
 import { calibrateDeterminations } from "#app/models/calibration/calibrations.server.ts";
 import { loadConstraints } from "#app/models/model-runs/constraints.server.ts";
@@ -35,7 +36,7 @@ async function allDownloads(r: ReleaseRow): Promise<Record<string, string>> {
   return out;
 }
 
-beforeAll(async () => {
+seedForFile(async () => {
   await seedDemo(getDb(), { size: "small" });
   editorId = createTestUser(getDb(), ["editor"]).id;
   expectedCount = (
@@ -100,7 +101,7 @@ describe("a release never changes", () => {
   let regraded: number;
   let withdrawn: number;
 
-  beforeAll(() => {
+  beforeEach(() => {
     const released = JSON.parse(downloads.json!).constraints as { id: number; method: string; grade: number }[];
     const c14 = released.filter((i) => i.method === "radiocarbon");
     [edited, regraded, withdrawn] = [c14[0]!.id, c14[1]!.id, c14[2]!.id];

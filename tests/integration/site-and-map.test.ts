@@ -1,4 +1,5 @@
-import { beforeAll, describe, expect, it } from "vitest";
+import { describe, expect, it } from "vitest";
+import { seedForFile } from "#tests/support/test-db.ts";
 import { getDb } from "#app/db/client.server.ts";
 import { loader as siteLoader } from "#app/routes/explore/site.tsx";
 import { loader as mapLoader } from "#app/routes/explore/map.tsx";
@@ -13,7 +14,7 @@ let cookie: string;
 let siteId: number;
 let emptySiteId: number;
 
-beforeAll(async () => {
+seedForFile(async () => {
   const db = getDb();
   cookie = (await personWithSession(["contributor"])).cookie;
   const lab = createTestLab(db);

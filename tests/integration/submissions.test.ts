@@ -1,5 +1,6 @@
-import { beforeAll, describe, expect, it } from "vitest";
+import { describe, expect, it } from "vitest";
 import { recordReviews } from "#app/models/review/reviews.server.ts";
+import { seedForFile } from "#tests/support/test-db.ts";
 import { doseRateFromFields } from "#app/science/dose-rate-fields.ts";
 import { getDb } from "#app/db/client.server.ts";
 import * as submitPage from "#app/routes/contribute/submit.tsx";
@@ -31,7 +32,7 @@ let labName: string;
 let n = 0;
 const code = (p = "FRM") => `${p}-${process.pid % 1000}-${++n}`;
 
-beforeAll(async () => {
+seedForFile(async () => {
   contributor = await personWithSession(["contributor"]);
   other = await personWithSession(["contributor"]);
   modeller = await personWithSession(["modeller"]);

@@ -295,7 +295,8 @@ describe("simulated determinations", () => {
 
 describe("provenance and review state", () => {
   it("uses unique lab codes with the invented labs' prefixes", () => {
-    const codes = full.determinations.map((d) => d.labCode);
+    // Unique regardless of case, as the registry's index on lower(lab_code) demands (else the seed would fail).
+    const codes = full.determinations.map((d) => d.labCode.toLowerCase());
     expect(new Set(codes).size).toBe(codes.length);
     for (const d of full.determinations) expect(d.labCode.startsWith(`${full.labs[d.labIndex].codePrefix}-`)).toBe(true);
     for (const lab of full.labs) expect(lab.codePrefix).toMatch(/^[A-Z]{2}[XZ]$/);

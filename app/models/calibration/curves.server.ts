@@ -160,12 +160,14 @@ export function loadCurve(db: Db, curveId: number): Curve {
   return curveFromRows(String(curveId), rows);
 }
 
-// Prepared grids are immutable once built (a curve version never changes), so one per curve id
-// and database file serves the whole process.
+// Prepared grids are immutable once built (a curve version never changes), so one per imported
+// file serves the whole process. Keyed by the file's SHA-256 rather than the row id, so databases
+// that share a curve (tests' per-test copies) share its grid and a reused id never finds another's.
 const preparedCache = new Map<string, PreparedCurve>();
 
 export function preparedCurve(db: Db, curveId: number): PreparedCurve {
-  const key = `${db.$client.name}#${curveId}`;
+  const row = db.$client.prepare("select checksum from curves where id = ?").get(curveId) as { checksum: string } | undefined;
+  const key = row ? row.checksum : `${db.$client.name}#${curveId}`;
   let prepared = preparedCache.get(key);
   if (!prepared) {
     prepared = prepareCurve(loadCurve(db, curveId));

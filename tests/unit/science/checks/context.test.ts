@@ -187,6 +187,11 @@ describe("neighbours", () => {
     const far = at(57.5, -65, { constraintKind: "maximum", age: [11000, 100] }); // about 55 km
     expect(checkNeighbours(a, buildNeighbourIndex([a, far], 25)).details.neighbours).toBe(0);
   });
+
+  it("builds an index over an empty registry, which has no neighbours", () => {
+    const index = buildNeighbourIndex([], 25);
+    expect(index.near(at(57, -65, { age: [12000, 100] }))).toEqual([]);
+  });
 });
 
 describe("reconstruction", () => {
@@ -231,6 +236,7 @@ describe("reconstruction", () => {
     expect(r.severity).toBe("conflict");
     expectQuoted(r.details.pUnderIce as number, 0.9978, 3);
     const l = local(it);
+    expect(l.kind).toBe("bracketed");
     if (l.kind === "bracketed") expectQuoted(probabilityUnderIce(it, l), 0.9978, 3);
     expect(r.message).toContain("test margins");
   });
