@@ -4,7 +4,8 @@ import { mkdtempSync, rmSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { eq } from "drizzle-orm";
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { afterAll, describe, expect, it } from "vitest";
+import { seedForFile } from "#tests/support/test-db.ts";
 import { getDb } from "#app/db/client.server.ts";
 import { calibrations, determinations, jobs, labs, modelRunMargins, modelRuns, samples, sites } from "#app/db/schema.ts";
 import { getJob, jobFinished } from "#app/models/jobs.server.ts";
@@ -21,7 +22,7 @@ afterAll(() => rmSync(dir, { recursive: true, force: true }));
 let modeller: Awaited<ReturnType<typeof personWithSession>>;
 let detId: number;
 
-beforeAll(async () => {
+seedForFile(async () => {
   const db = getDb();
   modeller = await personWithSession(["modeller"]);
   const contributor = await personWithSession(["contributor"]);

@@ -187,11 +187,6 @@ describe("neighbours", () => {
     const far = at(57.5, -65, { constraintKind: "maximum", age: [11000, 100] }); // about 55 km
     expect(checkNeighbours(a, buildNeighbourIndex([a, far], 25)).details.neighbours).toBe(0);
   });
-
-  it("builds an index over an empty registry, which has no neighbours", () => {
-    const index = buildNeighbourIndex([], 25);
-    expect(index.near(at(57, -65, { age: [12000, 100] }))).toEqual([]);
-  });
 });
 
 describe("reconstruction", () => {
