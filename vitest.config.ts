@@ -22,7 +22,7 @@ export default defineConfig({
           setupFiles: ["tests/integration/setup.ts"],
           globalSetup: ["tests/integration/global-setup.ts"],
           testTimeout: 30_000,
-          hookTimeout: 60_000,
+          hookTimeout: 180_000,
         },
       },
       {

@@ -3,9 +3,13 @@
 // faulty determinations with a warning or conflict (recall), and the share of clean ones with
 // one (false alarms). Nothing here is tuned to a seed; run it on any seeded database.
 
-import type { Db } from "#app/db/client.server.ts";
+import fs from "node:fs";
+import path from "node:path";
+import { migrateDatabase, openDatabase, type Db } from "#app/db/client.server.ts";
 import { computeAllChecks, storeCheckResults } from "#app/models/review/check-run.server.ts";
 import { SEVERITY_RANK } from "#app/science/checks/types.ts";
+import { seedDemo } from "#seed/seed.server.ts";
+import { seconds, type BenchSection, type Report } from "./support.ts";
 
 export interface FaultRow {
   fault: string;
@@ -73,3 +77,32 @@ export function formatCheckBench(b: CheckBench, label: string): string[] {
   );
   return lines;
 }
+
+function reportChecks(report: Report, label: string, b: CheckBench, timed: boolean) {
+  const pct = (n: number, d: number) => (d ? `${((100 * n) / d).toFixed(1)} %` : "–");
+  if (timed) {
+    report("checks", `whole-registry run, ${b.determinations} determinations (compute)`, seconds(b.computeMs), "≤ 2 s");
+    report("checks", "whole-registry run (store, one transaction)", seconds(b.storeMs));
+  }
+  for (const f of b.faults) report(`checks ${label}`, `recall: ${f.fault} (n = ${f.count})`, pct(f.flagged, f.count));
+  report(`checks ${label}`, `false alarms: clean (n = ${b.clean.count})`, pct(b.clean.flagged, b.clean.count));
+}
+
+export const bench: BenchSection = {
+  name: "checks",
+  about: "whole-registry check run, and recall / false alarms against the planted faults (default seed and seed 7)",
+  async run({ db, dir, report }) {
+    reportChecks(report, "seed default", benchChecks(db), true);
+    // Another scenario seed, so the figures are not tuned to one (no model runs: the checks do not need them).
+    const file = path.join(dir, "bench-seed-7.db");
+    for (const suffix of ["", "-wal", "-shm"]) fs.rmSync(file + suffix, { force: true });
+    const other = openDatabase(file);
+    try {
+      migrateDatabase(other);
+      await seedDemo(other, { size: "full", seed: 7, ensemble: false });
+      reportChecks(report, "seed 7", benchChecks(other), false);
+    } finally {
+      other.$client.close();
+    }
+  },
+};

@@ -5,7 +5,7 @@ import { selectConstraints, selectionResponse } from "#app/models/releases/selec
 import { publishRelease } from "#app/models/releases/releases.server.ts";
 import { parseConstraintFilter } from "#app/utils/constraint-filter.ts";
 
-type Report = (area: string, measure: string, value: string, goal?: string) => void;
+import { median, type BenchSection, type Report } from "./support.ts";
 
 function filter(q: string) {
   const r = parseConstraintFilter(new URLSearchParams(q));
@@ -85,3 +85,12 @@ export async function benchReleases(db: Db, userId: number, report: Report, medi
     "≤ 2 s",
   );
 }
+
+export const bench: BenchSection = {
+  name: "releases",
+  about: "constraint downloads (CSV, JSON with densities), the live count for a region and window, publishing a release",
+  async run({ db, report, userId }) {
+    console.log("Constraint downloads, live count, publishing…");
+    await benchReleases(db, userId("editor@example.org"), report, median);
+  },
+};
