@@ -1,4 +1,5 @@
-import { beforeAll, describe, expect, it } from "vitest";
+import { describe, expect, it } from "vitest";
+import { seedForFile } from "#tests/support/test-db.ts";
 import { getDb } from "#app/db/client.server.ts";
 import { createToken } from "#app/models/accounts/tokens.server.ts";
 import { determinationDetail } from "#app/models/registry/determination-page.server.ts";
@@ -31,7 +32,7 @@ let n = 0;
 const code = (p: string) => `${p}-${process.pid % 1000}-${++n}`;
 const SITE = { latitude: 57.9402, longitude: -66.1037, elevationM: 88 };
 
-beforeAll(async () => {
+seedForFile(async () => {
   contributor = await personWithSession(["contributor"]);
   const apiUser = createTestUser(db(), ["contributor"]);
   token = createToken(db(), apiUser.id, "test", { actorId: apiUser.id }).token;
