@@ -6,6 +6,7 @@ import { isbot } from "isbot";
 import { renderToPipeableStream, type RenderToPipeableStreamOptions } from "react-dom/server";
 import { NonceContext } from "#app/utils/nonce.ts";
 import { logError } from "#app/http/request-log.js";
+import { warmWorkers } from "#app/workers/pool.server.ts";
 
 /** Called once by server.js when the production server starts (see models/startup.server.ts). */
 export { resumeBackgroundWork as onServerStart } from "#app/models/startup.server.ts";
@@ -16,6 +17,9 @@ export { resumeBackgroundWork as onServerStart } from "#app/models/startup.serve
  */
 
 export const streamTimeout = 5_000;
+
+// Worker threads load the application's modules once, at start, not on the first upload or commit.
+if (process.env.NODE_ENV === "production") warmWorkers();
 
 export default function handleRequest(
   request: Request,

@@ -2,6 +2,7 @@ import { desc, eq } from "drizzle-orm";
 import type { Db } from "#app/db/client.server.ts";
 import { jobs } from "#app/db/schema.ts";
 import { handlerFor, type JobKind } from "#app/models/job-handlers.server.ts";
+import { databaseFileOf, runInWorker } from "#app/workers/pool.server.ts";
 
 /*
  * The one background-job runner. A job is a row in `jobs` (pages poll it through /api/jobs/:id and
@@ -14,7 +15,9 @@ import { handlerFor, type JobKind } from "#app/models/job-handlers.server.ts";
  * the event loop between chunks (so the server keeps answering) and records progress after each;
  * `ctx.report(done)` records progress for work that is not a list. The handler returns the closing
  * message; a throw marks the job failed with the error's message. Params must be plain JSON, and the
- * handler is found by kind, so the work can later move to a worker thread without changing callers.
+ * handler is found by kind: a job runs in the writer worker thread (workers/pool.server.ts) with its
+ * own connection, so pages keep answering while it works; a handler passed in (tests) or an
+ * in-memory database keeps the work in this thread, a chunk at a time.
  */
 
 export type JobRow = typeof jobs.$inferSelect;
@@ -48,20 +51,41 @@ const nextTick = () => new Promise<void>((resolve) => setImmediate(resolve));
 export function startJob<P extends Record<string, unknown>>(
   db: Db,
   spec: JobSpec<P>,
-  handler: JobHandler<P> = handlerFor(spec.kind) as JobHandler<P>,
+  handler?: JobHandler<P>,
 ): { jobId: number; total: number } {
   const job = db
     .insert(jobs)
     .values({ kind: spec.kind, status: "queued", progress: 0, total: spec.total, params: spec.params, createdBy: spec.actorId })
     .returning({ id: jobs.id })
     .get();
-  const promise = run(db, job.id, spec, handler);
+  const file = databaseFileOf(db);
+  const promise =
+    handler || !file
+      ? runJobHere(db, job.id, spec, handler ?? (handlerFor(spec.kind) as JobHandler<P>), { yieldFirst: true })
+      : runInWorker("writer", "job", file, { jobId: job.id, spec }).then(
+          () => {},
+          (error: unknown) => markFailed(db, job.id, error),
+        );
   running.set(job.id, promise);
   void promise.finally(() => running.delete(job.id));
   return { jobId: job.id, total: spec.total };
 }
 
-async function run<P extends Record<string, unknown>>(db: Db, jobId: number, spec: JobSpec<P>, handler: JobHandler<P>) {
+/** A worker thread that died (memory, crash) leaves its job to be marked here. */
+function markFailed(db: Db, jobId: number, error: unknown) {
+  const message = `Stopped: ${error instanceof Error ? error.message : String(error)}`;
+  console.error(`Job ${jobId} failed`, error);
+  db.update(jobs).set({ status: "failed", message, finishedAt: new Date() }).where(eq(jobs.id, jobId)).run();
+}
+
+/** Runs a job in this thread (the worker's, or the server's for tests): status, progress, closing message. */
+export async function runJobHere<P extends Record<string, unknown>>(
+  db: Db,
+  jobId: number,
+  spec: JobSpec<P>,
+  handler: JobHandler<P>,
+  options: { yieldFirst?: boolean } = {},
+) {
   let done = 0;
   const report = (n: number, message?: string) => {
     done = n;
@@ -87,7 +111,7 @@ async function run<P extends Record<string, unknown>>(db: Db, jobId: number, spe
   };
   try {
     // Let the request that started the job finish before any work is done.
-    await nextTick();
+    if (options.yieldFirst) await nextTick();
     db.update(jobs).set({ status: "running" }).where(eq(jobs.id, jobId)).run();
     const message = await handler(ctx);
     db.update(jobs)

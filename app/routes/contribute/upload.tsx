@@ -5,7 +5,8 @@ import { ErrorView } from "#app/components/error-view.tsx";
 import { getDb } from "#app/db/client.server.ts";
 import { sendEmail } from "#app/mail/send.server.ts";
 import { uploadReceiptMessage } from "#app/mail/upload-receipt.server.ts";
-import { commitUpload, CommitRefused } from "#app/models/submission/uploads/commit.server.ts";
+import { CommitRefused } from "#app/models/submission/uploads/commit.server.ts";
+import { commitUploadOffThread } from "#app/models/submission/uploads/off-thread.server.ts";
 import { batchDeterminations, getBatchForUser, remapUpload, sheetOf } from "#app/models/submission/uploads/batches.server.ts";
 import type { ColumnMapping } from "#app/models/submission/uploads/mapping.server.ts";
 import { COLUMNS } from "#app/utils/determination-input/columns.ts";
@@ -82,7 +83,7 @@ export async function action({ request, params }: Route.ActionArgs) {
       case "commit-all":
       case "commit-valid": {
         const mode = intent === "commit-all" ? "all" : "valid_only";
-        const result = commitUpload(db, batch, mode, { userId: user.id }, { ip: clientAddress(request) });
+        const result = await commitUploadOffThread(db, batch, mode, { userId: user.id }, { ip: clientAddress(request) });
         const base = env().APP_URL ?? new URL(request.url).origin;
         let mailNote = " A receipt is on its way by e-mail.";
         try {

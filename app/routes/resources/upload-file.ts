@@ -2,7 +2,7 @@ import type { Route } from "./+types/upload-file";
 import { requireRole } from "#app/auth/session.server.ts";
 import { getDb } from "#app/db/client.server.ts";
 import { withUploadedSheet } from "#app/models/submission/upload-http.server.ts";
-import { createUpload } from "#app/models/submission/uploads/batches.server.ts";
+import { createUploadOffThread } from "#app/models/submission/uploads/off-thread.server.ts";
 import { UploadError } from "#app/models/submission/uploads/read-sheet.server.ts";
 import { redirectWithFlash } from "#app/utils/flash.server.ts";
 import { json } from "#app/utils/http.server.ts";
@@ -16,14 +16,14 @@ export async function action({ request }: Route.ActionArgs) {
   const user = await requireRole(request, "contributor");
   const wantsJson = (request.headers.get("Accept") ?? "").includes("application/json");
   try {
-    const { batch, validation } = await withUploadedSheet(request, (file) =>
-      createUpload(getDb(), { userId: user.id, fileName: file.name, path: file.path }),
+    const upload = await withUploadedSheet(request, (file) =>
+      createUploadOffThread(getDb(), { userId: user.id, fileName: file.name, path: file.path }),
     );
-    const location = `/uploads/${batch.publicId}`;
+    const location = `/uploads/${upload.publicId}`;
     const message =
-      validation.errors.length === 0
-        ? `Read ${validation.results.length} rows; all are valid. Check the preview and commit.`
-        : `Read ${validation.results.length} rows; ${validation.results.length - validation.validCount} have errors.`;
+      upload.errors.length === 0
+        ? `Read ${upload.rows} rows; all are valid. Check the preview and commit.`
+        : `Read ${upload.rows} rows; ${upload.rows - upload.validCount} have errors.`;
     if (wantsJson) return json({ location });
     return redirectWithFlash(location, { kind: "info", message });
   } catch (e) {

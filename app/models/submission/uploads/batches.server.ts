@@ -109,6 +109,10 @@ export function remapUpload(db: Db, batch: BatchRow, mapping: ColumnMapping): Va
   return validation;
 }
 
+export function getBatchById(db: Db, id: number): BatchRow | undefined {
+  return db.select().from(uploadBatches).where(eq(uploadBatches.id, id)).get();
+}
+
 export function getBatchForUser(db: Db, publicId: string, userId: number): BatchRow | undefined {
   return db
     .select()

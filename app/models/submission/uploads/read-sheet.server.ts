@@ -6,6 +6,7 @@ import Papa from "papaparse";
 import { readSheet } from "read-excel-file/node";
 import type { UploadRowError } from "#app/db/schema.ts";
 import { env } from "#app/utils/env.server.ts";
+import { checkWorkbook, WorkbookTooLarge } from "#app/models/submission/uploads/workbook-guard.server.ts";
 import type { UploadPreview } from "#app/models/submission/uploads/validate.server.ts";
 
 /** A problem with the file itself (size, kind, unreadable); `status` is the HTTP answer. */
@@ -165,6 +166,14 @@ export function columnLetter(i: number): string {
 async function readXlsx(file: Buffer): Promise<ParsedSheet> {
   let data: unknown[][];
   let formulaCells: Set<string>;
+  try {
+    // First the limits on what the zip expands to (bombs, a million empty rows), then the reader.
+    checkWorkbook(file);
+  } catch (e) {
+    if (e instanceof WorkbookTooLarge) throw new UploadError(e.message);
+    const detail = e instanceof Error && e.message ? ` (${e.message})` : "";
+    throw new UploadError(`This file could not be read as an Excel workbook${detail}. Save it again as .xlsx or CSV.`);
+  }
   try {
     data = (await readSheet(file)) as unknown[][];
     formulaCells = findFormulaCells(file);

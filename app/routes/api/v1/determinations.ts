@@ -2,7 +2,8 @@ import type { Route } from "./+types/determinations";
 import { requireApiRole, requireApiUser } from "#app/auth/api.server.ts";
 import { clientAddress } from "#app/auth/session.server.ts";
 import { getDb } from "#app/db/client.server.ts";
-import { CommitRefused, submitJsonRows } from "#app/models/submission/uploads/commit.server.ts";
+import { CommitRefused } from "#app/models/submission/uploads/commit.server.ts";
+import { submitJsonRowsOffThread } from "#app/models/submission/uploads/off-thread.server.ts";
 import { apiDeterminations, parseApiQuery } from "#app/models/registry/determinations-api.server.ts";
 import { cachedJson } from "#app/models/registry/read-cache.server.ts";
 import { json } from "#app/utils/http.server.ts";
@@ -82,7 +83,7 @@ export async function action({ request }: Route.ActionArgs) {
     );
   }
   try {
-    const result = submitJsonRows(getDb(), body, { userId: user.id }, { ip: clientAddress(request) });
+    const result = await submitJsonRowsOffThread(getDb(), body, { userId: user.id }, { ip: clientAddress(request) });
     if (!result.ok) return json({ errors: result.errors, warnings: result.warnings }, { status: 400 });
     return json({ determination_ids: result.determinationIds, warnings: result.warnings }, { status: 201 });
   } catch (e) {

@@ -2,7 +2,8 @@ import type { Route } from "./+types/uploads.commit";
 import { requireApiRole } from "#app/auth/api.server.ts";
 import { clientAddress } from "#app/auth/session.server.ts";
 import { getDb } from "#app/db/client.server.ts";
-import { commitUpload, CommitRefused } from "#app/models/submission/uploads/commit.server.ts";
+import { CommitRefused } from "#app/models/submission/uploads/commit.server.ts";
+import { commitUploadOffThread } from "#app/models/submission/uploads/off-thread.server.ts";
 import { getBatchForUser } from "#app/models/submission/uploads/batches.server.ts";
 import { json } from "#app/utils/http.server.ts";
 
@@ -34,7 +35,7 @@ export async function action({ request, params }: Route.ActionArgs) {
     return json({ error: 'mode must be "all" or "valid_only".' }, { status: 400 });
   }
   try {
-    const result = commitUpload(db, batch, mode, { userId: user.id }, { ip: clientAddress(request) });
+    const result = await commitUploadOffThread(db, batch, mode, { userId: user.id }, { ip: clientAddress(request) });
     return json({ committed: result.committed, determination_ids: result.determinationIds });
   } catch (e) {
     if (e instanceof CommitRefused) return json({ error: e.message }, { status: e.status });

@@ -2,7 +2,7 @@ import type { Route } from "./+types/uploads";
 import { requireApiRole } from "#app/auth/api.server.ts";
 import { getDb } from "#app/db/client.server.ts";
 import { withUploadedSheet } from "#app/models/submission/upload-http.server.ts";
-import { createUpload } from "#app/models/submission/uploads/batches.server.ts";
+import { createUploadOffThread } from "#app/models/submission/uploads/off-thread.server.ts";
 import { UploadError } from "#app/models/submission/uploads/read-sheet.server.ts";
 import { json } from "#app/utils/http.server.ts";
 
@@ -22,15 +22,15 @@ export async function action({ request }: Route.ActionArgs) {
   const user = await requireApiRole(request, "contributor");
   if (request.method !== "POST") return json({ error: "Use POST." }, { status: 405, headers: { Allow: "POST" } });
   try {
-    const { batch, validation } = await withUploadedSheet(request, (file) =>
-      createUpload(getDb(), { userId: user.id, fileName: file.name, path: file.path }),
+    const upload = await withUploadedSheet(request, (file) =>
+      createUploadOffThread(getDb(), { userId: user.id, fileName: file.name, path: file.path }),
     );
     return json({
-      upload_id: batch.publicId,
-      rows: validation.results.length,
-      valid: validation.validCount,
-      errors: validation.errors.map((e) => ({ row: e.row, column: e.column, message: e.message })),
-      warnings: validation.warnings.map((w) => ({ row: w.row, column: w.column, message: w.message })),
+      upload_id: upload.publicId,
+      rows: upload.rows,
+      valid: upload.validCount,
+      errors: upload.errors.map((e) => ({ row: e.row, column: e.column, message: e.message })),
+      warnings: upload.warnings.map((w) => ({ row: w.row, column: w.column, message: w.message })),
     });
   } catch (e) {
     if (e instanceof UploadError) return json({ error: e.message }, { status: e.status });

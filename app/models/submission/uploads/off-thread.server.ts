@@ -1,0 +1,104 @@
+// The upload's heavy steps run in worker threads (workers/pool.server.ts) so the server keeps
+// answering meanwhile: reading and validating a file (intake pool, with a time limit) and
+// committing rows (writer pool, one transaction). Same results and errors as the functions they
+// call; an in-memory database (some tests) keeps the work in this thread.
+
+import type { Db } from "#app/db/client.server.ts";
+import type { UploadRowError } from "#app/db/schema.ts";
+import { type BatchRow, createUpload } from "#app/models/submission/uploads/batches.server.ts";
+import {
+  type CommitMode,
+  CommitRefused,
+  type CommitResult,
+  commitUpload,
+  submitJsonRows,
+} from "#app/models/submission/uploads/commit.server.ts";
+import { UploadError } from "#app/models/submission/uploads/read-sheet.server.ts";
+import { databaseFileOf, runInWorker, TaskStopped, WorkerError } from "#app/workers/pool.server.ts";
+
+/** How long reading and checking one uploaded file may take before it is refused. */
+export const UPLOAD_READ_TIME_LIMIT_MS = 20_000;
+
+function rethrow(error: unknown): never {
+  if (error instanceof WorkerError) {
+    if (error.errorName === "CommitRefused") throw new CommitRefused(error.message, error.status);
+    if (error.errorName === "UploadError") throw new UploadError(error.message, error.status);
+  }
+  throw error;
+}
+
+export type UploadSummary = {
+  publicId: string;
+  rows: number;
+  validCount: number;
+  errors: UploadRowError[];
+  warnings: UploadRowError[];
+};
+
+/** Reads, maps, validates and stores an uploaded file (see createUpload), off the request thread. */
+export async function createUploadOffThread(
+  db: Db,
+  input: { userId: number; fileName: string; path: string },
+): Promise<UploadSummary> {
+  const file = databaseFileOf(db);
+  if (!file) {
+    const { batch, validation } = await createUpload(db, input);
+    return {
+      publicId: batch.publicId,
+      rows: validation.results.length,
+      validCount: validation.validCount,
+      errors: validation.errors,
+      warnings: validation.warnings,
+    };
+  }
+  try {
+    return await runInWorker("intake", "createUpload", file, input, { timeoutMs: UPLOAD_READ_TIME_LIMIT_MS });
+  } catch (error) {
+    if (error instanceof TaskStopped) {
+      throw new UploadError(
+        error.reason === "time"
+          ? `Reading this file took longer than ${UPLOAD_READ_TIME_LIMIT_MS / 1000} s, so it was stopped. Split it into smaller files or save it as CSV.`
+          : "Reading this file needed more memory than an upload may use, so it was stopped. Split it into smaller files or save it as CSV.",
+      );
+    }
+    rethrow(error);
+  }
+}
+
+/** Commits a batch (see commitUpload) in the writer thread: one transaction, nothing half-written. */
+export async function commitUploadOffThread(
+  db: Db,
+  batch: BatchRow,
+  mode: CommitMode,
+  actor: { userId: number },
+  options: { ip?: string | null } = {},
+): Promise<CommitResult> {
+  const file = databaseFileOf(db);
+  if (!file) return commitUpload(db, batch, mode, actor, options);
+  try {
+    return await runInWorker("writer", "commitUpload", file, {
+      batchId: batch.id,
+      mode,
+      userId: actor.userId,
+      ip: options.ip ?? null,
+    });
+  } catch (error) {
+    rethrow(error);
+  }
+}
+
+/** Validates and writes the API's JSON rows (see submitJsonRows) in the writer thread. */
+export async function submitJsonRowsOffThread(
+  db: Db,
+  items: unknown[],
+  actor: { userId: number },
+  options: { ip?: string | null } = {},
+): Promise<ReturnType<typeof submitJsonRows>> {
+  const file = databaseFileOf(db);
+  if (!file) return submitJsonRows(db, items, actor, options);
+  try {
+    return await runInWorker("writer", "submitJsonRows", file, { items, userId: actor.userId, ip: options.ip ?? null });
+  } catch (error) {
+    rethrow(error);
+  }
+}

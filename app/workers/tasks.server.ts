@@ -1,0 +1,86 @@
+// What a worker thread can be asked to do (see pool.server.ts). Each task gets the thread's own
+// connection to the database file it names, and a port to report progress on. Runs only in
+// worker threads; the server calls these through runInWorker().
+
+import type { MessagePort } from "node:worker_threads";
+import { type Db, openDatabase, setDb } from "#app/db/client.server.ts";
+import { type JobHandler, runJobHere, type JobSpec } from "#app/models/jobs.server.ts";
+import { handlerFor } from "#app/models/job-handlers.server.ts";
+import { commitUpload, type CommitMode, submitJsonRows } from "#app/models/submission/uploads/commit.server.ts";
+import { createUpload, getBatchById } from "#app/models/submission/uploads/batches.server.ts";
+
+type Progress = (done: number, message?: string) => void;
+
+const tasks = {
+  /** A background job of a registered kind (models/jobs.server.ts), with progress in the jobs table. */
+  async job(db: Db, p: { jobId: number; spec: JobSpec<Record<string, unknown>> }) {
+    await runJobHere(db, p.jobId, p.spec, handlerFor(p.spec.kind) as JobHandler<Record<string, unknown>>);
+    return null;
+  },
+  /** An upload's commit: one transaction, all or nothing. */
+  commitUpload(db: Db, p: { batchId: number; mode: CommitMode; userId: number; ip: string | null }, progress: Progress) {
+    const batch = getBatchById(db, p.batchId);
+    if (!batch) throw new Error("The upload is gone.");
+    progress(0, "Checking the rows again");
+    const result = commitUpload(db, batch, p.mode, { userId: p.userId }, { ip: p.ip });
+    return result;
+  },
+  /** Rows sent as JSON to the API: validated, then written in one transaction or not at all. */
+  submitJsonRows(db: Db, p: { items: unknown[]; userId: number; ip: string | null }) {
+    return submitJsonRows(db, p.items, { userId: p.userId }, { ip: p.ip });
+  },
+  /** Reads an uploaded spreadsheet (with the reader's limits), validates it and stores it as a batch. */
+  async createUpload(db: Db, p: { path: string; fileName: string; userId: number }) {
+    const { batch, validation } = await createUpload(db, { userId: p.userId, fileName: p.fileName, path: p.path });
+    return {
+      publicId: batch.publicId,
+      rows: validation.results.length,
+      validCount: validation.validCount,
+      errors: validation.errors,
+      warnings: validation.warnings,
+    };
+  },
+};
+
+export type TaskName = keyof typeof tasks;
+export type TaskPayload<N extends TaskName> = Parameters<(typeof tasks)[N]>[1];
+export type TaskResult<N extends TaskName> = Awaited<ReturnType<(typeof tasks)[N]>>;
+export type TaskOutcome =
+  { ok: true; value: unknown } | { ok: false; error: { name: string; message: string; status?: number; details?: unknown } };
+
+const connections = new Map<string, Db>();
+
+function connection(file: string): Db {
+  let db = connections.get(file);
+  if (!db) {
+    db = openDatabase(file);
+    connections.set(file, db);
+  }
+  // Code that asks getDb() in this thread gets the task's database.
+  setDb(db);
+  return db;
+}
+
+export async function runTask(message: { task: TaskName; dbFile: string | null; payload: unknown; port: MessagePort }) {
+  const { task, dbFile, payload, port } = message;
+  const progress: Progress = (done, text) => port.postMessage({ done, message: text });
+  try {
+    const db = dbFile ? connection(dbFile) : null;
+    const fn = tasks[task] as (db: Db | null, p: unknown, progress: Progress) => unknown;
+    const value = await fn(db, payload, progress);
+    return { ok: true, value } satisfies TaskOutcome;
+  } catch (error) {
+    const e = error as Error & { status?: number; problems?: unknown };
+    return {
+      ok: false,
+      error: {
+        name: e?.constructor?.name ?? "Error",
+        message: e?.message ?? String(error),
+        status: e?.status,
+        details: e?.problems,
+      },
+    } satisfies TaskOutcome;
+  } finally {
+    port.close();
+  }
+}
