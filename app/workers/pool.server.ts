@@ -84,16 +84,24 @@ export async function runInWorker<N extends TaskName>(
   options: RunOptions = {},
 ): Promise<TaskResult<N>> {
   const { port1, port2 } = new MessageChannel();
-  if (options.onProgress) {
-    const report = options.onProgress;
-    port1.on("message", (m: { done: number; message?: string }) => report(m.done, m.message));
-  }
-  const signal = options.timeoutMs ? AbortSignal.timeout(options.timeoutMs) : undefined;
+  const controller = new AbortController();
+  let timer: NodeJS.Timeout | undefined;
+  port1.on("message", (m: { started?: true; done?: number; message?: string }) => {
+    // The time limit counts from the moment the task starts in its thread, not from the queue or start-up.
+    if (m.started) {
+      if (options.timeoutMs) timer = setTimeout(() => controller.abort(), options.timeoutMs);
+    } else if (options.onProgress && m.done !== undefined) {
+      options.onProgress(m.done, m.message);
+    }
+  });
   let outcome: TaskOutcome;
   try {
-    outcome = await poolFor(pool).run({ task, dbFile, payload, port: port2 }, { transferList: [port2], signal });
+    outcome = await poolFor(pool).run(
+      { task, dbFile, payload, port: port2 },
+      { transferList: [port2], signal: controller.signal },
+    );
   } catch (error) {
-    if (signal?.aborted) {
+    if (controller.signal.aborted) {
       throw new TaskStopped(`Stopped after ${Math.round(options.timeoutMs! / 1000)} s.`, "time");
     }
     const message = error instanceof Error ? error.message : String(error);
@@ -102,6 +110,7 @@ export async function runInWorker<N extends TaskName>(
     }
     throw new TaskStopped(`The worker stopped: ${message}`, "crash");
   } finally {
+    clearTimeout(timer);
     port1.close();
   }
   if (!outcome.ok) throw new WorkerError(outcome.error.message, outcome.error.name, outcome.error.status, outcome.error.details);

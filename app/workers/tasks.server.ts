@@ -4,21 +4,25 @@
 
 import type { MessagePort } from "node:worker_threads";
 import { type Db, openDatabase, setDb } from "#app/db/client.server.ts";
-import { type JobHandler, runJobHere, type JobSpec } from "#app/models/jobs.server.ts";
-import { handlerFor } from "#app/models/job-handlers.server.ts";
-import { commitUpload, type CommitMode, submitJsonRows } from "#app/models/submission/uploads/commit.server.ts";
-import { createUpload, getBatchById } from "#app/models/submission/uploads/batches.server.ts";
+import type { JobHandler, JobSpec } from "#app/models/jobs.server.ts";
+import type { CommitMode } from "#app/models/submission/uploads/commit.server.ts";
+
+// Each task imports what it needs when it first runs, so a thread loads only its own tasks' modules.
 
 type Progress = (done: number, message?: string) => void;
 
 const tasks = {
   /** A background job of a registered kind (models/jobs.server.ts), with progress in the jobs table. */
   async job(db: Db, p: { jobId: number; spec: JobSpec<Record<string, unknown>> }) {
+    const { runJobHere } = await import("#app/models/jobs.server.ts");
+    const { handlerFor } = await import("#app/models/job-handlers.server.ts");
     await runJobHere(db, p.jobId, p.spec, handlerFor(p.spec.kind) as JobHandler<Record<string, unknown>>);
     return null;
   },
   /** An upload's commit: one transaction, all or nothing. */
-  commitUpload(db: Db, p: { batchId: number; mode: CommitMode; userId: number; ip: string | null }, progress: Progress) {
+  async commitUpload(db: Db, p: { batchId: number; mode: CommitMode; userId: number; ip: string | null }, progress: Progress) {
+    const { getBatchById } = await import("#app/models/submission/uploads/batches.server.ts");
+    const { commitUpload } = await import("#app/models/submission/uploads/commit.server.ts");
     const batch = getBatchById(db, p.batchId);
     if (!batch) throw new Error("The upload is gone.");
     progress(0, "Checking the rows again");
@@ -26,11 +30,13 @@ const tasks = {
     return result;
   },
   /** Rows sent as JSON to the API: validated, then written in one transaction or not at all. */
-  submitJsonRows(db: Db, p: { items: unknown[]; userId: number; ip: string | null }) {
+  async submitJsonRows(db: Db, p: { items: unknown[]; userId: number; ip: string | null }) {
+    const { submitJsonRows } = await import("#app/models/submission/uploads/commit.server.ts");
     return submitJsonRows(db, p.items, { userId: p.userId }, { ip: p.ip });
   },
   /** Reads an uploaded spreadsheet (with the reader's limits), validates it and stores it as a batch. */
   async createUpload(db: Db, p: { path: string; fileName: string; userId: number }) {
+    const { createUpload } = await import("#app/models/submission/uploads/batches.server.ts");
     const { batch, validation } = await createUpload(db, { userId: p.userId, fileName: p.fileName, path: p.path });
     return {
       publicId: batch.publicId,
@@ -64,6 +70,8 @@ function connection(file: string): Db {
 export async function runTask(message: { task: TaskName; dbFile: string | null; payload: unknown; port: MessagePort }) {
   const { task, dbFile, payload, port } = message;
   const progress: Progress = (done, text) => port.postMessage({ done, message: text });
+  // The time limit counts from here, not from the thread's start-up.
+  port.postMessage({ started: true });
   try {
     const db = dbFile ? connection(dbFile) : null;
     const fn = tasks[task] as (db: Db | null, p: unknown, progress: Progress) => unknown;
