@@ -33,7 +33,7 @@ test("a contributor submits a radiocarbon date by form, sees it calibrate live, 
   await expect.poll(() => errorInput.getAttribute("aria-invalid")).toBe("true");
   const describedBy = (await errorInput.getAttribute("aria-describedby")) ?? "";
   const errorId = describedBy.split(" ")[0]!;
-  expect(await page.textContent(`[id="${errorId}"]`)).toMatch(/error of c14_age/);
+  expect(await page.textContent(`[id="${errorId}"]`)).toMatch(/error of ¹⁴C age/);
 
   await page.fill('input[name="c14_error"]', "45");
   const median = await page.waitForSelector('[data-testid="preview-median"]');
