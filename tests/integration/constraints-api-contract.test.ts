@@ -1,5 +1,6 @@
 import Papa from "papaparse";
-import { beforeAll, describe, expect, it } from "vitest";
+import { beforeEach, describe, expect, it } from "vitest";
+import { seedForFile } from "#tests/support/test-db.ts";
 import { getDb } from "#app/db/client.server.ts";
 import { createToken } from "#app/models/accounts/tokens.server.ts";
 import { releaseChecksum } from "#app/models/releases/canonical.server.ts";
@@ -19,7 +20,7 @@ const ORIGIN = "http://localhost";
 let modellerToken: string;
 let editorToken: string;
 
-beforeAll(async () => {
+seedForFile(async () => {
   const db = getDb();
   await seedDemo(db, { size: "small" });
   const modeller = createTestUser(db, ["modeller"]);
@@ -203,7 +204,7 @@ describe("/api/v1/releases", () => {
   let slug: string;
   let published: Awaited<ReturnType<typeof postRelease>>;
 
-  beforeAll(async () => {
+  beforeEach(async () => {
     published = await postRelease({
       name: "Contract release",
       description: "Grade 2 and better",

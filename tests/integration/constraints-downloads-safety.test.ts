@@ -1,5 +1,6 @@
 import Papa from "papaparse";
-import { beforeAll, describe, expect, it } from "vitest";
+import { describe, expect, it } from "vitest";
+import { seedForFile } from "#tests/support/test-db.ts";
 import { getDb } from "#app/db/client.server.ts";
 import { calibrateDeterminations } from "#app/models/calibration/calibrations.server.ts";
 import { releaseResponse } from "#app/models/releases/release-download.server.ts";
@@ -25,7 +26,7 @@ let filter: ConstraintFilter;
 let slug: string;
 const ids: number[] = [];
 
-beforeAll(() => {
+seedForFile(() => {
   const db = getDb();
   const editor = createTestUser(db, ["editor"]);
   HOSTILE.forEach((text, i) => {

@@ -1,4 +1,5 @@
-import { beforeAll, describe, expect, it } from "vitest";
+import { describe, expect, it } from "vitest";
+import { seedForFile } from "#tests/support/test-db.ts";
 import { getDb } from "#app/db/client.server.ts";
 import { createToken } from "#app/models/accounts/tokens.server.ts";
 import { saveSet } from "#app/models/releases/constraint-sets.server.ts";
@@ -27,7 +28,7 @@ let modeller: Person;
 let editor: Person;
 let n = 0;
 
-beforeAll(async () => {
+seedForFile(async () => {
   await seedDemo(getDb(), { size: "small" });
   contributor = await personWithSession(["contributor"]);
   reviewer = await personWithSession(["reviewer"]);
