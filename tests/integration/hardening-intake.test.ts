@@ -142,3 +142,24 @@ describe("file intake", () => {
     expect(counter.pulled).toBeLessThan(11 * 1024 * 1024);
   });
 });
+
+describe("case 9: the sign-in form caps what it echoes back", () => {
+  it("a 15 KB address is refused with an answer that does not carry it (it came back twice before)", async () => {
+    const signIn = await import("#app/routes/account/sign-in.tsx");
+    const long = `${"a".repeat(15_000)}@example.org`;
+    const body = new URLSearchParams({ intent: "request", email: long });
+    const res = await run(() =>
+      signIn.action(
+        args(
+          new Request(`${ORIGIN}/sign-in`, {
+            method: "POST",
+            body,
+            headers: { "Content-Type": "application/x-www-form-urlencoded" },
+          }),
+        ),
+      ),
+    );
+    expect(res.status).toBe(400);
+    expect(JSON.stringify(res.data).length).toBeLessThan(2000);
+  });
+});

@@ -42,7 +42,10 @@ export async function loader({ request }: Route.LoaderArgs) {
 export async function action({ request }: Route.ActionArgs) {
   // Public action: requesting and entering codes is how one signs in. Abuse limits (per address,
   // per client, tries per code) and the honeypot are applied here and in sign-in.server.ts.
-  const formData = await request.formData();
+  // What the form echoes back (Conform's reply carries the typed values) is capped: an address
+  // longer than any real one is cut before it is checked, so the answer never grows with the input.
+  const formData = new FormData();
+  for (const [key, value] of await request.formData()) formData.append(key, typeof value === "string" ? value.slice(0, 320) : "");
   const intent = formData.get("intent");
   switch (intent) {
     case "request": {
