@@ -3,7 +3,9 @@ import type { Route } from "./+types/runs";
 import { requireRole } from "#app/auth/session.server.ts";
 import { ErrorView } from "#app/components/error-view.tsx";
 import { fmt, RunStatus, usePollWhile } from "#app/components/runs/run-status.tsx";
+import { JobProgress } from "#app/components/ui/job-progress.tsx";
 import { getDb } from "#app/db/client.server.ts";
+import { getJob, type JobView } from "#app/models/jobs.server.ts";
 import { UnknownReleaseError } from "#app/models/model-runs/constraints.server.ts";
 import { IntakeError, intakeRuns, readForm } from "#app/models/model-runs/intake.server.ts";
 import { MODEL_RUN_MAX_BYTES } from "#app/models/model-runs/run-file.server.ts";
@@ -16,8 +18,18 @@ export const meta: Route.MetaFunction = () => [{ title: "Model runs · Thawline"
 
 export async function loader({ request }: Route.LoaderArgs) {
   const user = await requireRole(request, "modeller");
-  const rows = listRuns(getDb(), user.id);
+  const db = getDb();
+  const rows = listRuns(db, user.id);
+  // The scoring jobs of this modeller's runs under way or finished in the last two minutes.
+  const jobIds = [...new Set(rows.filter((r) => r.run.userId === user.id && r.run.jobId).map((r) => r.run.jobId!))].slice(0, 20);
+  const recent = Date.now() - 120_000;
+  const jobs: JobView[] = [];
+  for (const id of jobIds) {
+    const j = getJob(db, id);
+    if (j && (j.finishedAt === null || j.finishedAt > recent)) jobs.push(j);
+  }
   return {
+    jobs,
     runs: rows.map((r) => ({
       id: r.run.id,
       name: r.run.name,
@@ -29,6 +41,7 @@ export async function loader({ request }: Route.LoaderArgs) {
       ruledOut: r.run.ruledOut,
       progress: r.progress,
       total: r.total,
+      waiting: r.run.timeMapping !== null,
       fileName: r.run.fileName,
     })),
     maxMb: Math.round(MODEL_RUN_MAX_BYTES / 1048576),
@@ -92,10 +105,10 @@ export async function action({ request }: Route.ActionArgs) {
 }
 
 export default function Runs({ loaderData }: Route.ComponentProps) {
-  const { runs, maxMb } = loaderData;
+  const { runs, maxMb, jobs } = loaderData;
   const result = useActionData<typeof action>();
   const busy = useNavigation().state === "submitting";
-  usePollWhile(runs.some((r) => r.status === "queued" || r.status === "running"));
+  usePollWhile(runs.some((r) => !r.waiting && (r.status === "queued" || r.status === "running")));
   const ensembles = [...new Set(runs.map((r) => r.ensemble).filter((e): e is string => !!e))];
   return (
     <div className="space-y-10">
@@ -183,6 +196,15 @@ export default function Runs({ loaderData }: Route.ComponentProps) {
         </Form>
       </section>
 
+      {jobs.length ? (
+        <section aria-labelledby="scoring" className="space-y-3">
+          <h2 id="scoring">Scoring</h2>
+          {jobs.map((job) => (
+            <JobProgress key={job.id} job={job} unit="time slices" label="Scoring runs" />
+          ))}
+        </section>
+      ) : null}
+
       {ensembles.length ? (
         <section aria-labelledby="ensembles">
           <h2 id="ensembles">Ensembles</h2>
@@ -228,7 +250,11 @@ export default function Runs({ loaderData }: Route.ComponentProps) {
                       {r.ensemble ? <Link to={`/runs/ensembles/${encodeURIComponent(r.ensemble)}`}>{r.ensemble}</Link> : "—"}
                     </td>
                     <td>
-                      <RunStatus status={r.status} progress={r.progress} total={r.total} error={r.error} />
+                      {r.waiting ? (
+                        <Link to={`/runs/${r.id}`}>needs a time mapping</Link>
+                      ) : (
+                        <RunStatus status={r.status} progress={r.progress} total={r.total} error={r.error} />
+                      )}
                     </td>
                     <td className="text-right tabular-nums">{fmt(r.logL)}</td>
                     <td className="text-right tabular-nums">{r.n ?? "—"}</td>
