@@ -5,7 +5,7 @@ import Papa from "papaparse";
 import { describe, expect, inject, test } from "vitest";
 import { writeNetcdf4 } from "#app/models/model-runs/netcdf-writer.server.ts";
 import { useBrowserAndDatabase } from "./browser.ts";
-import { signIn } from "./helpers.ts";
+import { signInAs } from "./helpers.ts";
 
 /*
  * A modeller's journey: upload a three-run ensemble (small NetCDF-4 files written here, with a
@@ -49,7 +49,7 @@ describe("scoring an ensemble", () => {
 
     const context = await e2e.browser.newContext({ acceptDownloads: true });
     const page = await context.newPage();
-    await signIn(page, "modeller@example.org");
+    await signInAs(page, "modeller@example.org");
     await page.goto(`${baseUrl}/runs`);
     await page.getByRole("heading", { name: "Upload runs" }).waitFor();
     await page.setInputFiles('input[name="file"]', files);
