@@ -14,7 +14,7 @@ import { DetailList, showNumber } from "#app/components/detail-list.tsx";
 import { ErrorView } from "#app/components/error-view.tsx";
 import { GradeBadge } from "#app/components/grade-badge.tsx";
 import { getDb } from "#app/db/client.server.ts";
-import { FLAGS } from "#app/db/schema.ts";
+import { CHECK_KINDS, FLAGS } from "#app/db/schema.ts";
 import { plotForDetermination } from "#app/models/calibration/calibration-plot.server.ts";
 import { determinationDetail } from "#app/models/registry/determination-page.server.ts";
 import { nextInQueue, releaseItem, takeItem } from "#app/models/review/queue.server.ts";
@@ -161,7 +161,7 @@ export default function ReviewItem({ loaderData, actionData }: Route.ComponentPr
         ) : (
           <table className="data-table mt-2">
             <tbody>
-              {detail.checks.map((c) => (
+              {worstFirst(detail.checks).map((c) => (
                 <tr key={c.id}>
                   <th scope="row" className="whitespace-nowrap">
                     {CHECK_LABELS[c.check] ?? c.check}
@@ -330,6 +330,19 @@ export default function ReviewItem({ loaderData, actionData }: Route.ComponentPr
         </div>
       )}
     </article>
+  );
+}
+
+const SEVERITY_ORDER: Record<string, number> = { conflict: 0, warning: 1, note: 2, pass: 3 };
+
+/** The checks a reviewer must read first on top: conflicts, warnings, notes, then passes, each in the checks' own order. */
+function worstFirst<T extends { check: string; severity: string }>(checks: readonly T[]): T[] {
+  const order = (c: string) => {
+    const i = CHECK_KINDS.indexOf(c as (typeof CHECK_KINDS)[number]);
+    return i < 0 ? CHECK_KINDS.length : i;
+  };
+  return [...checks].sort(
+    (a, b) => (SEVERITY_ORDER[a.severity] ?? 4) - (SEVERITY_ORDER[b.severity] ?? 4) || order(a.check) - order(b.check),
   );
 }
 

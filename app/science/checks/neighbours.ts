@@ -27,6 +27,8 @@ export interface NeighbourIndex {
   /** Other determinations within the radius (not on the same sample), nearest first, with distances (km). */
   near(item: CheckItem): { item: CheckItem; km: number }[];
   radiusKm: number;
+  /** P(the minimum-limiting `young` is older than the maximum-limiting `old`), computed once per pair and run. */
+  kindConflict(young: CheckItem, old: CheckItem): number;
 }
 
 export function buildNeighbourIndex(items: readonly CheckItem[], radiusKm = DEFAULT_NEIGHBOUR_RADIUS_KM): NeighbourIndex {
@@ -35,8 +37,20 @@ export function buildNeighbourIndex(items: readonly CheckItem[], radiusKm = DEFA
   // An empty registry (the last determination of an area withdrawn) has nothing to index.
   if (items.length) index.finish();
   const bySite = new Map<number, number[]>();
+  // Each pair is met twice, from the minimum-limiting side and from the maximum-limiting side.
+  const pairs = new Map<number, Map<number, number>>();
   return {
     radiusKm,
+    kindConflict(young, old) {
+      let row = pairs.get(young.id);
+      if (!row) pairs.set(young.id, (row = new Map()));
+      let p = row.get(old.id);
+      if (p === undefined) {
+        p = probabilityOlder(young.calendar!.density, old.calendar!.density);
+        row.set(old.id, p);
+      }
+      return p;
+    },
     near(item) {
       let ids = bySite.get(item.siteId);
       if (!ids) {
@@ -103,7 +117,7 @@ export function checkNeighbours(item: CheckItem, index: NeighbourIndex): CheckRe
   const near = index.near(item).filter((n) => n.item.calendar);
   const within = `within ${index.radiusKm} km`;
   if (near.length === 0) return result(CHECK, "pass", `No dated neighbour ${within}.`, { neighbours: 0 });
-  const kind = kindConflicts(item, near);
+  const kind = kindConflicts(item, near, index);
   const outlier = saysIceFree(item.constraintKind) ? outOfLine(item, near, within) : null;
   const candidates = [kind, outlier].filter((r): r is CheckResult => r !== null);
   const rank = { pass: 0, note: 1, warning: 2, conflict: 3 };
@@ -121,7 +135,7 @@ export function checkNeighbours(item: CheckItem, index: NeighbourIndex): CheckRe
 }
 
 /** (a) Minimum-limiting older than maximum-limiting nearby: the two cannot both hold. */
-function kindConflicts(item: CheckItem, near: { item: CheckItem; km: number }[]): CheckResult | null {
+function kindConflicts(item: CheckItem, near: { item: CheckItem; km: number }[], index: NeighbourIndex): CheckResult | null {
   const isMin = item.constraintKind === "minimum";
   const isMax = item.constraintKind === "maximum";
   if (!isMin && !isMax) return null;
@@ -129,9 +143,9 @@ function kindConflicts(item: CheckItem, near: { item: CheckItem; km: number }[])
   if (opposite.length === 0) return null;
   let worst = { p: 0, other: opposite[0] };
   for (const o of opposite) {
-    const [younger, older] = isMin ? [item.calendar!, o.item.calendar!] : [o.item.calendar!, item.calendar!];
-    if (clearlyYounger(younger, older)) continue;
-    const p = probabilityOlder(younger.density, older.density);
+    const [young, old] = isMin ? [item, o.item] : [o.item, item];
+    if (clearlyYounger(young.calendar!, old.calendar!)) continue;
+    const p = index.kindConflict(young, old);
     if (p > worst.p) worst = { p, other: o };
   }
   const other = worst.other.item;

@@ -1,6 +1,7 @@
 // What every automatic check receives and returns. Pure: the orchestration in
 // app/models/review/ loads these from the database and writes the results back.
 
+import { groupThousands } from "../calendar.ts";
 import type { CheckKind, CheckSeverity, ConstraintKind, Flag, Method } from "#app/db/schema.ts";
 import type { CalendarDensity } from "../density.ts";
 
@@ -79,7 +80,8 @@ export function result(
 
 /** Whole years with thousands separators, for messages. */
 export function yr(x: number): string {
-  return Math.round(x).toLocaleString("en-GB");
+  // The same digits as toLocaleString("en-GB"), without Intl's cost in a run over the whole registry.
+  return groupThousands(Math.round(x));
 }
 
 /** A probability for a message: two decimals, never printed as a bare 1.00 or 0.00. */

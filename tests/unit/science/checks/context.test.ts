@@ -130,6 +130,21 @@ describe("stratigraphic order", () => {
       ),
       { numRuns: 40 },
     );
+    // Partly overlapping and disjoint grids (a wholly older or wholly younger than b).
+    fc.assert(
+      fc.property(
+        fc.integer({ min: 5000, max: 15000 }),
+        fc.integer({ min: -6000, max: 6000 }),
+        fc.integer({ min: 20, max: 600 }),
+        fc.integer({ min: 20, max: 900 }),
+        (m, d, sa, sb) => {
+          const a = normalDensity(m, sa);
+          const b = normalDensity(m + d, sb);
+          expect(olderThan(a, b)).toBeCloseTo(probabilityOlder(a, b), 9);
+        },
+      ),
+      { numRuns: 60 },
+    );
   });
 });
 
