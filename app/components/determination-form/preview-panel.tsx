@@ -1,4 +1,5 @@
 import { formatCal, formatCalRange, formatProbability, formatValueError, UNITS } from "#app/utils/age-format.ts";
+import { calendarModelWords } from "#app/utils/labels.ts";
 import type { PreviewResult } from "#app/utils/submission-form.ts";
 
 /** The live calendar age beside the form. */
@@ -55,7 +56,7 @@ function PreviewAge({ state }: { state: Extract<PreviewResult, { state: "ok" }> 
           {state.luminescence.computed ? " (computed from the inputs with every term and error)" : " (the lab's value)"}
         </p>
       ) : null}
-      <p className="text-sm text-muted">On {state.label}. Calibrated ages depend on the curve and its version.</p>
+      <p className="text-sm text-muted">On {calendarModelWords(state.label)}. Calibrated ages depend on the curve and its version.</p>
     </>
   );
 }
