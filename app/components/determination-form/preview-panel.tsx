@@ -56,7 +56,9 @@ function PreviewAge({ state }: { state: Extract<PreviewResult, { state: "ok" }> 
           {state.luminescence.computed ? " (computed from the inputs with every term and error)" : " (the lab's value)"}
         </p>
       ) : null}
-      <p className="text-sm text-muted">On {calendarModelWords(state.label)}. Calibrated ages depend on the curve and its version.</p>
+      <p className="text-sm text-muted">
+        On {calendarModelWords(state.label)}. Calibrated ages depend on the curve and its version.
+      </p>
     </>
   );
 }
