@@ -123,17 +123,16 @@ export const SURNAMES = [
 
 const INITIALS = "ABCDEFGHJKLMNPRSTVW";
 
-export function authorList(rng: Rng): string {
+/** One to four invented authors; `lead`, when given, is the first. */
+export function authorList(rng: Rng, lead?: string): string {
   const n = rng.weighted([
     [1, 0.2],
     [2, 0.35],
     [3, 0.3],
     [4, 0.15],
   ] as const);
-  const names = rng
-    .shuffle(SURNAMES)
-    .slice(0, n)
-    .map((s) => `${s}, ${rng.pick([...INITIALS])}.`);
+  const others = rng.shuffle(SURNAMES.filter((s) => s !== lead));
+  const names = (lead ? [lead, ...others] : others).slice(0, n).map((s) => `${s}, ${rng.pick([...INITIALS])}.`);
   if (names.length === 1) return names[0];
   return `${names.slice(0, -1).join(", ")} & ${names[names.length - 1]}`;
 }

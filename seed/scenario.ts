@@ -71,6 +71,23 @@ export interface ScenarioPublication {
   citation: string;
   doi: string;
   year: number;
+  /** The part of the demo region the paper covers: every site citing it lies there. */
+  region: string;
+  /** What the paper reports: only dates of this kind cite it. */
+  focus: PublicationFocus;
+}
+
+export type PublicationFocus = "luminescence" | "marine radiocarbon" | "terrestrial radiocarbon";
+const FOCI: readonly PublicationFocus[] = ["marine radiocarbon", "terrestrial radiocarbon", "luminescence"];
+
+/** An invented person who submitted part of the demo (the sign-in account is one of them). */
+export interface ScenarioContributor {
+  email: string;
+  name: string;
+  /** Surname as cited in publications; null for the demo sign-in account, which writes no papers. */
+  surname: string | null;
+  /** Share of the demo sites this person submitted. */
+  share: number;
 }
 
 export interface ScenarioSite {
@@ -88,6 +105,8 @@ export interface ScenarioSite {
   /** When the advancing ice overrode the site (cal BP): maximum-limiting material predates it. */
   advanceCalBp: number;
   publicationIndex: number | null;
+  /** Who submitted the site and everything dated at it (index into the scenario's contributors). */
+  contributorIndex: number;
 }
 
 export interface ScenarioSample {
@@ -174,6 +193,7 @@ export interface Scenario {
   retreat: RetreatParams;
   isochrones: IsochroneCollection;
   labs: ScenarioLab[];
+  contributors: ScenarioContributor[];
   publications: ScenarioPublication[];
   sites: ScenarioSite[];
   samples: ScenarioSample[];
@@ -250,6 +270,25 @@ export const DEMO_LABS: readonly ScenarioLab[] = [
 ];
 
 export const DEMO_JOURNAL = "Journal of Imaginary Glacial Studies";
+
+/**
+ * Invented contributors (surnames made of glacial-geology words; addresses on example.org). The demo
+ * sign-in account submitted a modest share, as one member of a community would.
+ */
+export const DEMO_CONTRIBUTORS: readonly ScenarioContributor[] = [
+  { email: "contributor@example.org", name: "Demo Contributor", surname: null, share: 0.07 },
+  { email: "ingrid.frostmere@example.org", name: "Ingrid Frostmere", surname: "Frostmere", share: 0.16 },
+  { email: "tomas.kettleby@example.org", name: "Tomas Kettleby", surname: "Kettleby", share: 0.14 },
+  { email: "ada.eskerholm@example.org", name: "Ada Eskerholm", surname: "Eskerholm", share: 0.13 },
+  { email: "noor.drumlinson@example.org", name: "Noor Drumlinson", surname: "Drumlinson", share: 0.12 },
+  { email: "pavel.cirqueton@example.org", name: "Pavel Cirqueton", surname: "Cirqueton", share: 0.11 },
+  { email: "mina.varvebridge@example.org", name: "Mina Varvebridge", surname: "Varvebridge", share: 0.1 },
+  { email: "owen.tillworth@example.org", name: "Owen Tillworth", surname: "Tillworth", share: 0.09 },
+  { email: "sela.rimebrook@example.org", name: "Sela Rimebrook", surname: "Rimebrook", share: 0.08 },
+];
+
+/** Regions of the demo, as regionOf names them; each publication covers one. */
+const REGIONS = ["Labrador Sea coast", "Ungava Bay coast", "northern interior", "southern plateau"] as const;
 
 // ---------------------------------------------------------------- site settings
 
@@ -673,7 +712,9 @@ export function generateScenario(inputs: ScenarioInputs, options: ScenarioOption
   });
 
   const rng = new Rng(deriveSeed(seed, "sites"));
-  const publications = makePublications(new Rng(deriveSeed(seed, "publications")), Math.max(5, Math.round(target / 130)));
+  const publications = makePublications(new Rng(deriveSeed(seed, "publications")), Math.max(12, Math.round(target / 130)));
+  const contributorRng = new Rng(deriveSeed(seed, "contributors"));
+  const contributorWeights = DEMO_CONTRIBUTORS.map((c, i) => [i, c.share] as const);
 
   // 1. Sites and planned samples, until the planned determinations reach the target.
   const sites: ScenarioSite[] = [];
@@ -714,6 +755,7 @@ export function generateScenario(inputs: ScenarioInputs, options: ScenarioOption
       deglaciationCalBp: deglaciation,
       advanceCalBp: trueAdvanceAge(retreat, lon, lat) ?? retreat.startCalBp,
       publicationIndex: rng.chance(0.8) ? rng.int(0, publications.length - 1) : null,
+      contributorIndex: contributorRng.weighted(contributorWeights),
     };
     const siteIndex = sites.push(site) - 1;
     const siteSamples = planSamples(rng, site, siteIndex, setting);
@@ -781,7 +823,12 @@ export function generateScenario(inputs: ScenarioInputs, options: ScenarioOption
     for (let r = 0; r < s.detCount; r++) {
       const labIndex = simRng.pick(lum ? luminescenceLabs : radiocarbonLabs);
       nextNumber[labIndex] += simRng.int(1, 9);
-      const base = blankDetermination(sampleIndex, labIndex, site.publicationIndex, s);
+      const cited = citedPublication(
+        publications,
+        site,
+        lum ? "luminescence" : MARINE_MATERIALS.has(s.material) ? "marine radiocarbon" : "terrestrial radiocarbon",
+      );
+      const base = blankDetermination(sampleIndex, labIndex, cited, s);
       base.labCode = `${DEMO_LABS[labIndex].codePrefix}-${nextNumber[labIndex]}`;
       base.submittedDaysAgo = simRng.int(1, 900);
       if (lum) simulateLuminescence(simRng, base, s, site);
@@ -831,7 +878,8 @@ export function generateScenario(inputs: ScenarioInputs, options: ScenarioOption
     retreat,
     isochrones: isochrones(retreat),
     labs: DEMO_LABS.map((l) => ({ ...l, methods: [...l.methods] })),
-    publications,
+    contributors: DEMO_CONTRIBUTORS.map((c) => ({ ...c })),
+    publications: describePublications(new Rng(deriveSeed(seed, "citations")), publications, sites, samples, determinations),
     sites,
     samples: scenarioSamples,
     determinations,
@@ -839,29 +887,78 @@ export function generateScenario(inputs: ScenarioInputs, options: ScenarioOption
   };
 }
 
+/** Year, DOI, region and focus of each paper; the citation is written once its dates are known. */
 function makePublications(rng: Rng, n: number): ScenarioPublication[] {
-  const topics = [
-    "Deglacial chronology of the",
-    "Raised marine deposits and ice retreat across the",
-    "Lake sediment records of deglaciation in the",
-    "Luminescence ages from proglacial sands of the",
-    "Shell ages and reservoir offsets along the",
-    "Moraine stratigraphy and ice-margin positions in the",
-  ];
-  const places = ["eastern uplands", "northern fjordlands", "central plateau", "outer coast", "western lowlands", "bay shores"];
   const out: ScenarioPublication[] = [];
   for (let i = 0; i < n; i++) {
     const year = rng.int(1978, 2024);
-    const volume = year - 1970;
-    const first = rng.int(1, 400);
-    const title = `${rng.pick(topics)} ${rng.pick(places)} (synthetic)`;
     out.push({
-      citation: `${authorList(rng)} (${year}) ${title}. ${DEMO_JOURNAL} ${volume}, ${first}–${first + rng.int(8, 30)}.`,
+      citation: "",
       doi: `10.99999/jigs.${year}.${String(i + 1).padStart(4, "0")}`,
       year,
+      region: REGIONS[i % REGIONS.length],
+      focus: FOCI[Math.floor(i / REGIONS.length) % FOCI.length],
     });
   }
   return out;
+}
+
+/**
+ * The paper a date cites: one about the site's region and the date's kind, chosen by the site's drawn
+ * number (so a site's dates of one kind cite one paper); null when the site is unpublished or no
+ * paper covers that kind there.
+ */
+function citedPublication(
+  publications: readonly ScenarioPublication[],
+  site: ScenarioSite,
+  focus: PublicationFocus,
+): number | null {
+  if (site.publicationIndex === null) return null;
+  const here = publications.flatMap((p, i) => (p.region === site.region && p.focus === focus ? [i] : []));
+  return here.length ? here[site.publicationIndex % here.length] : null;
+}
+
+/** A title that says what the paper reports: its methods, materials and region. */
+export function publicationTitle(region: string, cited: readonly { method: string; material: string }[]): string {
+  const lum = cited.filter((c) => c.method === "luminescence").length;
+  const where = `the ${region}`;
+  if (cited.length === 0) return `Ice-marginal landforms of ${where}`;
+  if (lum === cited.length) return `Luminescence ages from glacial and proglacial sands of ${where}`;
+  if (lum > 0) return `Radiocarbon and luminescence chronology of ice retreat in ${where}`;
+  if (cited.every((c) => MARINE_MATERIALS.has(c.material))) return `Marine radiocarbon ages and reservoir offsets along ${where}`;
+  if (cited.every((c) => !MARINE_MATERIALS.has(c.material)))
+    return `Radiocarbon ages of lake, bog and terrestrial deposits in ${where}`;
+  return `Radiocarbon chronology of deglaciation in ${where}`;
+}
+
+/**
+ * Writes each paper's citation from what it reports: the title from the methods and materials of the
+ * dates that cite it, the first author the contributor who submitted most of its sites.
+ */
+function describePublications(
+  rng: Rng,
+  publications: readonly ScenarioPublication[],
+  sites: readonly ScenarioSite[],
+  samples: readonly ScenarioSample[],
+  determinations: readonly ScenarioDetermination[],
+): ScenarioPublication[] {
+  return publications.map((p, pi) => {
+    const cited = determinations
+      .filter((d) => d.publicationIndex === pi)
+      .map((d) => ({ method: d.method, material: samples[d.sampleIndex].material }));
+    const bySubmitter = new Map<number, number>();
+    for (const d of determinations) {
+      const site = sites[samples[d.sampleIndex].siteIndex];
+      if (d.publicationIndex !== pi || DEMO_CONTRIBUTORS[site.contributorIndex].surname === null) continue;
+      bySubmitter.set(site.contributorIndex, (bySubmitter.get(site.contributorIndex) ?? 0) + 1);
+    }
+    const lead = [...bySubmitter].sort((a, b) => b[1] - a[1] || a[0] - b[0])[0]?.[0];
+    const volume = p.year - 1970;
+    const first = rng.int(1, 400);
+    const title = `${publicationTitle(p.region, cited)} (synthetic)`;
+    const authors = authorList(rng, lead === undefined ? undefined : DEMO_CONTRIBUTORS[lead].surname!);
+    return { ...p, citation: `${authors} (${p.year}) ${title}. ${DEMO_JOURNAL} ${volume}, ${first}–${first + rng.int(8, 30)}.` };
+  });
 }
 
 function planSamples(rng: Rng, site: ScenarioSite, siteIndex: number, setting: SettingSpec): PlannedSample[] {

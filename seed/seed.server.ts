@@ -142,7 +142,10 @@ function writeScenario(db: Db, scenario: Scenario) {
   return sqlite.transaction(() => {
     const userIds: Record<string, number> = {};
     for (const u of DEMO_USERS) userIds[u.email] = createUser(db, u);
-    const contributorId = userIds["contributor@example.org"];
+    // The demo is spread over invented contributors; the sign-in account is one of them.
+    const contributorIds = scenario.contributors.map(
+      (c) => userIds[c.email] ?? (userIds[c.email] = createUser(db, { email: c.email, name: c.name, roles: ["contributor"] })),
+    );
     const reviewerId = userIds["reviewer@example.org"];
 
     const labIds = scenario.labs.map((l) => {
@@ -163,8 +166,8 @@ function writeScenario(db: Db, scenario: Scenario) {
       siteDays[si] = Math.max(siteDays[si], d.submittedDaysAgo);
     }
     const siteIds = scenario.sites.map((s, i) => {
-      const { coastal: _c, deglaciationCalBp: _d, publicationIndex: _p, ...values } = s;
-      return insertSite(db, { ...values, createdBy: contributorId, createdAt: at(siteDays[i] + 1, i) }).id;
+      const { coastal: _c, deglaciationCalBp: _d, publicationIndex: _p, contributorIndex, ...values } = s;
+      return insertSite(db, { ...values, createdBy: contributorIds[contributorIndex], createdAt: at(siteDays[i] + 1, i) }).id;
     });
     const sampleIds = scenario.samples.map((s, i) => {
       const { siteIndex, constraintKind: _k, trueAgeCalBp: _t, fault: _f, ...values } = s;
@@ -196,6 +199,7 @@ function writeScenario(db: Db, scenario: Scenario) {
         ...measurement
       } = d;
       const createdAt = at(submittedDaysAgo, i);
+      const contributorId = contributorIds[scenario.sites[scenario.samples[sampleIndex].siteIndex].contributorIndex];
       // Graded determinations are created as submitted and then graded, as in the workflow.
       const row = insertDetermination(
         db,

@@ -309,6 +309,48 @@ describe("provenance and review state", () => {
     }
   });
 
+  it("cites papers whose titles say what the citing dates report, from the sites' own region", () => {
+    let checked = 0;
+    for (const d of full.determinations) {
+      if (d.publicationIndex === null) continue;
+      const p = full.publications[d.publicationIndex];
+      const sample = full.samples[d.sampleIndex];
+      const site = full.sites[sample.siteIndex];
+      expect(p.citation).toContain(`the ${site.region} (synthetic)`);
+      if (d.method === "radiocarbon") expect(p.citation, d.labCode).not.toMatch(/Luminescence ages/);
+      else expect(p.citation, d.labCode).toMatch(/[Ll]uminescence/);
+      if (["marine shell", "foraminifera", "whale bone"].includes(sample.material)) {
+        expect(p.citation, d.labCode).not.toMatch(/lake, bog and terrestrial/);
+      } else {
+        expect(p.citation, d.labCode).not.toMatch(/Marine radiocarbon ages/);
+      }
+      checked++;
+    }
+    expect(checked).toBeGreaterThan(full.determinations.length / 2);
+    // The titles differ with what papers report.
+    expect(new Set(full.publications.map((p) => p.citation.split(") ")[1].split(" of ")[0])).size).toBeGreaterThan(2);
+  });
+
+  it("spreads the demo over several contributors; the sign-in account submitted a believable share", () => {
+    const perContributor = new Array<number>(full.contributors.length).fill(0);
+    for (const d of full.determinations) perContributor[full.sites[full.samples[d.sampleIndex].siteIndex].contributorIndex]++;
+    const demo = full.contributors.findIndex((c) => c.email === "contributor@example.org");
+    expect(demo).toBeGreaterThanOrEqual(0);
+    const share = perContributor[demo] / full.determinations.length;
+    expect(share).toBeGreaterThan(0.03);
+    expect(share).toBeLessThan(0.15);
+    expect(perContributor.filter((n) => n > 0).length).toBe(full.contributors.length);
+    expect(Math.max(...perContributor) / full.determinations.length).toBeLessThan(0.3);
+    for (const c of full.contributors) expect(c.email.endsWith("@example.org")).toBe(true);
+    // First authors are contributors who submitted the paper's dates.
+    for (const [pi, p] of full.publications.entries()) {
+      const leads = full.determinations
+        .filter((d) => d.publicationIndex === pi)
+        .map((d) => full.contributors[full.sites[full.samples[d.sampleIndex].siteIndex].contributorIndex].surname);
+      if (leads.some((x) => x !== null)) expect(leads).toContain(p.citation.split(",")[0]);
+    }
+  });
+
   it("has most dates awaiting review and graded ones in line with the planted faults, though not all", () => {
     const graded = full.determinations.filter((d) => d.status === "graded");
     const waiting = full.determinations.filter((d) => d.status !== "graded");
