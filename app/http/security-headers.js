@@ -49,7 +49,12 @@ export function securityHeaders(options = {}) {
         formAction: ["'self'"],
         frameAncestors: ["'none'"],
       }
-    : { frameAncestors: ["'none'"], objectSrc: ["'none'"] };
+    : {
+        // helmet refuses a policy without default-src unless told this is meant.
+        defaultSrc: helmet.contentSecurityPolicy.dangerouslyDisableDefaultSrc,
+        frameAncestors: ["'none'"],
+        objectSrc: ["'none'"],
+      };
   const headers = helmet({
     contentSecurityPolicy: { useDefaults: false, directives },
     strictTransportSecurity: false,
