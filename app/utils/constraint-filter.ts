@@ -2,6 +2,7 @@
 // releases and the constraints API. Parsed from URL search parameters (the API's names) and
 // written back to them, so a URL holds the whole filter. Client-safe.
 import { z } from "zod";
+import { queryIssueMessages } from "#app/utils/query-issues.ts";
 
 // Kept literal so the browser bundle need not load the schema (the server checks them against it).
 export const FILTER_METHODS = ["radiocarbon", "luminescence", "exposure"] as const;
@@ -39,6 +40,20 @@ export const FILTER_PARAMS = [
   "worst_check",
   "curve",
 ] as const;
+
+/** What each filter parameter takes, in words, for 400 answers (after "give"). */
+const FILTER_PARAMETER_HINTS: Readonly<Record<string, string>> = {
+  from_cal_bp: "a number of years cal BP, from −100 to 100,000",
+  to_cal_bp: "a number of years cal BP, from −100 to 100,000",
+  time_mode: `one of ${TIME_MODES.join(", ")}`,
+  methods: `a comma-separated list of ${FILTER_METHODS.join(", ")}`,
+  kinds: `a comma-separated list of ${FILTER_KINDS.join(", ")}`,
+  min_grade: "a whole grade 0, 1, 2 or 3",
+  exclude_flags: `a comma-separated list of ${FILTER_FLAGS.join(", ")}`,
+  worst_check: `one of ${CHECK_ORDER.join(", ")}`,
+  curve: "a curve name of at most 50 characters",
+  materials: "a comma-separated list of at most 50 material names",
+};
 
 /** A closed ring of [longitude, latitude] vertices (first vertex not repeated). */
 export type Ring = [number, number][];
@@ -117,9 +132,7 @@ export function parseConstraintFilter(params: URLSearchParams, ignore: readonly 
     else raw[k] = v;
   }
   const parsed = constraintFilterSchema.safeParse(raw);
-  if (!parsed.success) {
-    for (const issue of parsed.error.issues) errors.push(`${String(issue.path[0])}: ${issue.message}`);
-  }
+  if (!parsed.success) errors.push(...queryIssueMessages(parsed.error, raw, FILTER_PARAMETER_HINTS));
   if (errors.length > 0 || !parsed.success) return { ok: false, errors };
   return { ok: true, filter: parsed.data };
 }

@@ -161,6 +161,17 @@ describe("GET /api/v1/determinations", () => {
     const errors = (bad.data as { errors: string[] }).errors.join(" ");
     expect(errors).toMatch(/method/);
     expect(errors).toMatch(/page/);
+    // Each message names the parameter and what it takes, never the schema library's own words.
+    const worded = await fetchPage("?ageFrom=abc&method=carbon&lumTo=-3&grade=9", modellerToken);
+    expect(worded.status).toBe(400);
+    const messages = (worded.data as { errors: string[] }).errors;
+    expect(messages).toContain(
+      'ageFrom: give a measured age in years (¹⁴C yr BP or luminescence years), from −100 to 10,000,000 (got "abc")',
+    );
+    expect(messages).toContain('method: give one of radiocarbon, luminescence, exposure (got "carbon")');
+    expect(messages).toContain('lumTo: give a luminescence age in ka, from 0 to 10,000 (got "-3")');
+    expect(messages.some((m) => m.startsWith("grade: give a minimum grade"))).toBe(true);
+    expect(messages.join(" ")).not.toMatch(/Invalid|expected|received|NaN/);
     expect((await fetchPage("?per_page=500", modellerToken)).status).toBe(200);
   });
 });

@@ -155,6 +155,19 @@ describe("Explore loader", () => {
     expect(labCodes((await explore("?ageFrom=8990&ageTo=9010")).rows)).toEqual(["SMX-202"]);
   });
 
+  it("windows radiocarbon ages in ¹⁴C yr BP and luminescence ages in ka, each only its own method", async () => {
+    // 10,250 ¹⁴C yr BP is in 10,000–12,500; luminescence 12.3 ka is not a radiocarbon age.
+    expect(labCodes((await explore("?c14From=10000&c14To=12500&sort=labCode")).rows)).toEqual(["NGX-101"]);
+    // 12.3 ka and 9.0 ka: only luminescence rows, in ka, either order.
+    expect(labCodes((await explore("?lumFrom=12.5&lumTo=10&sort=labCode")).rows)).toEqual(["SMX-201"]);
+    expect(labCodes((await explore("?lumFrom=8.99&lumTo=9.01")).rows)).toEqual(["SMX-202"]);
+    // Both windows: a date in either is kept.
+    expect(labCodes((await explore("?c14From=10000&c14To=12500&lumFrom=8.99&lumTo=9.01&sort=labCode")).rows)).toEqual([
+      "NGX-101",
+      "SMX-202",
+    ]);
+  });
+
   it("windows the calibrated median and leaves uncalibrated rows out of it", async () => {
     expect(labCodes((await explore("?calFrom=10000&calTo=12000&sort=cal&dir=asc")).rows)).toEqual(["NGX-102", "NGX-101"]);
     expect((await explore("?calFrom=0&q=NGX")).total).toBe(2);

@@ -694,3 +694,37 @@ describe("POST /api/determination-preview", () => {
     expect((await previewOf({ method: "radiocarbon", c14_age: "9000", c14_error: "40" }, modeller)).status).toBe(403);
   });
 });
+
+describe("/submissions pages", () => {
+  it("shows fifty of the contributor's determinations a page, newest first, and keeps the filters across pages", async () => {
+    const mine = await personWithSession(["contributor"]);
+    const db = getDb();
+    const site = createTestSite(db);
+    const sample = createTestSample(db, { siteId: site.id });
+    const lab = createTestLab(db);
+    for (let i = 0; i < 55; i++) {
+      createTestDetermination(db, {
+        sampleId: sample.id,
+        labId: lab.id,
+        contributorId: mine.id,
+        actorId: mine.id,
+        createdAt: new Date(Date.UTC(2026, 0, 1) + i * 60_000),
+      });
+    }
+    type List = { result: { rows: { id: number }[]; total: number; page: number; pageCount: number } };
+    const list = async (qs = "") =>
+      (await run(() => listPage.loader(args(get(`/submissions${qs}`, { cookie: mine.cookie }))))).data as List;
+    const first = await list();
+    expect(first.result).toMatchObject({ total: 55, page: 1, pageCount: 2 });
+    expect(first.result.rows).toHaveLength(50);
+    const second = await list("?page=2&method=radiocarbon");
+    expect(second.result).toMatchObject({ total: 55, page: 2, pageCount: 2 });
+    expect(second.result.rows).toHaveLength(5);
+    expect(new Set([...first.result.rows, ...second.result.rows].map((r) => r.id)).size).toBe(55);
+    // Newest first: the last page holds the oldest.
+    expect(Math.max(...second.result.rows.map((r) => r.id))).toBeLessThan(Math.min(...first.result.rows.map((r) => r.id)));
+    // A page past the end shows the last page; nonsense shows the first.
+    expect((await list("?page=99")).result.page).toBe(2);
+    expect((await list("?page=abc")).result.page).toBe(1);
+  });
+});

@@ -3,7 +3,9 @@
 
 import type { Db } from "#app/db/client.server.ts";
 import type { HpdRange } from "#app/db/schema.ts";
+import { queryIssueMessages } from "#app/utils/query-issues.ts";
 import {
+  EXPLORE_PARAMETER_HINTS,
   EXPLORE_PAGE_SIZE,
   exploreDeterminations,
   safeParseExploreFilters,
@@ -19,9 +21,7 @@ export type ApiQuery = { filters: ExploreFilters; perPage: number };
 export function parseApiQuery(params: URLSearchParams): { ok: true; query: ApiQuery } | { ok: false; errors: string[] } {
   const errors: string[] = [];
   const parsed = safeParseExploreFilters(params);
-  if (!parsed.success) {
-    for (const issue of parsed.error.issues) errors.push(`${String(issue.path[0] ?? "query")}: ${issue.message}`);
-  }
+  if (!parsed.success) errors.push(...queryIssueMessages(parsed.error, Object.fromEntries(params), EXPLORE_PARAMETER_HINTS));
   let perPage = API_DEFAULT_PER_PAGE;
   const raw = params.get("per_page");
   if (raw !== null && raw.trim() !== "") {

@@ -33,9 +33,15 @@ export const exploreFiltersSchema = z.object({
   grade: z.preprocess(blankToUndefined, z.enum(GRADE_FILTERS).optional()),
   /** The worst result among a determination's automatic checks. */
   worst_check: z.preprocess(blankToUndefined, z.enum(CHECK_SEVERITIES).optional()),
-  /** Measured age window in years: ¹⁴C years BP, or luminescence years (De / dose rate). */
+  /** Measured age window in years: ¹⁴C years BP, or luminescence years (De / dose rate). Kept for the API. */
   ageFrom: years,
   ageTo: years,
+  /** Radiocarbon ages only, ¹⁴C yr BP. */
+  c14From: years,
+  c14To: years,
+  /** Luminescence ages only, ka (thousands of years before measurement). */
+  lumFrom: z.preprocess(blankToUndefined, z.coerce.number().min(0).max(10_000).optional()),
+  lumTo: z.preprocess(blankToUndefined, z.coerce.number().min(0).max(10_000).optional()),
   /** Window on the current calibration's median, cal BP. */
   calFrom: years,
   calTo: years,
@@ -47,6 +53,30 @@ export const exploreFiltersSchema = z.object({
 });
 
 export type ExploreFilters = z.infer<typeof exploreFiltersSchema>;
+
+/** What each filter parameter takes, in words, for the API's 400 answers (after "give"). */
+export const EXPLORE_PARAMETER_HINTS: Readonly<Record<string, string>> = {
+  method: `one of ${METHODS.join(", ")}`,
+  lab: "a lab's id (a whole number above 0)",
+  kind: `one of ${CONSTRAINT_KINDS.join(", ")}`,
+  status: `one of ${STATUS_FILTERS.join(", ")}`,
+  grade: `a minimum grade 0, 1, 2 or 3, or "ungraded"`,
+  worst_check: `one of ${CHECK_SEVERITIES.join(", ")}`,
+  ageFrom: "a measured age in years (¹⁴C yr BP or luminescence years), from −100 to 10,000,000",
+  ageTo: "a measured age in years (¹⁴C yr BP or luminescence years), from −100 to 10,000,000",
+  c14From: "a radiocarbon age in ¹⁴C yr BP, from −100 to 10,000,000",
+  c14To: "a radiocarbon age in ¹⁴C yr BP, from −100 to 10,000,000",
+  lumFrom: "a luminescence age in ka, from 0 to 10,000",
+  lumTo: "a luminescence age in ka, from 0 to 10,000",
+  calFrom: "a calibrated age in years cal BP, from −100 to 10,000,000",
+  calTo: "a calibrated age in years cal BP, from −100 to 10,000,000",
+  material: "a material name of at most 100 characters",
+  site: "part of a site name, at most 200 characters",
+  q: "part of a lab code or site name, at most 200 characters",
+  sort: `one of ${EXPLORE_SORTS.join(", ")}`,
+  dir: "asc or desc",
+  page: "a page number from 1 to 100,000",
+};
 
 /** Params as a plain object: the first value of each name. */
 function paramsObject(params: URLSearchParams): Record<string, string> {
@@ -169,6 +199,26 @@ function escapeLike(s: string): string {
   return s.replace(/[\\%_]/g, (m) => `\\${m}`);
 }
 
+const C14_AGE_SQL = "coalesce(d.c14_age_yr, case when d.f14c > 0 then -8033.0 * ln(d.f14c) end)";
+const LUMINESCENCE_KA_SQL = "(d.de_gy / nullif(d.dose_rate_gy_per_ka, 0))";
+
+/**
+ * The ¹⁴C window (¹⁴C yr BP) selects radiocarbon dates, the luminescence window (ka) luminescence
+ * dates; given both, a date in either window is kept (the two scales never share one field).
+ */
+function measuredWindows(w: Conditions, f: ExploreFilters) {
+  const parts: { sql: string; params: unknown[] }[] = [];
+  if (f.c14From != null || f.c14To != null) {
+    const c = new Conditions().add("d.method = 'radiocarbon'").window(C14_AGE_SQL, f.c14From, f.c14To);
+    parts.push({ sql: c.sql, params: c.params });
+  }
+  if (f.lumFrom != null || f.lumTo != null) {
+    const c = new Conditions().add("d.method = 'luminescence'").window(LUMINESCENCE_KA_SQL, f.lumFrom, f.lumTo);
+    parts.push({ sql: c.sql, params: c.params });
+  }
+  if (parts.length) w.add(`(${parts.map((p) => `(${p.sql})`).join(" or ")})`, ...parts.flatMap((p) => p.params));
+}
+
 function whereClause(f: ExploreFilters): { sql: string; params: unknown[] } {
   const w = new Conditions()
     .anyOf("d.method", f.method ? [f.method] : undefined)
@@ -182,6 +232,7 @@ function whereClause(f: ExploreFilters): { sql: string; params: unknown[] } {
   else if (f.grade) w.minGrade(Number(f.grade));
   if (f.worst_check) w.add(`${WORST_CHECK_RANK_SQL} = ?`, CHECK_SEVERITIES.indexOf(f.worst_check));
   w.window(MEASURED_AGE_SQL, f.ageFrom, f.ageTo);
+  measuredWindows(w, f);
   w.window("c.median_cal_bp", f.calFrom, f.calTo);
   if (f.q) {
     const like = `%${escapeLike(f.q)}%`;

@@ -13,6 +13,7 @@ import { formatCal, formatMeasuredAge } from "#app/utils/age-format.ts";
 import { redirectWithFlash } from "#app/utils/flash.server.ts";
 import { METHOD_LABELS, STATUS_LABELS } from "#app/utils/labels.ts";
 import { ActionButton } from "#app/components/ui/action-button.tsx";
+import { Pagination } from "#app/components/ui/pagination.tsx";
 
 export const meta: Route.MetaFunction = () => [{ title: "My submissions · Thawline" }];
 
@@ -251,19 +252,14 @@ export default function Submissions({ loaderData, actionData }: Route.ComponentP
               </tbody>
             </table>
           </div>
-          {result.pageCount > 1 ? (
-            <nav aria-label="Pages" className="flex items-center justify-between gap-4">
-              {result.page > 1 ? <Link to={`/submissions${search(filters, { page: result.page - 1 })}`}>← Newer</Link> : <span />}
-              <span className="text-sm text-muted">
-                Page {result.page} of {result.pageCount}
-              </span>
-              {result.page < result.pageCount ? (
-                <Link to={`/submissions${search(filters, { page: result.page + 1 })}`}>Older →</Link>
-              ) : (
-                <span />
-              )}
-            </nav>
-          ) : null}
+          <Pagination
+            page={result.page}
+            pageCount={result.pageCount}
+            href={(p) => `/submissions${search(filters, { page: p })}`}
+            testId="submissions-pages"
+            previousLabel="← Newer"
+            nextLabel="Older →"
+          />
         </>
       )}
     </div>

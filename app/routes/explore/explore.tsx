@@ -1,6 +1,7 @@
 import { useEffect, useRef } from "react";
 import { Form, Link, useLocation, useNavigation, useSubmit } from "react-router";
 import type { Route } from "./+types/explore";
+import { Pagination } from "#app/components/ui/pagination.tsx";
 import { cachedRead } from "#app/models/registry/read-cache.server.ts";
 import { requireUser } from "#app/auth/session.server.ts";
 import { ErrorView } from "#app/components/error-view.tsx";
@@ -45,6 +46,10 @@ const FILTER_KEYS = [
   "worst_check",
   "ageFrom",
   "ageTo",
+  "c14From",
+  "c14To",
+  "lumFrom",
+  "lumTo",
   "calFrom",
   "calTo",
 ];
@@ -123,7 +128,14 @@ export default function Explore({ loaderData }: Route.ComponentProps) {
               </tbody>
             </table>
           </div>
-          <Pagination filters={filters} page={result.page} pageCount={result.pageCount} />
+          <div className="mt-6">
+            <Pagination
+              page={result.page}
+              pageCount={result.pageCount}
+              href={(p) => exploreSearch(filters, { page: p })}
+              testId="explore-pages"
+            />
+          </div>
         </>
       )}
     </div>
@@ -217,67 +229,55 @@ function SortHeader({
   );
 }
 
-/** Page numbers: first, last, and two either side of the current page, with gaps marked. */
-function pageList(page: number, pageCount: number): (number | "gap")[] {
-  const wanted = new Set([1, pageCount, page - 2, page - 1, page, page + 1, page + 2]);
-  const pages = [...wanted].filter((p) => p >= 1 && p <= pageCount).sort((a, b) => a - b);
-  const out: (number | "gap")[] = [];
-  pages.forEach((p, i) => {
-    if (i > 0 && p - pages[i - 1]! > 1) out.push("gap");
-    out.push(p);
-  });
-  return out;
-}
-
-function Pagination({ filters, page, pageCount }: { filters: Filters; page: number; pageCount: number }) {
-  if (pageCount <= 1) return null;
-  const link = (p: number) => exploreSearch(filters, { page: p });
+/** A from–to pair of number fields under one legend (the scale is in the legend, once). */
+function RangeFields({
+  legend,
+  name,
+  from,
+  to,
+  what,
+  step,
+}: {
+  legend: string;
+  name: string;
+  from: number | undefined;
+  to: number | undefined;
+  what: string;
+  step?: string;
+}) {
   return (
-    <nav aria-label="Pages" className="mt-6 flex flex-wrap items-center gap-2" data-testid="explore-pages">
-      {page > 1 ? (
-        <Link to={link(page - 1)} className="btn-quiet" rel="prev">
-          ← Previous
-        </Link>
-      ) : (
-        <span className="btn-quiet opacity-50" aria-disabled="true">
-          ← Previous
-        </span>
-      )}
-      <ol className="flex flex-wrap items-center gap-1">
-        {pageList(page, pageCount).map((p, i) =>
-          p === "gap" ? (
-            <li key={`gap-${i}`} className="px-1 text-muted" aria-hidden="true">
-              …
-            </li>
-          ) : (
-            <li key={p}>
-              {p === page ? (
-                <span aria-current="page" className="inline-block min-w-9 rounded bg-ice-800 px-2 py-1 text-center text-white">
-                  {p}
-                </span>
-              ) : (
-                <Link
-                  to={link(p)}
-                  className="inline-block min-w-9 rounded px-2 py-1 text-center hover:bg-ice-50"
-                  aria-label={`Page ${p}`}
-                >
-                  {p}
-                </Link>
-              )}
-            </li>
-          ),
-        )}
-      </ol>
-      {page < pageCount ? (
-        <Link to={link(page + 1)} className="btn-quiet" rel="next">
-          Next →
-        </Link>
-      ) : (
-        <span className="btn-quiet opacity-50" aria-disabled="true">
-          Next →
-        </span>
-      )}
-    </nav>
+    <fieldset className="sm:col-span-1 lg:col-span-2">
+      <legend className="label">{legend}</legend>
+      <div className="mt-1 flex items-center gap-2">
+        <label htmlFor={`f-${name}-from`} className="sr-only">
+          {what} from
+        </label>
+        <input
+          id={`f-${name}-from`}
+          name={`${name}From`}
+          type="number"
+          inputMode="decimal"
+          step={step}
+          className="input w-full"
+          defaultValue={from ?? ""}
+          placeholder="from"
+        />
+        <span aria-hidden="true">–</span>
+        <label htmlFor={`f-${name}-to`} className="sr-only">
+          {what} to
+        </label>
+        <input
+          id={`f-${name}-to`}
+          name={`${name}To`}
+          type="number"
+          inputMode="decimal"
+          step={step}
+          className="input w-full"
+          defaultValue={to ?? ""}
+          placeholder="to"
+        />
+      </div>
+    </fieldset>
   );
 }
 
@@ -418,36 +418,14 @@ function FilterForm({
           <option value="pass">pass (all checks)</option>
         </select>
       </div>
-      <fieldset className="sm:col-span-1 lg:col-span-2">
-        <legend className="label">Measured age, years (¹⁴C BP or luminescence)</legend>
-        <div className="mt-1 flex items-center gap-2">
-          <label htmlFor="f-age-from" className="sr-only">
-            Measured age from
-          </label>
-          <input
-            id="f-age-from"
-            name="ageFrom"
-            type="number"
-            inputMode="numeric"
-            className="input w-full"
-            defaultValue={str(filters.ageFrom)}
-            placeholder="from"
-          />
-          <span aria-hidden="true">–</span>
-          <label htmlFor="f-age-to" className="sr-only">
-            Measured age to
-          </label>
-          <input
-            id="f-age-to"
-            name="ageTo"
-            type="number"
-            inputMode="numeric"
-            className="input w-full"
-            defaultValue={str(filters.ageTo)}
-            placeholder="to"
-          />
-        </div>
-      </fieldset>
+      <RangeFields
+        legend="Radiocarbon age, ¹⁴C yr BP"
+        name="c14"
+        from={filters.c14From}
+        to={filters.c14To}
+        what="Radiocarbon age"
+      />
+      <RangeFields legend="Luminescence age, ka" name="lum" from={filters.lumFrom} to={filters.lumTo} what="Luminescence age" step="any" />
       <fieldset className="sm:col-span-1 lg:col-span-2">
         <legend className="label">Calibrated median, cal BP</legend>
         <div className="mt-1 flex items-center gap-2">
