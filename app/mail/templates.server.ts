@@ -53,10 +53,10 @@ export function signInMessage(input: { code: string; link: string; minutes: numb
 }
 
 const ROLE_WORDS: Record<string, string> = {
-  contributor: "contributor (submit determinations)",
-  reviewer: "reviewer (grade determinations)",
-  modeller: "modeller (build constraint sets and use the API)",
-  editor: "editor (invite people, manage curves and releases)",
+  contributor: "contributor (submit determinations and answer reviewers' questions)",
+  reviewer: "reviewer (grade determinations in the review queue)",
+  modeller: "modeller (save constraint sets, score model runs, use the API)",
+  editor: "editor (invite people, import curves, publish releases)",
 };
 
 export function invitationMessage(input: {

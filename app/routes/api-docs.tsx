@@ -57,7 +57,15 @@ function filterParameters(perPage: { default: number; max: number }): [string, s
     ["status", "submitted, in_review, graded, withdrawn or all (left out: everything but withdrawn)"],
     ["grade", "minimum grade 3, 2, 1 or 0, or ungraded"],
     ["worst_check", "the worst automatic check result: conflict, warning, note or pass"],
-    ["ageFrom, ageTo", "window on the measured age in years (¹⁴C yr BP, or luminescence years before measurement)"],
+    ["c14From, c14To", "window on radiocarbon ages, ¹⁴C yr BP (radiocarbon dates only)"],
+    [
+      "lumFrom, lumTo",
+      "window on luminescence ages, ka before measurement (luminescence dates only); given both windows, a date in either is returned",
+    ],
+    [
+      "ageFrom, ageTo",
+      "window on the measured age in years of either method (¹⁴C yr BP, or luminescence years); kept for older scripts",
+    ],
     ["calFrom, calTo", "window on the calibrated median, cal BP"],
     ["q", "part of a lab code or site name"],
     ["sort", "labCode, site, age, cal, grade or created (default: created)"],
@@ -69,6 +77,7 @@ function filterParameters(perPage: { default: number; max: number }): [string, s
 
 export default function ApiDocs({ loaderData }: Route.ComponentProps) {
   const { base, uploadMaxMb, calibrated, perPage, releaseSlug } = loaderData;
+  const overHttps = base.startsWith("https:");
   const calibrateExample = calibrated
     ? JSON.stringify(calibrated, null, 2)
     : `{"curves": {"intcal20": {"version": "…", "citation": "…"}},
@@ -79,9 +88,13 @@ export default function ApiDocs({ loaderData }: Route.ComponentProps) {
         <p className="text-sm tracking-widest text-muted uppercase">For scripts</p>
         <h1 className="mt-1">The Thawline API</h1>
         <p className="mt-2 text-muted">
-          JSON over HTTPS at <code>{base}/api/v1/…</code>. Field names are the upload template's column names throughout;
-          measurements come back unrounded. Results are for research use; calibrated ages depend on the curve and its version,
-          marine ages on ΔR, and grades are expert judgements, not measurements.
+          JSON over {overHttps ? "HTTPS" : "HTTP"} at <code>{base}/api/v1/…</code>
+          {overHttps
+            ? null
+            : " (this server answers over plain HTTP: on a shared network, put it behind HTTPS before sending tokens)"}
+          . Field names are the upload template's column names throughout; measurements come back unrounded. Results are for
+          research use; calibrated ages depend on the curve and its version, marine ages on ΔR, and grades are expert judgements,
+          not measurements.
         </p>
       </header>
 
@@ -206,9 +219,10 @@ export default function ApiDocs({ loaderData }: Route.ComponentProps) {
         <p>
           <code>calibration</code> is <code>null</code> before a determination is calibrated; a “greater than” age or a post-bomb
           sample has a calibration with <code>median_cal_bp</code> <code>null</code> and the reason in <code>error</code>.
-          Luminescence ages have <code>"curve": "luminescence (normal)"</code>. A page past the end has an empty list. A malformed
-          parameter is <code>400</code> <code>{`{"errors": ["per_page: …"]}`}</code>. Pages are read from Explore's pages of{" "}
-          {EXPLORE_PAGE_SIZE}, so a large <code>per_page</code> costs a little more.
+          Luminescence ages have <code>"curve": "luminescence (normal)"</code>: a normal density on the calendar scale, no curve.
+          A page past the end has an empty list. Every malformed parameter is named at once, with what it takes: <code>400</code>{" "}
+          <code>{`{"errors": ["lumTo: give a luminescence age in ka, from 0 to 10,000 (got \"-3\")"]}`}</code>. Pages are read
+          from Explore's pages of {EXPLORE_PAGE_SIZE}, so a large <code>per_page</code> costs a little more.
         </p>
       </Endpoint>
 

@@ -15,6 +15,8 @@ export const NAV_ITEMS: NavItem[] = [
   { to: "/uploads", label: "Upload", roles: ["contributor"] },
   { to: "/submissions", label: "My submissions", roles: ["contributor"] },
   { to: "/review", label: "Review", roles: ["reviewer"] },
+  { to: "/constraints", label: "Constraint sets", roles: "signed-in" },
+  { to: "/releases", label: "Releases", roles: "public" },
   { to: "/checks", label: "Checks", roles: ["editor"] },
   { to: "/runs", label: "Model runs", roles: ["modeller"] },
   { to: "/people", label: "People", roles: ["editor"] },

@@ -48,7 +48,11 @@ function got(raw: Record<string, unknown>, name: string): string {
  * words (e.g. "a number of years cal BP, from −100 to 100,000", after "give") and win over the issue's own;
  * a message written in the schema itself (not the library's default) is kept.
  */
-export function queryIssueMessage(issue: Issue, raw: Record<string, unknown>, hints: Readonly<Record<string, string>> = {}): string {
+export function queryIssueMessage(
+  issue: Issue,
+  raw: Record<string, unknown>,
+  hints: Readonly<Record<string, string>> = {},
+): string {
   const top = String(issue.path[0] ?? "");
   const hint = hints[top];
   // A described parameter is named as a whole (a list's third value is still "methods").

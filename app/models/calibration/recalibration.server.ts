@@ -6,6 +6,7 @@ import { audit } from "#app/models/audit.server.ts";
 import { calibrateDeterminations } from "#app/models/calibration/calibrations.server.ts";
 import type { JobHandler } from "#app/models/jobs.server.ts";
 import { startJob } from "#app/models/jobs.server.ts";
+import { formatCount } from "#app/utils/age-format.ts";
 
 /** Determinations per chunk: small enough that one chunk blocks the event loop for only a moment. */
 export const RECALIBRATION_CHUNK = 250;
@@ -55,7 +56,7 @@ export const recalibrateJob: JobHandler<RecalibrateParams> = async (ctx) => {
   });
   // Calendar ages changed, so every check that compares them runs again.
   runAllChecks(db);
-  return `${calibrated} calibrated${failed ? `, ${failed} could not be calibrated (see each determination)` : ""}; checks run again.`;
+  return `${formatCount(calibrated)} calibrated${failed ? `, ${formatCount(failed)} could not be calibrated (see each determination)` : ""}; checks run again.`;
 };
 
 /**

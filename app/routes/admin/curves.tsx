@@ -253,8 +253,6 @@ export default function CurvesPage({ loaderData, actionData }: Route.ComponentPr
                 <tr key={c.id}>
                   <td>
                     <span className="font-semibold">{c.displayName}</span>
-                    <br />
-                    <code className="text-sm text-muted">{c.name}</code>
                   </td>
                   <td>{c.kind}</td>
                   <td>{c.version}</td>

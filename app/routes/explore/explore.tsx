@@ -425,7 +425,14 @@ function FilterForm({
         to={filters.c14To}
         what="Radiocarbon age"
       />
-      <RangeFields legend="Luminescence age, ka" name="lum" from={filters.lumFrom} to={filters.lumTo} what="Luminescence age" step="any" />
+      <RangeFields
+        legend="Luminescence age, ka"
+        name="lum"
+        from={filters.lumFrom}
+        to={filters.lumTo}
+        what="Luminescence age"
+        step="any"
+      />
       <fieldset className="sm:col-span-1 lg:col-span-2">
         <legend className="label">Calibrated median, cal BP</legend>
         <div className="mt-1 flex items-center gap-2">
