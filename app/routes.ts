@@ -57,6 +57,7 @@ export default [
   route("api/curve-window", "routes/resources/curve-window.ts"),
   route("api/jobs/:id", "routes/resources/jobs.ts"),
   route("api/determination-preview", "routes/resources/determination-preview.ts"),
+  route("api/site-search", "routes/resources/site-search.ts"),
   route("calibrate/results.csv", "routes/resources/calibrate-csv.ts"),
   route("uploads/file", "routes/resources/upload-file.ts"),
   route("uploads/template.xlsx", "routes/resources/upload-template-xlsx.ts"),

@@ -192,7 +192,12 @@ export const sites = sqliteTable(
     createdInBatchId: integer("created_in_batch_id").references((): AnySQLiteColumn => uploadBatches.id),
     createdAt: createdAt(),
   },
-  (t) => [index("sites_name_idx").on(t.name), index("sites_latlon_idx").on(t.latitude, t.longitude)],
+  (t) => [
+    index("sites_name_idx").on(t.name),
+    // Case-insensitive name search ("starts with") for the site combobox uses this one.
+    index("sites_name_nocase_idx").on(sql`${t.name} collate nocase`),
+    index("sites_latlon_idx").on(t.latitude, t.longitude),
+  ],
 );
 
 export const samples = sqliteTable(

@@ -221,7 +221,7 @@ export default function ApiDocs({ loaderData }: Route.ComponentProps) {
           sample has a calibration with <code>median_cal_bp</code> <code>null</code> and the reason in <code>error</code>.
           Luminescence ages have <code>"curve": "luminescence (normal)"</code>: a normal density on the calendar scale, no curve.
           A page past the end has an empty list. Every malformed parameter is named at once, with what it takes: <code>400</code>{" "}
-          <code>{`{"errors": ["lumTo: give a luminescence age in ka, from 0 to 10,000 (got \"-3\")"]}`}</code>. Pages are read
+          <code>{`{"errors": ["lumTo: give a luminescence age in ka, from 0 to 10,000 (got \\"-3\\")"]}`}</code>. Pages are read
           from Explore's pages of {EXPLORE_PAGE_SIZE}, so a large <code>per_page</code> costs a little more.
         </p>
       </Endpoint>

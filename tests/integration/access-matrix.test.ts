@@ -130,6 +130,7 @@ export const ACCESS: Record<string, Row> = {
     get: only(["contributor"], "status:405"),
     post: only(["contributor"], "allowed"),
   },
+  "routes/resources/site-search": { url: "/api/site-search?q=a", get: only(["contributor"], "ok"), post: "none" },
   "routes/contribute/submissions": {
     url: "/submissions",
     get: only(["contributor"], "ok"),

@@ -1,11 +1,9 @@
-import { getSelectProps } from "@conform-to/react";
-import { useMemo, useState } from "react";
+import { useEffect, useState } from "react";
 import { Link } from "react-router";
+import { SiteCombobox, type ChosenSite } from "#app/components/site-combobox.tsx";
 import { SiteLocationPicker } from "#app/components/site-location-picker.tsx";
 import type { FormOptions } from "#app/utils/submission-form.ts";
 import { FieldError, Radio, TextField, type Fields } from "./fields.tsx";
-
-const SITES_LISTED = 300;
 
 /** Where the sample was taken: a site already in the registry, or a new one placed by coordinates. */
 export function SiteSection({
@@ -20,7 +18,6 @@ export function SiteSection({
   const [siteChoice, setSiteChoice] = useState(start("site_choice") === "existing" ? "existing" : "new");
   // Kept here, not in the list below, so a site chosen before switching to "A new site" and back stays chosen.
   const [siteId, setSiteId] = useState(start("site_id") ?? "");
-  const [siteFilter, setSiteFilter] = useState("");
   return (
     <fieldset className="card grid gap-4">
       <legend className="px-1 text-lg font-semibold">Site</legend>
@@ -33,9 +30,7 @@ export function SiteSection({
         </Radio>
       </div>
 
-      {siteChoice === "existing" ? (
-        <ExistingSite f={f} sites={sites} siteId={siteId} onSiteId={setSiteId} filter={siteFilter} onFilter={setSiteFilter} />
-      ) : null}
+      {siteChoice === "existing" ? <ExistingSite f={f} sites={sites} siteId={siteId} onSiteId={setSiteId} /> : null}
 
       <fieldset disabled={siteChoice !== "new"} hidden={siteChoice !== "new"} className="grid gap-4 sm:grid-cols-2">
         <TextField field={f.site_name!} column="site_name" className="sm:col-span-2" />
@@ -54,85 +49,104 @@ export function SiteSection({
   );
 }
 
-/** Choosing a site already in the registry: filter by name, pick from the list; its name and coordinates are sent. */
+/**
+ * Choosing a site already in the registry: a searchable combobox over the server's site search (by
+ * name, or nearest to a point typed or picked on the map); the chosen site's name and coordinates
+ * are sent with its id.
+ */
 function ExistingSite({
   f,
   sites,
   siteId,
   onSiteId: setSiteId,
-  filter: siteFilter,
-  onFilter: setSiteFilter,
 }: {
   f: Fields;
   sites: FormOptions["sites"];
   siteId: string;
   onSiteId: (id: string) => void;
-  filter: string;
-  onFilter: (text: string) => void;
 }) {
-  const chosenSite = sites.find((s) => String(s.id) === siteId);
-  const filteredSites = useMemo(() => {
-    const q = siteFilter.trim().toLowerCase();
-    const list = q ? sites.filter((s) => s.name.toLowerCase().includes(q)) : sites;
-    // Keep the chosen site listed even when the filter would hide it.
-    const shown = list.slice(0, SITES_LISTED);
-    if (chosenSite && !shown.includes(chosenSite)) shown.unshift(chosenSite);
-    return { shown, more: list.length - Math.min(list.length, SITES_LISTED) };
-  }, [siteFilter, sites, chosenSite]);
-
+  const [chosen, setChosen] = useState<ChosenSite | null>(() => sites.find((s) => String(s.id) === siteId) ?? null);
+  const [near, setNear] = useState<string | undefined>(undefined);
+  const [showMap, setShowMap] = useState(false);
+  const errorId = f.site_id!.errors?.length ? f.site_id!.errorId : undefined;
   return (
     <div className="grid gap-2">
       <div className="field">
-        <label htmlFor="site-filter">Find a site by name</label>
-        <input
-          id="site-filter"
-          type="search"
-          className="input"
-          value={siteFilter}
-          onChange={(e) => setSiteFilter(e.currentTarget.value)}
-          aria-controls={f.site_id!.id}
-          autoComplete="off"
-          placeholder="Type part of the name"
+        <SiteCombobox
+          inputId={f.site_id!.id}
+          label="Site"
+          name="site_id"
+          chosen={chosen}
+          onChoose={(site) => {
+            setChosen(site);
+            setSiteId(site ? String(site.id) : "");
+          }}
+          invalid={!!errorId}
+          describedBy={errorId}
+          nearQuery={near}
         />
-      </div>
-      <div className="field">
-        <label htmlFor={f.site_id!.id}>Site</label>
-        <select
-          {...getSelectProps(f.site_id!)}
-          defaultValue={undefined}
-          value={siteId}
-          onChange={(e) => setSiteId(e.currentTarget.value)}
-          size={Math.min(8, Math.max(3, filteredSites.shown.length + 1))}
-          className="input"
-        >
-          <option value="">— choose a site —</option>
-          {filteredSites.shown.map((s) => (
-            <option key={s.id} value={s.id}>
-              {s.name} ({s.latitude.toFixed(4)}°, {s.longitude.toFixed(4)}°)
-            </option>
-          ))}
-        </select>
-        {filteredSites.more > 0 ? (
-          <p className="text-sm text-muted">{filteredSites.more} more; type part of the name to narrow the list.</p>
-        ) : null}
-        {sites.length === 0 ? <p className="text-sm text-muted">The registry has no sites yet; enter a new one.</p> : null}
-        {chosenSite ? (
+        {chosen ? (
           <p className="text-sm" data-testid="chosen-site">
-            Chosen: <strong>{chosenSite.name}</strong>, {chosenSite.latitude.toFixed(4)}°, {chosenSite.longitude.toFixed(4)}°{" "}
-            <Link to={`/sites/${chosenSite.id}`} target="_blank" rel="noopener">
+            Chosen: <strong>{chosen.name}</strong>, {chosen.latitude.toFixed(4)}°, {chosen.longitude.toFixed(4)}°{" "}
+            <Link to={`/sites/${chosen.id}`} target="_blank" rel="noopener">
               see the site
             </Link>
           </p>
         ) : null}
         <FieldError field={f.site_id!} />
       </div>
-      {chosenSite ? (
+      <button
+        type="button"
+        className="btn-quiet justify-self-start text-sm"
+        onClick={() => setShowMap((v) => !v)}
+        aria-expanded={showMap}
+      >
+        {showMap ? "Hide the map" : "Pick near a point on the map"}
+      </button>
+      {showMap ? <NearPointMap sites={sites} onPoint={setNear} /> : null}
+      {chosen ? (
         <>
-          <input type="hidden" name="site_name" value={chosenSite.name} />
-          <input type="hidden" name="latitude" value={String(chosenSite.latitude)} />
-          <input type="hidden" name="longitude" value={String(chosenSite.longitude)} />
+          <input type="hidden" name="site_name" value={chosen.name} />
+          <input type="hidden" name="latitude" value={String(chosen.latitude)} />
+          <input type="hidden" name="longitude" value={String(chosen.longitude)} />
         </>
       ) : null}
+    </div>
+  );
+}
+
+/** A map whose clicked point asks the combobox for the nearest sites (its inputs are not sent). */
+function NearPointMap({ sites, onPoint }: { sites: FormOptions["sites"]; onPoint: (q: string) => void }) {
+  const [lat, setLat] = useState("");
+  const [lon, setLon] = useState("");
+  useEffect(() => {
+    if (lat.trim() && lon.trim() && Number.isFinite(Number(lat)) && Number.isFinite(Number(lon))) onPoint(`${lat}, ${lon}`);
+    // onPoint is a state setter; only the point matters.
+    // eslint-disable-next-line react-hooks/exhaustive-deps
+  }, [lat, lon]);
+  return (
+    <div className="grid gap-2 sm:grid-cols-2">
+      <div className="field">
+        <label htmlFor="near-latitude">Near latitude</label>
+        <input
+          id="near-latitude"
+          className="input"
+          inputMode="decimal"
+          value={lat}
+          onChange={(e) => setLat(e.currentTarget.value)}
+        />
+      </div>
+      <div className="field">
+        <label htmlFor="near-longitude">Near longitude</label>
+        <input
+          id="near-longitude"
+          className="input"
+          inputMode="decimal"
+          value={lon}
+          onChange={(e) => setLon(e.currentTarget.value)}
+        />
+      </div>
+      <SiteLocationPicker sites={sites} latitudeId="near-latitude" longitudeId="near-longitude" />
     </div>
   );
 }

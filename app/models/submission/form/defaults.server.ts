@@ -97,6 +97,7 @@ export function formDefaults(db: Db, det: StoredDetermination): Record<string, s
  */
 export function applyChosenSite(db: Db, formData: FormData): void {
   if (formData.get("site_choice") !== "existing") return;
+  resolveTypedSite(db, formData);
   const id = Number(formData.get("site_id"));
   if (!Number.isSafeInteger(id) || id <= 0) return;
   const site = db.select().from(sites).where(eq(sites.id, id)).get();
@@ -105,6 +106,21 @@ export function applyChosenSite(db: Db, formData: FormData): void {
   formData.set("latitude", String(site.latitude));
   formData.set("longitude", String(site.longitude));
   for (const name of ["elevation_m", "setting"]) formData.delete(name);
+}
+
+/**
+ * Without script the site combobox sends only the typed text (site_query): a name that matches
+ * exactly one site (any case) chooses it; otherwise site_id stays empty and its message asks.
+ */
+function resolveTypedSite(db: Db, formData: FormData): void {
+  const typed = formData.get("site_query");
+  const given = formData.get("site_id");
+  if (typeof typed !== "string" || typed.trim() === "" || (typeof given === "string" && given.trim() !== "")) return;
+  const matches = db.$client
+    .prepare("select id from sites where name = ? collate nocase limit 2")
+    .pluck()
+    .all(typed.trim()) as number[];
+  if (matches.length === 1) formData.set("site_id", String(matches[0]));
 }
 
 /** A unique-constraint failure on the lab code: someone stored the same code between validation and write. */
