@@ -1,4 +1,4 @@
-import { useEffect, useId, useRef, useState } from "react";
+import { useEffect, useId, useState } from "react";
 import { useFetcher } from "react-router";
 import type { loader as siteSearchLoader } from "#app/routes/resources/site-search.ts";
 
@@ -21,7 +21,7 @@ export function SiteCombobox({
   onChoose,
   invalid,
   describedBy,
-  nearQuery,
+  near,
 }: {
   inputId: string;
   label: string;
@@ -31,32 +31,34 @@ export function SiteCombobox({
   onChoose: (site: ChosenSite | null) => void;
   invalid?: boolean;
   describedBy?: string;
-  /** A "latitude, longitude" set from outside (a point picked on a map): searched and opened. */
-  nearQuery?: string;
+  /** Renders beside the field something that can ask for the sites nearest a "latitude, longitude". */
+  near?: (searchNear: (point: string) => void) => React.ReactNode;
 }) {
   const listId = useId();
   const fetcher = useFetcher<typeof siteSearchLoader>();
   const [text, setText] = useState(chosen?.name ?? "");
   const [open, setOpen] = useState(false);
   const [active, setActive] = useState(-1);
-  const timer = useRef<ReturnType<typeof setTimeout> | null>(null);
+  // The text to search for; a change asks the server after a short pause (typing stays smooth).
+  const [query, setQuery] = useState<string | null>(null);
   const hits: Hit[] = (fetcher.data as { sites?: Hit[] } | undefined)?.sites ?? [];
   const loading = fetcher.state !== "idle";
 
-  const search = (q: string) => {
-    if (timer.current) clearTimeout(timer.current);
-    timer.current = setTimeout(() => void fetcher.load(`/api/site-search?q=${encodeURIComponent(q)}`), DEBOUNCE_MS);
-  };
-  useEffect(() => () => void (timer.current && clearTimeout(timer.current)), []);
+  const search = (q: string) => setQuery(q);
   useEffect(() => {
-    if (!nearQuery) return;
-    setText(nearQuery);
+    if (query === null) return;
+    const timer = setTimeout(() => void fetcher.load(`/api/site-search?q=${encodeURIComponent(query)}`), DEBOUNCE_MS);
+    return () => clearTimeout(timer);
+    // fetcher.load is stable enough; only a new query starts a search.
+    // eslint-disable-next-line react-hooks/exhaustive-deps
+  }, [query]);
+  const searchNear = (point: string) => {
+    setText(point);
     setOpen(true);
     setActive(-1);
-    search(nearQuery);
-    // Only a new point from outside starts a search.
-    // eslint-disable-next-line react-hooks/exhaustive-deps
-  }, [nearQuery]);
+    if (chosen) onChoose(null);
+    search(point);
+  };
 
   const choose = (hit: Hit) => {
     onChoose({ id: hit.id, name: hit.name, latitude: hit.latitude, longitude: hit.longitude });
@@ -168,6 +170,7 @@ export function SiteCombobox({
           </li>
         ) : null}
       </ul>
+      {near?.(searchNear)}
       <p className="sr-only" role="status" aria-live="polite">
         {open && !loading ? `${hits.length} site${hits.length === 1 ? "" : "s"} found` : ""}
       </p>

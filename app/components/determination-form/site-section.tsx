@@ -1,4 +1,4 @@
-import { useEffect, useState } from "react";
+import { useState } from "react";
 import { Link } from "react-router";
 import { SiteCombobox, type ChosenSite } from "#app/components/site-combobox.tsx";
 import { SiteLocationPicker } from "#app/components/site-location-picker.tsx";
@@ -66,7 +66,6 @@ function ExistingSite({
   onSiteId: (id: string) => void;
 }) {
   const [chosen, setChosen] = useState<ChosenSite | null>(() => sites.find((s) => String(s.id) === siteId) ?? null);
-  const [near, setNear] = useState<string | undefined>(undefined);
   const [showMap, setShowMap] = useState(false);
   const errorId = f.site_id!.errors?.length ? f.site_id!.errorId : undefined;
   return (
@@ -83,7 +82,7 @@ function ExistingSite({
           }}
           invalid={!!errorId}
           describedBy={errorId}
-          nearQuery={near}
+          near={(searchNear) => (showMap ? <NearPointMap sites={sites} onPoint={searchNear} /> : null)}
         />
         {chosen ? (
           <p className="text-sm" data-testid="chosen-site">
@@ -103,7 +102,6 @@ function ExistingSite({
       >
         {showMap ? "Hide the map" : "Pick near a point on the map"}
       </button>
-      {showMap ? <NearPointMap sites={sites} onPoint={setNear} /> : null}
       {chosen ? (
         <>
           <input type="hidden" name="site_name" value={chosen.name} />
@@ -115,17 +113,19 @@ function ExistingSite({
   );
 }
 
-/** A map whose clicked point asks the combobox for the nearest sites (its inputs are not sent). */
+/** A map whose clicked (or typed) point asks the combobox for the nearest sites; its inputs are not sent. */
 function NearPointMap({ sites, onPoint }: { sites: FormOptions["sites"]; onPoint: (q: string) => void }) {
   const [lat, setLat] = useState("");
   const [lon, setLon] = useState("");
-  useEffect(() => {
-    if (lat.trim() && lon.trim() && Number.isFinite(Number(lat)) && Number.isFinite(Number(lon))) onPoint(`${lat}, ${lon}`);
-    // onPoint is a state setter; only the point matters.
-    // eslint-disable-next-line react-hooks/exhaustive-deps
-  }, [lat, lon]);
+  const changed = (nextLat: string, nextLon: string) => {
+    setLat(nextLat);
+    setLon(nextLon);
+    if (nextLat.trim() && nextLon.trim() && Number.isFinite(Number(nextLat)) && Number.isFinite(Number(nextLon))) {
+      onPoint(`${nextLat.trim()}, ${nextLon.trim()}`);
+    }
+  };
   return (
-    <div className="grid gap-2 sm:grid-cols-2">
+    <div className="mt-2 grid gap-2 sm:grid-cols-2">
       <div className="field">
         <label htmlFor="near-latitude">Near latitude</label>
         <input
@@ -133,7 +133,7 @@ function NearPointMap({ sites, onPoint }: { sites: FormOptions["sites"]; onPoint
           className="input"
           inputMode="decimal"
           value={lat}
-          onChange={(e) => setLat(e.currentTarget.value)}
+          onChange={(e) => changed(e.currentTarget.value, lon)}
         />
       </div>
       <div className="field">
@@ -143,7 +143,7 @@ function NearPointMap({ sites, onPoint }: { sites: FormOptions["sites"]; onPoint
           className="input"
           inputMode="decimal"
           value={lon}
-          onChange={(e) => setLon(e.currentTarget.value)}
+          onChange={(e) => changed(lat, e.currentTarget.value)}
         />
       </div>
       <SiteLocationPicker sites={sites} latitudeId="near-latitude" longitudeId="near-longitude" />
