@@ -1,6 +1,6 @@
 import { constraintExamples } from "#app/components/api-docs/constraint-examples.ts";
 
-const PARAMETERS: [string, string][] = [
+const PARAMETERS: [string, React.ReactNode][] = [
   ["bbox", "W,S,E,N in degrees (west < east, south < north)"],
   ["polygon", "vertices lon,lat separated by ; (or POST a GeoJSON Polygon/MultiPolygon body to the same path)"],
   ["from_cal_bp, to_cal_bp", "time window in cal BP, either order"],
@@ -11,7 +11,12 @@ const PARAMETERS: [string, string][] = [
   ["min_grade", "0–3; ungraded determinations are left out when given"],
   ["exclude_flags", "comma list of flags; the latest review's flags count"],
   ["worst_check", "pass, note, warning or conflict: leave out determinations with a worse check"],
-  ["curve", "curve name, e.g. intcal20 or marine20"],
+  [
+    "curve",
+    <>
+      a curve by its name in uploads and the API: <code>intcal20</code> (IntCal20) or <code>marine20</code> (Marine20)
+    </>,
+  ],
   ["format", "json (default), csv, geojson, or metadata (the metadata file that goes with a CSV)"],
   [
     "densities",
