@@ -403,7 +403,7 @@ export default function ApiDocs({ loaderData }: Route.ComponentProps) {
                     <code>{c.name}</code>
                   </td>
                   <td>{c.unit || (c.choices ? c.choices.join(", ") : "")}</td>
-                  <td>{c.help}</td>
+                  <td>{withCodes(c.help)}</td>
                 </tr>
               ))}
             </tbody>
@@ -446,6 +446,13 @@ function Code({ label, children }: { label?: string; children: string }) {
       <pre className="overflow-x-auto rounded bg-ice-50 p-3 text-xs">{children}</pre>
     </div>
   );
+}
+
+/** Values and column names inside a column's help (intcal20, c14_error) set as code, the rest as words. */
+function withCodes(text: string): React.ReactNode[] {
+  return text
+    .split(/\b((?:intcal|marine)\d\d|[a-z][a-z0-9]*_[a-z0-9_]+)\b/)
+    .map((part, i) => (i % 2 === 1 ? <code key={i}>{part}</code> : part));
 }
 
 export function ErrorBoundary({ error }: Route.ErrorBoundaryProps) {
