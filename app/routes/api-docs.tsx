@@ -179,7 +179,7 @@ export default function ApiDocs({ loaderData }: Route.ComponentProps) {
                 <td>
                   <code>{name}</code>
                 </td>
-                <td>{meaning}</td>
+                <td>{withCodes(meaning)}</td>
               </tr>
             ))}
           </tbody>
