@@ -1,6 +1,7 @@
 import { Link } from "react-router";
 import type { Route } from "./+types/api-docs";
 import { ConstraintsApiSection } from "#app/components/api-docs/constraints-section.tsx";
+import { withCodes } from "#app/components/api-docs/with-codes.tsx";
 import { ErrorView } from "#app/components/error-view.tsx";
 import { listReleases } from "#app/models/releases/releases.server.ts";
 import { getDb } from "#app/db/client.server.ts";
@@ -446,13 +447,6 @@ function Code({ label, children }: { label?: string; children: string }) {
       <pre className="overflow-x-auto rounded bg-ice-50 p-3 text-xs">{children}</pre>
     </div>
   );
-}
-
-/** Values and column names inside a column's help (intcal20, c14_error) set as code, the rest as words. */
-function withCodes(text: string): React.ReactNode[] {
-  return text
-    .split(/\b((?:intcal|marine)\d\d|[a-z][a-z0-9]*_[a-z0-9_]+)\b/)
-    .map((part, i) => (i % 2 === 1 ? <code key={i}>{part}</code> : part));
 }
 
 export function ErrorBoundary({ error }: Route.ErrorBoundaryProps) {

@@ -1,4 +1,5 @@
 import { constraintExamples } from "#app/components/api-docs/constraint-examples.ts";
+import { withCodes } from "#app/components/api-docs/with-codes.tsx";
 
 const PARAMETERS: [string, React.ReactNode][] = [
   ["bbox", "W,S,E,N in degrees (west < east, south < north)"],
@@ -63,7 +64,7 @@ export function ConstraintsApiSection({ base, releaseSlug }: { base: string; rel
               <td>
                 <code>{name}</code>
               </td>
-              <td>{meaning}</td>
+              <td>{typeof meaning === "string" ? withCodes(meaning) : meaning}</td>
             </tr>
           ))}
         </tbody>
