@@ -251,9 +251,11 @@ export default function ApiDocs({ loaderData }: Route.ComponentProps) {
 
       <Endpoint id="reviews-post" method="POST" path="/api/v1/reviews" who="A reviewer's token.">
         <p>
-          Grades one determination: grade 3 secure, 2 usable, 1 doubtful, 0 rejected; flags from young_carbon, old_carbon,
-          reworked, bulk_sediment, reservoir_uncertain, partial_bleaching, near_saturation, dose_rate_uncertain,
-          weak_stratigraphy, location_uncertain; an optional comment. Every review is kept; the determination shows the latest.
+          {withCodes(
+            "Grades one determination: grade 3 secure, 2 usable, 1 doubtful, 0 rejected; flags from young_carbon, old_carbon, " +
+              "reworked, bulk_sediment, reservoir_uncertain, partial_bleaching, near_saturation, dose_rate_uncertain, " +
+              "weak_stratigraphy, location_uncertain; an optional comment. Every review is kept; the determination shows the latest.",
+          )}
         </p>
         <Code>{`curl -s -X POST ${base}/api/v1/reviews -H "Authorization: Bearer <token>" \\
   -H "Content-Type: application/json" \\
