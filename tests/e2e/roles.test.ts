@@ -1,13 +1,13 @@
 import { describe, expect, inject, test } from "vitest";
 import type { Page } from "playwright-core";
 import { useBrowserAndDatabase } from "./browser.ts";
-import { signIn } from "./helpers.ts";
+import { signInAs } from "./helpers.ts";
 
 /*
  * One journey per role through the pages that role uses (and the signed-out visitor's), asserting
  * each page answers and that no internal code reaches the words people read. Text inside <code>
- * and <pre> (API field values, curl examples) is the API's contract and is left out. Signs in
- * through the real form (helpers.ts signIn). Runs against the built app seeded small.
+ * and <pre> (API field values, curl examples) is the API's contract and is left out. Signs in with
+ * the session-writing fixture (helpers.ts signInAs). Runs against the built app seeded small.
  */
 
 const baseUrl = inject("baseUrl");
@@ -75,7 +75,7 @@ describe("each role's pages speak in words", () => {
   test("contributor: explore, a determination and its site, the form, uploads, own submissions with pages", async () => {
     const context = await e2e.browser.newContext();
     const page = await context.newPage();
-    await signIn(page, "contributor@example.org");
+    await signInAs(page, "contributor@example.org");
     const me = one("select id from users where email = 'contributor@example.org'")!;
     const mine = e2e.db.prepare("select count(*) as n from determinations where contributor_id = ?").get(me) as { n: number };
     const all = e2e.db.prepare("select count(*) as n from determinations").get() as { n: number };
@@ -105,7 +105,7 @@ describe("each role's pages speak in words", () => {
   test("reviewer: the queue and one item", async () => {
     const context = await e2e.browser.newContext();
     const page = await context.newPage();
-    await signIn(page, "reviewer@example.org");
+    await signInAs(page, "reviewer@example.org");
     await visit(page, "/review", "reviewer");
     const waiting = one("select id from determinations where status in ('submitted', 'in_review') limit 1");
     await visit(page, `/review/${waiting}`, "reviewer");
@@ -118,7 +118,7 @@ describe("each role's pages speak in words", () => {
   test("modeller: constraint sets, model runs and an ensemble, map, API", async () => {
     const context = await e2e.browser.newContext();
     const page = await context.newPage();
-    await signIn(page, "modeller@example.org");
+    await signInAs(page, "modeller@example.org");
     await visit(page, "/constraints", "modeller");
     await visit(page, "/runs", "modeller");
     const ensemble = one("select ensemble as id from model_runs where ensemble is not null limit 1");
@@ -133,7 +133,7 @@ describe("each role's pages speak in words", () => {
   test("editor: curves, people, releases", async () => {
     const context = await e2e.browser.newContext();
     const page = await context.newPage();
-    await signIn(page, "editor@example.org");
+    await signInAs(page, "editor@example.org");
     await visit(page, "/curves", "editor");
     const people = await visit(page, "/people", "editor");
     // Role words promise only what exists.

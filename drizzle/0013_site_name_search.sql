@@ -1,0 +1,1 @@
+CREATE INDEX `sites_name_nocase_idx` ON `sites` ("name" collate nocase);
