@@ -1,14 +1,15 @@
-import { beforeAll, describe, expect, it } from "vitest";
+import { describe, expect, it } from "vitest";
 import { getDb } from "#app/db/client.server.ts";
 import { pointFromText, searchSites } from "#app/models/registry/site-search.server.ts";
 import * as siteSearch from "#app/routes/resources/site-search.ts";
 import * as submitPage from "#app/routes/contribute/submit.tsx";
 import { createTestSite } from "#tests/factories.ts";
 import { args, get, personWithSession, post, run } from "#tests/support/auth.ts";
+import { seedForFile } from "#tests/support/test-db.ts";
 
 let cookie: string;
 
-beforeAll(async () => {
+seedForFile(async () => {
   cookie = (await personWithSession(["contributor"])).cookie;
   const db = getDb();
   createTestSite(db, { name: "Quorvath Delta", latitude: 58.1, longitude: -63.2 });
