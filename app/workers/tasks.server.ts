@@ -2,6 +2,7 @@
 // connection to the database file it names, and a port to report progress on. Runs only in
 // worker threads; the server calls these through runInWorker().
 
+import { statSync } from "node:fs";
 import type { MessagePort } from "node:worker_threads";
 import { type Db, openDatabase, setDb } from "#app/db/client.server.ts";
 import type { JobHandler, JobSpec } from "#app/models/jobs.server.ts";
@@ -54,17 +55,20 @@ export type TaskResult<N extends TaskName> = Awaited<ReturnType<(typeof tasks)[N
 export type TaskOutcome =
   { ok: true; value: unknown } | { ok: false; error: { name: string; message: string; status?: number; details?: unknown } };
 
-const connections = new Map<string, Db>();
+const connections = new Map<string, { db: Db; ino: number; dev: number }>();
 
+/** The thread's connection to `file`, opened again when the file was replaced (restored, copied over). */
 function connection(file: string): Db {
-  let db = connections.get(file);
-  if (!db) {
-    db = openDatabase(file);
-    connections.set(file, db);
+  const { ino, dev } = statSync(file);
+  let entry = connections.get(file);
+  if (!entry || entry.ino !== ino || entry.dev !== dev || !entry.db.$client.open) {
+    if (entry?.db.$client.open) entry.db.$client.close();
+    entry = { db: openDatabase(file), ino, dev };
+    connections.set(file, entry);
   }
   // Code that asks getDb() in this thread gets the task's database.
-  setDb(db);
-  return db;
+  setDb(entry.db);
+  return entry.db;
 }
 
 export async function runTask(message: { task: TaskName; dbFile: string | null; payload: unknown; port: MessagePort }) {
