@@ -1,19 +1,14 @@
-import crypto from "node:crypto";
 import Database from "better-sqlite3";
-import { createCookie } from "react-router";
 import { afterAll, beforeAll, describe, expect, inject, test } from "vitest";
 import type { BrowserContext } from "playwright-core";
 import { useBrowser } from "./browser.ts";
-import { messagesFor, waitForMessage } from "./helpers.ts";
+import { messagesFor, signInAs, waitForMessage } from "./helpers.ts";
 
 /*
  * A reviewer's day: the queue, one date read and graded, a question about another; its
  * contributor answers from My submissions; the reviewer grades it. Runs against the built app
  * seeded small (tests/e2e/global-setup.ts).
- *
- * Sign-in: a small fixture of this file writes a session row into the app's database and sets its
- * signed cookie (the app's default development secret, which the browser tests' server uses), so
- * only the sign-in tests go through the code flow. Replace it with the shared fixture once there is one.
+ * Signs in through the shared fixture (helpers.ts signInAs); only the sign-in tests use the code flow.
  */
 
 const baseUrl = inject("baseUrl");
@@ -26,26 +21,10 @@ beforeAll(() => {
 });
 afterAll(() => db?.close());
 
-const sessionCookie = createCookie("thawline_session", {
-  path: "/",
-  httpOnly: true,
-  sameSite: "lax",
-  secrets: [process.env.SESSION_SECRET ?? "dev-only-session-secret-change-me"],
-});
-
-/** A browser context signed in as the person with this address. */
+/** A browser context signed in as the person with this address (the shared fixture, helpers.ts). */
 async function signedIn(email: string): Promise<BrowserContext> {
-  const user = db.prepare("select id from users where email = ?").get(email) as { id: number };
-  const id = crypto.randomBytes(32).toString("base64url");
-  db.prepare("insert into sessions (id, user_id, expires_at, created_at) values (?, ?, ?, ?)").run(
-    id,
-    user.id,
-    Date.now() + 3600_000,
-    Date.now(),
-  );
-  const value = (await sessionCookie.serialize(id)).split(";")[0]!.split("=").slice(1).join("=");
   const context = await session.browser.newContext();
-  await context.addCookies([{ name: "thawline_session", value, url: baseUrl, httpOnly: true, sameSite: "Lax" }]);
+  await signInAs(context, email);
   return context;
 }
 
