@@ -55,10 +55,12 @@ export function queryIssueMessage(
 ): string {
   const top = String(issue.path[0] ?? "");
   const hint = hints[top];
-  // A described parameter is named as a whole (a list's third value is still "methods").
-  const name = (hint ? top : issue.path.map(String).join(".")) || "query";
+  // A parameter is always named as a whole ("bbox", never "bbox.3"); an undescribed list's bad value says which.
+  const name = top || "query";
+  const index = issue.path.length > 1 && typeof issue.path[1] === "number" ? issue.path[1] : undefined;
+  const where = !hint && index !== undefined ? `value ${index + 1} — ` : "";
   const what = hint ? `give ${hint}` : GENERATED.test(issue.message) ? `give ${takes(issue)}` : issue.message;
-  return `${name}: ${what}${got(raw, top)}`;
+  return `${name}: ${where}${what}${got(raw, top)}`;
 }
 
 /** Every issue of a failed parse, once per parameter (the first issue says the most). */

@@ -35,6 +35,12 @@ describe("query parameter messages", () => {
     expect(messages("n=1&custom=deep")).toEqual(['custom: give a depth in metres (got "deep")']);
   });
 
+  it("name a list parameter as a whole and say which of its values is wrong", () => {
+    const parsed = parseConstraintFilter(new URLSearchParams("bbox=-70,50,-50,north"));
+    expect(parsed.ok).toBe(false);
+    expect(parsed.ok ? [] : parsed.errors).toEqual(['bbox: value 4 — give a number (got "-70,50,-50,north")']);
+  });
+
   it("shorten a long value", () => {
     expect(messages(`n=1&name=${"x".repeat(40)}`)[0]).toBe(`name: give at most 3 characters (got "${"x".repeat(20)}…")`);
   });
