@@ -1,5 +1,6 @@
 import { Link } from "react-router";
 import type { Route } from "./+types/ensemble";
+import { formatCount } from "#app/utils/age-format.ts";
 import { requireRole } from "#app/auth/session.server.ts";
 import { ErrorView } from "#app/components/error-view.tsx";
 import { ParameterPlot } from "#app/components/runs/parameter-plot.tsx";
@@ -127,7 +128,7 @@ export default function Ensemble({ loaderData }: Route.ComponentProps) {
                       <RunStatus status={r.status} progress={null} total={null} error={r.error} />
                     )}
                   </td>
-                  <td className="text-right tabular-nums">{r.n ?? "—"}</td>
+                  <td className="text-right tabular-nums">{r.n == null ? "—" : formatCount(r.n)}</td>
                   <td className="text-right tabular-nums">{r.share === null ? "—" : `${fmt(r.share * 100, 1)} %`}</td>
                   <td className="text-right tabular-nums">{fmt(r.maxI, 2)}</td>
                   <td className="text-right tabular-nums">{fmt(r.secondI, 2)}</td>

@@ -1,6 +1,7 @@
 import { parseWithZod } from "@conform-to/zod/v4";
 import { data, Link, useActionData } from "react-router";
 import type { Route } from "./+types/run";
+import { formatCount } from "#app/utils/age-format.ts";
 import { requireRole } from "#app/auth/session.server.ts";
 import { ErrorView } from "#app/components/error-view.tsx";
 import { GradeBadge } from "#app/components/grade-badge.tsx";
@@ -122,7 +123,7 @@ export default function RunPage({ loaderData }: Route.ComponentProps) {
             </div>
             <div>
               <dt className="text-sm text-muted">Constraints used</dt>
-              <dd className="text-2xl tabular-nums">{run.nConstraints}</dd>
+              <dd className="text-2xl tabular-nums">{run.nConstraints == null ? "—" : formatCount(run.nConstraints)}</dd>
             </div>
             <div>
               <dt className="text-sm text-muted">Share with score ≥ 0.5</dt>

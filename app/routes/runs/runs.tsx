@@ -1,5 +1,6 @@
 import { Form, Link, useActionData, useNavigation } from "react-router";
 import type { Route } from "./+types/runs";
+import { formatCount } from "#app/utils/age-format.ts";
 import { requireRole } from "#app/auth/session.server.ts";
 import { ErrorView } from "#app/components/error-view.tsx";
 import { fmt, RunStatus, usePollWhile } from "#app/components/runs/run-status.tsx";
@@ -135,7 +136,7 @@ export default function Runs({ loaderData }: Route.ComponentProps) {
           <label className="block">
             <span className="font-semibold">Ensemble</span>{" "}
             <span className="text-sm text-muted">(optional name grouping the runs)</span>
-            <input type="text" name="ensemble" maxLength={200} className="mt-1 block w-full" />
+            <input type="text" name="ensemble" maxLength={200} className="input mt-1 block w-full" />
           </label>
           <label className="block">
             <span className="font-semibold">Parameters CSV</span>{" "}
@@ -147,7 +148,7 @@ export default function Runs({ loaderData }: Route.ComponentProps) {
           <label className="block">
             <span className="font-semibold">Release</span>{" "}
             <span className="text-sm text-muted">(slug; empty: every determination graded 2 or 3)</span>
-            <input type="text" name="release" maxLength={200} className="mt-1 block w-full" />
+            <input type="text" name="release" maxLength={200} className="input mt-1 block w-full" />
           </label>
           <label className="block">
             <span className="font-semibold">Time offset</span>{" "}
@@ -156,7 +157,7 @@ export default function Runs({ loaderData }: Route.ComponentProps) {
               type="number"
               name="time_offset"
               step="any"
-              className="mt-1 block w-full"
+              className="input mt-1 block w-full"
               aria-invalid={result?.needsOffset || undefined}
               autoFocus={result?.needsOffset}
             />
@@ -164,12 +165,12 @@ export default function Runs({ loaderData }: Route.ComponentProps) {
           <label className="block">
             <span className="font-semibold">Ice threshold</span>{" "}
             <span className="text-sm text-muted">(m of ice thickness; default 1)</span>
-            <input type="number" name="threshold" step="any" min="0" className="mt-1 block w-full" />
+            <input type="number" name="threshold" step="any" min="0" className="input mt-1 block w-full" />
           </label>
           <label className="block">
             <span className="font-semibold">Tolerance</span>{" "}
             <span className="text-sm text-muted">(grid cells around a site, default 1; km for margins, default 0)</span>
-            <input type="number" name="tolerance" step="any" min="0" className="mt-1 block w-full" />
+            <input type="number" name="tolerance" step="any" min="0" className="input mt-1 block w-full" />
           </label>
           {result?.error ? (
             <div role="alert" className="md:col-span-2" data-testid="run-upload-error">
@@ -257,7 +258,7 @@ export default function Runs({ loaderData }: Route.ComponentProps) {
                       )}
                     </td>
                     <td className="text-right tabular-nums">{fmt(r.logL)}</td>
-                    <td className="text-right tabular-nums">{r.n ?? "—"}</td>
+                    <td className="text-right tabular-nums">{r.n == null ? "—" : formatCount(r.n)}</td>
                     <td>{r.ruledOut === null ? "—" : r.ruledOut ? "ruled out" : "not ruled out"}</td>
                   </tr>
                 ))}
