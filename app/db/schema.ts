@@ -167,9 +167,16 @@ export const labs = sqliteTable("labs", {
 
 export const publications = sqliteTable("publications", {
   id: integer("id").primaryKey({ autoIncrement: true }),
+  /** The reference as one line, written from the fields below by formatCitation (utils/citation.ts). */
   citation: text("citation").notNull(),
+  /** The identifier when the paper has one; a publication may have none. */
   doi: text("doi").unique(),
   year: integer("year"),
+  /** As the paper lists them, e.g. "Frostvik, A., Kettle, B.". Null only for a publication stored before citations were asked for. */
+  authors: text("authors"),
+  title: text("title"),
+  /** Journal (or book, report series), with volume and pages when given. */
+  journal: text("journal"),
   createdAt: createdAt(),
 });
 
