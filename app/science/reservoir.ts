@@ -55,5 +55,5 @@ export function hemisphereWarning(latitude: number | null | undefined, curveName
   if (!h) return null;
   const site: Hemisphere = latitude > 0 ? "north" : "south";
   if (site === h) return null;
-  return `The site lies in the ${site}ern hemisphere (latitude ${latitude.toFixed(2)}°) but is calibrated on ${curveLabel}, a ${h}ern-hemisphere curve.`;
+  return `The site lies in the ${site}ern hemisphere (latitude ${Math.abs(latitude).toFixed(2)}° ${latitude < 0 ? "S" : "N"}) but is calibrated on ${curveLabel}, a ${h}ern-hemisphere curve.`;
 }

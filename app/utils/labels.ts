@@ -41,7 +41,7 @@ export const FLAG_LABELS: Record<string, string> = {
 
 export const CHECK_LABELS: Record<string, string> = {
   value_range: "Value range",
-  marine: "Marine caveats",
+  marine: "Curve and marine reservoir",
   replicates: "Replicate consistency",
   stratigraphy: "Stratigraphic order",
   neighbours: "Neighbour conflicts",

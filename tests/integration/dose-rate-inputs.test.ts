@@ -2,6 +2,7 @@ import { describe, expect, it } from "vitest";
 import { seedForFile } from "#tests/support/test-db.ts";
 import { getDb } from "#app/db/client.server.ts";
 import { createToken } from "#app/models/accounts/tokens.server.ts";
+import { runChecksFor } from "#app/models/review/check-run.server.ts";
 import { determinationDetail } from "#app/models/registry/determination-page.server.ts";
 import * as submitPage from "#app/routes/contribute/submit.tsx";
 import * as preview from "#app/routes/resources/determination-preview.ts";
@@ -303,6 +304,11 @@ describe("warnings at the field", () => {
     expect(out.status).toBe(201);
     const warning = out.data.warnings.find((w) => w.column === "internal_k_percent");
     expect(warning).toMatchObject({ index: 0, row: 1, message: expect.stringMatching(/12\.5 ± 0\.5 %.*assumed/) });
+    // The same caution is stored with the checks, so a reviewer sees it in the queue.
+    const id = out.data.determination_ids![0]!;
+    runChecksFor(db(), [id]);
+    const valueRange = determinationDetail(db(), id)!.checks.find((c) => c.check === "value_range");
+    expect(valueRange).toMatchObject({ severity: "note", message: expect.stringMatching(/Dose-rate inputs: .*12\.5 ± 0\.5 %/) });
   });
 
   it("API: a fine-grain row without an a-value is refused at a_value, nothing written", async () => {
@@ -360,6 +366,9 @@ describe("warnings at the field", () => {
     );
     const id = detByCode(row.lab_code!).id as number;
     expect(determinationDetail(db(), id)!.hemisphere).toMatch(/southern hemisphere.*northern-hemisphere curve/);
+    runChecksFor(db(), [id]);
+    const curveCheck = determinationDetail(db(), id)!.checks.find((c) => c.check === "marine");
+    expect(curveCheck).toMatchObject({ severity: "warning", message: expect.stringMatching(/latitude 45\.20° S/) });
     const north = await apiPost([radiocarbonRow({ material: "plant macrofossil", c14_age: "9000", c14_error: "40" })]);
     expect(north.data.warnings.filter((w) => w.column === "curve")).toEqual([]);
     expect(determinationDetail(db(), north.data.determination_ids![0]!)!.hemisphere).toBeNull();

@@ -7,6 +7,7 @@ import type { Method, ConstraintKind } from "#app/db/schema.ts";
 import { densityMoments, type CheckItem } from "#app/science/checks/types.ts";
 import { makeReconstruction, type Reconstruction } from "#app/science/checks/reconstruction.ts";
 import { parseReconstruction } from "#app/science/checks/reconstruction-file.ts";
+import type { DoseRateFields } from "#app/science/dose-rate-fields.ts";
 import { decodeDensity } from "#app/models/calibration/calibrations.server.ts";
 
 interface Row {
@@ -43,6 +44,19 @@ interface Row {
   density_start_cal_bp: number | null;
   density: Buffer | null;
   cal_error: string | null;
+  signal: string | null;
+  mineral: string | null;
+  k_percent: number | null;
+  u_ppm: number | null;
+  th_ppm: number | null;
+  water_content_fraction: number | null;
+  grain_size_um: number | null;
+  grain_use: string | null;
+  a_value: number | null;
+  internal_k_percent: number | null;
+  burial_depth_m: number | null;
+  density_g_per_cm3: number | null;
+  lab_cosmic_gy_per_ka: number | null;
 }
 
 const SELECT = `
@@ -50,7 +64,9 @@ const SELECT = `
     s.material, coalesce(m.marine, 0) as marine, s.depth_cm, s.strat_unit, s.strat_order, d.grade,
     d.c14_age_yr, d.c14_error_yr, d.f14c, d.f14c_error, d.is_limit, d.curve_name, d.delta_r_yr, d.delta_r_error_yr,
     d.delta_r_curve, d.de_gy, d.de_error_gy, d.dose_rate_gy_per_ka, d.dose_rate_error_gy_per_ka, d.measurement_year,
-    c.median_cal_bp, c.density_start_cal_bp, c.density, c.error as cal_error
+    c.median_cal_bp, c.density_start_cal_bp, c.density, c.error as cal_error,
+    d.signal, d.mineral, d.k_percent, d.u_ppm, d.th_ppm, d.water_content_fraction, d.grain_size_um, d.grain_use,
+    d.a_value, d.internal_k_percent, d.burial_depth_m, d.density_g_per_cm3, d.lab_cosmic_gy_per_ka
   from determinations d
   join samples s on s.id = d.sample_id
   join sites st on st.id = s.site_id
@@ -97,6 +113,26 @@ function toItem(r: Row): CheckItem {
     measurementYear: r.measurement_year,
     calendar,
     calibrationError: r.cal_error,
+    doseRateFields: r.method === "luminescence" && r.k_percent !== null ? doseRateFieldsOf(r) : null,
+  };
+}
+
+/** The stored inputs the dose-rate warnings read (the same reading as the form's). */
+function doseRateFieldsOf(r: Row): DoseRateFields {
+  return {
+    signal: r.signal,
+    mineral: r.mineral,
+    kPercent: r.k_percent,
+    uPpm: r.u_ppm,
+    thPpm: r.th_ppm,
+    waterContentFraction: r.water_content_fraction,
+    grainSizeUm: r.grain_size_um,
+    grainUse: r.grain_use,
+    aValue: r.a_value,
+    internalKPercent: r.internal_k_percent,
+    burialDepthM: r.burial_depth_m,
+    densityGPerCm3: r.density_g_per_cm3,
+    labCosmicGyPerKa: r.lab_cosmic_gy_per_ka,
   };
 }
 

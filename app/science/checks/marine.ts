@@ -2,6 +2,8 @@
 // curve; Marine20 is used with great caution poleward of 40° before the Holocene
 // (Heaton et al. 2020, 2023; CHECK_VALUES A5).
 
+import { curveWords } from "#app/utils/labels.ts";
+import { hemisphereWarning } from "../reservoir.ts";
 import { result, yr, type CheckItem, type CheckResult } from "./types.ts";
 
 /** Start of the Holocene, cal BP [common practice: 11,700 b2k ≈ 11,650 cal BP; the round figure is used]. */
@@ -17,12 +19,17 @@ function isMarineCurve(name: string | null): boolean {
 export function checkMarine(item: CheckItem): CheckResult {
   if (item.method !== "radiocarbon") return result(CHECK, "pass", "Not a radiocarbon date: no reservoir correction applies.");
   const marineCurve = isMarineCurve(item.curveName);
-  if (!item.marineMaterial && !marineCurve) return result(CHECK, "pass", "Terrestrial material on an atmospheric curve.");
+  if (!item.marineMaterial && !marineCurve) {
+    // An atmospheric curve belongs to one hemisphere; a site on the other side is calibrated wrongly.
+    const hemisphere = item.curveName ? hemisphereWarning(item.latitude, item.curveName, curveWords(item.curveName)) : null;
+    if (hemisphere) return result(CHECK, "warning", hemisphere, { latitude: item.latitude, curveName: item.curveName });
+    return result(CHECK, "pass", "Terrestrial material on an atmospheric curve.");
+  }
   if (item.marineMaterial && !marineCurve) {
     return result(
       CHECK,
       "warning",
-      `Marine material (${item.material}) calibrated on ${item.curveName ?? "the atmospheric curve"}: the marine reservoir age is not corrected.`,
+      `Marine material (${item.material}) calibrated on ${item.curveName ? curveWords(item.curveName) : "the atmospheric curve"}: the marine reservoir age is not corrected.`,
       { material: item.material, curveName: item.curveName },
       "reservoir_uncertain",
     );
@@ -32,7 +39,7 @@ export function checkMarine(item: CheckItem): CheckResult {
     return result(
       CHECK,
       "warning",
-      `No local ΔR given for a marine date on ${item.curveName}: the calibration assumes ΔR = 0 with no error.`,
+      `No local ΔR given for a marine date on ${curveWords(item.curveName)}: the calibration assumes ΔR = 0 with no error.`,
       { curveName: item.curveName },
       "reservoir_uncertain",
     );
@@ -51,7 +58,7 @@ export function checkMarine(item: CheckItem): CheckResult {
     return result(
       CHECK,
       "warning",
-      `${dr} was derived against ${item.deltaRCurve} but the date is calibrated on ${item.curveName}; values from older curves shift by roughly −140 yr for Marine20.`,
+      `${dr} was derived against ${curveWords(item.deltaRCurve)} but the date is calibrated on ${curveWords(item.curveName)}; values from older curves shift by roughly −140 yr for Marine20.`,
       { deltaRYr: item.deltaRYr, deltaRCurve: item.deltaRCurve, curveName: item.curveName },
       "reservoir_uncertain",
     );
@@ -65,7 +72,7 @@ export function checkMarine(item: CheckItem): CheckResult {
       { latitude: item.latitude, medianCalBp: median, deltaRYr: item.deltaRYr },
     );
   }
-  return result(CHECK, "pass", `${dr} against ${item.curveName}, as the curve requires.`, {
+  return result(CHECK, "pass", `${dr} against ${curveWords(item.curveName)}, as the curve requires.`, {
     deltaRYr: item.deltaRYr,
     deltaRErrorYr: item.deltaRErrorYr,
   });

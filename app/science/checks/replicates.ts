@@ -65,14 +65,14 @@ export function checkReplicates(item: CheckItem, group: readonly CheckItem[] | u
   const conflictCritical = wardWilson(values, REPLICATE_CONFLICT_SIGNIFICANCE).critical;
   const radiocarbon = item.method === "radiocarbon";
   const pooled = radiocarbon
-    ? `${yr(ww.pooledMean)} ± ${yr(ww.pooledError)} 14C yr BP`
+    ? `${yr(ww.pooledMean)} ± ${yr(ww.pooledError)} ¹⁴C yr BP`
     : `${ww.pooledMean.toFixed(2)} ± ${ww.pooledError.toFixed(2)} ka`;
   const details = {
     n: group.length,
     labCodes: group.map((g) => g.labCode),
     pooledMean: ww.pooledMean,
     pooledError: ww.pooledError,
-    unit: radiocarbon ? "14C yr BP" : "ka",
+    unit: radiocarbon ? "¹⁴C yr BP" : "ka",
     t: ww.t,
     df: ww.df,
     critical: ww.critical,

@@ -4,6 +4,7 @@
 import { groupThousands } from "../calendar.ts";
 import type { CheckKind, CheckSeverity, ConstraintKind, Flag, Method } from "#app/db/schema.ts";
 import type { CalendarDensity } from "../density.ts";
+import type { DoseRateFields } from "../dose-rate-fields.ts";
 
 export type { CheckKind, CheckSeverity, Flag };
 
@@ -54,6 +55,8 @@ export interface CheckItem {
   calendar: CalendarAge | null;
   /** Why there is no calendar age, when the calibration recorded one. */
   calibrationError: string | null;
+  /** A luminescence row's stored dose-rate inputs, so the assumptions made for it are checked too. */
+  doseRateFields?: DoseRateFields | null;
 }
 
 export interface CheckResult {

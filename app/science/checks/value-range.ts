@@ -1,8 +1,9 @@
 // Check 1, value range: "greater than" ages, post-bomb ages, ages the curve cannot calibrate,
 // and errors too small or too large to be believed.
 
+import { doseRateFieldIssues, type DoseRateField } from "../dose-rate-fields.ts";
 import { luminescenceAge } from "../luminescence.ts";
-import { result, yr, type CheckItem, type CheckResult } from "./types.ts";
+import { result, SEVERITY_RANK, yr, type CheckItem, type CheckResult } from "./types.ts";
 
 /**
  * Error bounds [common practice]: AMS counting errors below about 15 14C yr are not achieved in
@@ -34,7 +35,7 @@ function radiocarbonRange(item: CheckItem): CheckResult {
     return result(
       CHECK,
       "note",
-      `Reported as greater than ${age === null ? "its limit" : `${yr(age)} 14C yr BP`}: a limit, stored but not calibrated.`,
+      `Reported as greater than ${age === null ? "its limit" : `${yr(age)} ¹⁴C yr BP`}: a limit, stored but not calibrated.`,
       { limitYr: age },
     );
   }
@@ -42,7 +43,7 @@ function radiocarbonRange(item: CheckItem): CheckResult {
     return result(
       CHECK,
       "warning",
-      `Post-bomb result (${item.f14c !== null ? `F14C ${item.f14c.toFixed(4)}` : `${yr(age!)} 14C yr BP`}): younger than AD 1950 and not a deglacial age.`,
+      `Post-bomb result (${item.f14c !== null ? `F14C ${item.f14c.toFixed(4)}` : `${yr(age!)} ¹⁴C yr BP`}): younger than AD 1950 and not a deglacial age.`,
       { f14c: item.f14c, c14AgeYr: age },
       "young_carbon",
     );
@@ -71,13 +72,34 @@ function radiocarbonRange(item: CheckItem): CheckResult {
   if (!item.calendar) {
     return result(CHECK, "note", `No calendar age: ${item.calibrationError ?? "not calibrated yet"}.`);
   }
-  return result(CHECK, "pass", `${yr(age ?? 0)} ± ${yr(error ?? 0)} 14C yr BP lies within the curve with a plausible error.`, {
+  return result(CHECK, "pass", `${yr(age ?? 0)} ± ${yr(error ?? 0)} ¹⁴C yr BP lies within the curve with a plausible error.`, {
     c14AgeYr: age,
     c14ErrorYr: error,
   });
 }
 
+/**
+ * What a computed dose rate assumed or lacks (the same warnings the form shows at the field):
+ * a missing a-value or a signal that contradicts the mineral is a warning; a published default
+ * put in for a missing input (internal K, grain size, density) or no cosmic term is a note.
+ */
+const DOSE_RATE_WARNING_FIELDS: ReadonlySet<DoseRateField> = new Set(["a_value", "mineral", "burial_depth_m"]);
+
+function withDoseRateInputs(item: CheckItem, base: CheckResult): CheckResult {
+  const issues = item.doseRateFields ? doseRateFieldIssues(item.doseRateFields) : [];
+  if (issues.length === 0) return base;
+  const worst = issues.some((i) => DOSE_RATE_WARNING_FIELDS.has(i.field)) ? "warning" : "note";
+  const severity = SEVERITY_RANK[worst] > SEVERITY_RANK[base.severity] ? worst : base.severity;
+  const message = `${base.message} Dose-rate inputs: ${issues.map((i) => i.message).join(" ")}`;
+  const flag = base.suggestedFlag ?? (worst === "warning" ? "dose_rate_uncertain" : null);
+  return result(CHECK, severity, message, { ...base.details, doseRateInputIssues: issues }, flag);
+}
+
 function luminescenceRange(item: CheckItem): CheckResult {
+  return withDoseRateInputs(item, luminescenceAgeRange(item));
+}
+
+function luminescenceAgeRange(item: CheckItem): CheckResult {
   const { deGy, deErrorGy, doseRateGyPerKa, doseRateErrorGyPerKa } = item;
   if (deGy === null || doseRateGyPerKa === null || !(deGy > 0) || !(doseRateGyPerKa > 0)) {
     return result(CHECK, "note", `No age: ${item.calibrationError ?? "De and dose rate are both needed"}.`);

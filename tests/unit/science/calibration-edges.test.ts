@@ -152,7 +152,7 @@ describe("reservoir offsets beyond marine (A5, common practice)", () => {
 
   it("warns for a southern-hemisphere site on a northern curve", () => {
     expect(hemisphereWarning(-45.2, "intcal20", "IntCal20")).toMatch(
-      /southern hemisphere.*IntCal20, a northern-hemisphere curve/,
+      /southern hemisphere \(latitude 45.20° S\).*IntCal20, a northern-hemisphere curve/,
     );
     expect(hemisphereWarning(58.5, "intcal20")).toBeNull();
     expect(hemisphereWarning(-45.2, "marine20")).toBeNull();

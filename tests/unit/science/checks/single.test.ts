@@ -70,6 +70,37 @@ describe("value range", () => {
     expect(r.severity).toBe("warning");
     expect(r.suggestedFlag).toBe("dose_rate_uncertain");
   });
+
+  // The stored dose-rate inputs are read as the form reads them (app/science/dose-rate-fields.ts).
+  const computed = {
+    method: "luminescence" as const,
+    deGy: 50,
+    deErrorGy: 2.5,
+    doseRateGyPerKa: 2.5,
+    doseRateErrorGyPerKa: 0.1,
+    measurementYear: 2015,
+  };
+  const inputs = { kPercent: 1.5, uPpm: 2, thPpm: 8, waterContentFraction: 0.15, burialDepthM: 1.2, densityGPerCm3: 1.9 };
+
+  it("warns when a fine-grain row has no a-value, naming it and suggesting the dose-rate flag", () => {
+    const r = checkValueRange(item({ ...computed, doseRateFields: { ...inputs, grainSizeUm: 8 } }));
+    expect(r.severity).toBe("warning");
+    expect(r.message).toContain("Fine grains need an a-value");
+    expect(r.suggestedFlag).toBe("dose_rate_uncertain");
+    expect(r.details.doseRateInputIssues).toEqual([expect.objectContaining({ field: "a_value" })]);
+  });
+
+  it("notes the published internal K assumed for a K-feldspar row, and passes a complete quartz row", () => {
+    const feldspar = checkValueRange(
+      item({ ...computed, doseRateFields: { ...inputs, grainSizeUm: 200, signal: "pIRIR", mineral: "K-feldspar" } }),
+    );
+    expect(feldspar.severity).toBe("note");
+    // Huntley & Baril 1997: 12.5 ± 0.5 % internal K (CHECK_VALUES, from memory)
+    expect(feldspar.message).toContain("12.5 ± 0.5 %");
+    expect(feldspar.suggestedFlag).toBeNull();
+    const quartz = checkValueRange(item({ ...computed, doseRateFields: { ...inputs, grainSizeUm: 200, mineral: "quartz" } }));
+    expect(quartz.severity).toBe("pass");
+  });
 });
 
 describe("marine caveats", () => {
@@ -106,6 +137,12 @@ describe("marine caveats", () => {
     const r = checkMarine(item({ ...shell, latitude: 58.2, age: [12500, 100] }));
     expect(r.severity).toBe("note");
     expect(checkMarine(item({ ...shell, latitude: 35, age: [12500, 100] })).severity).toBe("pass");
+  });
+
+  it("warns on a southern-hemisphere site calibrated on IntCal20, in words", () => {
+    const r = checkMarine(item({ latitude: -45.2, curveName: "intcal20" }));
+    expect(r.severity).toBe("warning");
+    expect(r.message).toMatch(/southern hemisphere \(latitude 45\.20° S\).*IntCal20 \(2020\), a northern-hemisphere curve/);
   });
 
   it("leaves terrestrial and luminescence dates alone", () => {
