@@ -2,7 +2,7 @@ import Database from "better-sqlite3";
 import { afterAll, beforeAll, describe, expect, inject, test } from "vitest";
 import type { BrowserContext } from "playwright-core";
 import { useBrowser } from "./browser.ts";
-import { messagesFor, signInAs, waitForMessage } from "./helpers.ts";
+import { messagesFor, signInAs, waitForHydration, waitForMessage } from "./helpers.ts";
 
 /*
  * A reviewer's day: the queue, one date read and graded, a question about another; its
@@ -68,6 +68,17 @@ describe("reviewing", () => {
     expect(severities.map(rank)).toEqual([...severities.map(rank)].sort((a, b) => a - b));
     await page.getByRole("heading", { name: /^Neighbours within/ }).waitFor();
     await page.getByRole("heading", { name: /^Stratigraphic column/ }).waitFor();
+    // Without a grade the form says so at the field, in the browser, and nothing is recorded.
+    await waitForHydration(page);
+    const posts: string[] = [];
+    const onRequest = (r: { method(): string; url(): string }) => void (r.method() === "POST" && posts.push(r.url()));
+    page.on("request", onRequest);
+    await page.getByRole("button", { name: "Record grade" }).click();
+    await page.getByText("Choose a grade: 3 secure, 2 usable, 1 doubtful or 0 rejected.").waitFor();
+    page.off("request", onRequest);
+    expect(posts).toEqual([]);
+    expect(new URL(page.url()).pathname).toBe(`/review/${first}`);
+    expect(row(first).grade).toBeNull();
     await page.locator(`input[name="grade"][value="2"]`).check();
     await page.getByLabel("Comment").fill("Consistent with its neighbours.");
     await Promise.all([

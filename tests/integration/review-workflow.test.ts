@@ -3,14 +3,13 @@ import { getDb } from "#app/db/client.server.ts";
 import { readFakeOutbox } from "#app/mail/outbox.server.ts";
 import {
   answerQuestion,
-  answerSchema,
   askQuestion,
-  questionSchema,
   recordReviews,
   reopenDetermination,
   reviewMessages,
   ReviewRefused,
 } from "#app/models/review/reviews.server.ts";
+import { answerSchema, questionSchema } from "#app/utils/review-forms.ts";
 import { createTestDetermination, createTestUser } from "#tests/factories.ts";
 import { useMailFake } from "#tests/support/mail-fake.ts";
 

@@ -2,9 +2,9 @@
 // and the token API all call recordReviews, so separation of duties, leases and the audit trail
 // cannot drift between them.
 
-import { z } from "zod";
 import type { Db } from "#app/db/client.server.ts";
-import { FLAGS, type Flag } from "#app/db/schema.ts";
+import type { Flag } from "#app/db/schema.ts";
+import type { GradeInput } from "#app/utils/review-forms.ts";
 import { audit } from "#app/models/audit.server.ts";
 import { sendEmail } from "#app/mail/send.server.ts";
 import { reviewDigestMessage, reviewQuestionMessage } from "#app/mail/review-messages.server.ts";
@@ -20,18 +20,6 @@ export class ReviewRefused extends Error {
     super(message);
   }
 }
-
-/** What a reviewer sets; the review page, the bulk form and the API share it. */
-export const gradeSchema = z.object({
-  grade: z.coerce
-    .number({ message: "Choose a grade: 3 secure, 2 usable, 1 doubtful or 0 rejected." })
-    .int({ message: "The grade must be 0, 1, 2 or 3." })
-    .min(0, { message: "The grade must be 0, 1, 2 or 3." })
-    .max(3, { message: "The grade must be 0, 1, 2 or 3." }),
-  flags: z.array(z.enum(FLAGS, { message: `Unknown flag; use one of ${FLAGS.join(", ")}.` })).default([]),
-  comment: z.string().trim().max(4000, { message: "Keep the comment under 4,000 characters." }).optional(),
-});
-export type GradeInput = z.infer<typeof gradeSchema>;
 
 interface DetRow {
   id: number;
@@ -174,17 +162,6 @@ export async function sendDigests(db: Db, gradedIds: readonly number[]): Promise
   }
   return sent;
 }
-
-export const questionSchema = z.object({
-  question: z
-    .string({ message: "Write the question." })
-    .trim()
-    .min(5, { message: "Write the question (a sentence or two)." })
-    .max(4000),
-});
-export const answerSchema = z.object({
-  answer: z.string({ message: "Write your answer." }).trim().min(2, { message: "Write your answer." }).max(4000),
-});
 
 /** A reviewer's question: the message is kept, the determination waits for its contributor, who gets an e-mail. */
 export async function askQuestion(db: Db, id: number, question: string, actor: ReviewActor): Promise<void> {

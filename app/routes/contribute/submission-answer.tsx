@@ -4,7 +4,8 @@ import type { Route } from "./+types/submission-answer";
 import { clientAddress, requireRole } from "#app/auth/session.server.ts";
 import { ErrorView } from "#app/components/error-view.tsx";
 import { getDb } from "#app/db/client.server.ts";
-import { answerQuestion, answerSchema, reviewMessages, ReviewRefused } from "#app/models/review/reviews.server.ts";
+import { answerQuestion, reviewMessages, ReviewRefused } from "#app/models/review/reviews.server.ts";
+import { answerSchema } from "#app/utils/review-forms.ts";
 import { notFound } from "#app/utils/http.server.ts";
 
 export const meta: Route.MetaFunction = () => [{ title: "Answer a reviewer · Thawline" }];

@@ -1,5 +1,6 @@
 import { useEffect } from "react";
 import { data, Form, Link, redirect, useNavigate } from "react-router";
+import { getFormProps, getTextareaProps, useForm } from "@conform-to/react";
 import { parseWithZod } from "@conform-to/zod/v4";
 import type { Route } from "./+types/item";
 import { clientAddress, requireRole } from "#app/auth/session.server.ts";
@@ -18,14 +19,9 @@ import { CHECK_KINDS, FLAGS } from "#app/db/schema.ts";
 import { plotForDetermination } from "#app/models/calibration/calibration-plot.server.ts";
 import { determinationDetail } from "#app/models/registry/determination-page.server.ts";
 import { nextInQueue, releaseItem, takeItem } from "#app/models/review/queue.server.ts";
-import {
-  askQuestion,
-  gradeSchema,
-  questionSchema,
-  recordReviews,
-  reviewMessages,
-  ReviewRefused,
-} from "#app/models/review/reviews.server.ts";
+import { askQuestion, recordReviews, reviewMessages, ReviewRefused } from "#app/models/review/reviews.server.ts";
+import { gradeSchema, questionSchema } from "#app/utils/review-forms.ts";
+import { FieldErrors } from "#app/components/ui/field-errors.tsx";
 import { formatCal, formatMeasuredAge } from "#app/utils/age-format.ts";
 import { notFound } from "#app/utils/http.server.ts";
 import { CHECK_LABELS, CONSTRAINT_KIND_LABELS, FLAG_LABELS, STATUS_LABELS } from "#app/utils/labels.ts";
@@ -125,7 +121,20 @@ export default function ReviewItem({ loaderData, actionData }: Route.ComponentPr
     window.addEventListener("keydown", onKey);
     return () => window.removeEventListener("keydown", onKey);
   }, [navigate, nextId]);
-  const errors = actionData?.result && "error" in actionData.result ? (actionData.result.error ?? {}) : {};
+  const [gradeForm, gradeFields] = useForm({
+    id: "grade",
+    lastResult: actionData?.intent === "grade" ? actionData.result : undefined,
+    shouldValidate: "onSubmit",
+    shouldRevalidate: "onInput",
+    onValidate: ({ formData }) => parseWithZod(formData, { schema: gradeSchema }),
+  });
+  const [askForm, askFields] = useForm({
+    id: "ask",
+    lastResult: actionData?.intent === "ask" ? actionData.result : undefined,
+    shouldValidate: "onBlur",
+    shouldRevalidate: "onInput",
+    onValidate: ({ formData }) => parseWithZod(formData, { schema: questionSchema }),
+  });
   const heldByOther = lease && !lease.mine;
   return (
     <article>
@@ -269,19 +278,25 @@ export default function ReviewItem({ loaderData, actionData }: Route.ComponentPr
         <p className="mt-6 rounded border border-rule p-3">{lease.name} has taken this determination for review.</p>
       ) : (
         <div className="mt-6 grid gap-6 lg:grid-cols-2">
-          <Form method="post" className="card grid gap-3" aria-labelledby="grade-heading">
+          <Form method="post" {...getFormProps(gradeForm)} className="card grid gap-3" aria-labelledby="grade-heading">
             <h2 id="grade-heading">Grade</h2>
             <input type="hidden" name="intent" value="grade" />
-            <fieldset>
+            <fieldset aria-describedby={gradeFields.grade.errors ? gradeFields.grade.errorId : undefined}>
               <legend className="label">Reliability</legend>
               <div className="mt-1 flex flex-wrap gap-3">
                 {[3, 2, 1, 0].map((g) => (
                   <label key={g} className="flex items-center gap-1">
-                    <input type="radio" name="grade" value={g} required /> <GradeBadge grade={g} />
+                    <input
+                      type="radio"
+                      name={gradeFields.grade.name}
+                      value={g}
+                      aria-invalid={gradeFields.grade.errors ? true : undefined}
+                    />{" "}
+                    <GradeBadge grade={g} />
                   </label>
                 ))}
               </div>
-              {errors.grade ? <p className="text-conflict text-sm">{errors.grade.join(" ")}</p> : null}
+              <FieldErrors id={gradeFields.grade.errorId} errors={gradeFields.grade.errors} />
             </fieldset>
             <fieldset>
               <legend className="label">Flags (the checks' suggestions are ticked)</legend>
@@ -294,8 +309,9 @@ export default function ReviewItem({ loaderData, actionData }: Route.ComponentPr
               </div>
             </fieldset>
             <div className="field">
-              <label htmlFor="grade-comment">Comment</label>
-              <textarea id="grade-comment" name="comment" className="input" rows={3} />
+              <label htmlFor={gradeFields.comment.id}>Comment</label>
+              <textarea {...getTextareaProps(gradeFields.comment)} className="input" rows={3} />
+              <FieldErrors id={gradeFields.comment.errorId} errors={gradeFields.comment.errors} />
             </div>
             <div className="flex gap-3">
               <button type="submit" className="btn">
@@ -304,15 +320,13 @@ export default function ReviewItem({ loaderData, actionData }: Route.ComponentPr
             </div>
           </Form>
           <div className="grid gap-3">
-            <Form method="post" className="card grid gap-3" aria-labelledby="ask-heading">
+            <Form method="post" {...getFormProps(askForm)} className="card grid gap-3" aria-labelledby="ask-heading">
               <h2 id="ask-heading">Ask the contributor</h2>
               <input type="hidden" name="intent" value="ask" />
               <div className="field">
-                <label htmlFor="ask-question">Question</label>
-                <textarea id="ask-question" name="question" className="input" rows={3} required />
-                {actionData?.intent === "ask" && errors.question ? (
-                  <p className="text-conflict text-sm">{errors.question.join(" ")}</p>
-                ) : null}
+                <label htmlFor={askFields.question.id}>Question</label>
+                <textarea {...getTextareaProps(askFields.question)} className="input" rows={3} />
+                <FieldErrors id={askFields.question.errorId} errors={askFields.question.errors} />
               </div>
               <div>
                 <button type="submit" className="btn">

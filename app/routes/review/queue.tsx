@@ -12,7 +12,8 @@ import { listQueue, parseQueueFilters, queueFilterOptions, takeItem } from "#app
 import { rankWord } from "#app/utils/check-rank.ts";
 import { JobProgress } from "#app/components/ui/job-progress.tsx";
 import { recentJobs } from "#app/models/jobs.server.ts";
-import { gradeSchema, recordReviews, ReviewRefused } from "#app/models/review/reviews.server.ts";
+import { recordReviews, ReviewRefused } from "#app/models/review/reviews.server.ts";
+import { gradeSchema } from "#app/utils/review-forms.ts";
 import { formatCal } from "#app/utils/age-format.ts";
 import { FLAG_LABELS, STATUS_LABELS } from "#app/utils/labels.ts";
 

@@ -2,7 +2,8 @@ import type { Route } from "./+types/reviews";
 import { requireApiRole } from "#app/auth/api.server.ts";
 import { clientAddress } from "#app/auth/session.server.ts";
 import { getDb } from "#app/db/client.server.ts";
-import { gradeSchema, recordReviews, ReviewRefused } from "#app/models/review/reviews.server.ts";
+import { recordReviews, ReviewRefused } from "#app/models/review/reviews.server.ts";
+import { gradeSchema } from "#app/utils/review-forms.ts";
 import { json } from "#app/utils/http.server.ts";
 
 /*
