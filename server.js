@@ -21,6 +21,8 @@ const port = Number(process.env.PORT ?? 3000);
 const host = process.env.HOST ?? "127.0.0.1";
 const trustProxy = process.env.TRUST_PROXY === "true";
 const uploadMaxBytes = Number(process.env.UPLOAD_MAX_BYTES ?? 10 * 1024 * 1024);
+const modelRunMaxBytes = Number(process.env.MODEL_RUN_MAX_BYTES ?? 512 * 1024 * 1024);
+const modelRunBatchMaxBytes = Number(process.env.MODEL_RUN_BATCH_MAX_BYTES ?? 2048 * 1024 * 1024);
 const build = await import(path.resolve("build/server/index.js"));
 
 const app = express();
@@ -35,7 +37,7 @@ app.use(express.static("build/client", { maxAge: "1h" }));
 app.use(clientAddress({ trustProxy }));
 // Cross-origin writes are refused before React Router sees them (pages and resource routes alike).
 app.use(originGuard({ appUrl: process.env.APP_URL, trustProxy }));
-app.use(bodyLimit({ uploadMaxBytes }));
+app.use(bodyLimit({ uploadMaxBytes, modelRunMaxBytes, modelRunBatchMaxBytes }));
 app.all("/{*splat}", reactRouterHandler({ build, mode: process.env.NODE_ENV }));
 app.use((/** @type {unknown} */ error, /** @type {any} */ req, /** @type {any} */ res, /** @type {any} */ _next) => {
   logError(error, { method: req.method, path: req.path });

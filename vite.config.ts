@@ -62,7 +62,12 @@ export default defineConfig(({ command }) => ({
         server.middlewares.use(securityHeaders({ scripts: false }));
         server.middlewares.use(originGuard({ appUrl: process.env.APP_URL }));
         server.middlewares.use(
-          bodyLimit({ uploadMaxBytes: Number(process.env.UPLOAD_MAX_BYTES ?? 10 * 1024 * 1024), streaming: false }),
+          bodyLimit({
+            uploadMaxBytes: Number(process.env.UPLOAD_MAX_BYTES ?? 10 * 1024 * 1024),
+            modelRunMaxBytes: Number(process.env.MODEL_RUN_MAX_BYTES ?? 512 * 1024 * 1024),
+            modelRunBatchMaxBytes: Number(process.env.MODEL_RUN_BATCH_MAX_BYTES ?? 2048 * 1024 * 1024),
+            streaming: false,
+          }),
         );
       },
     },

@@ -1,10 +1,12 @@
 import type { IncomingMessage, ServerResponse } from "node:http";
-export function bodyLimitFor(pathname: string, options: { uploadMaxBytes: number }): number;
+export type BodyLimits = { uploadMaxBytes: number; modelRunMaxBytes?: number; modelRunBatchMaxBytes?: number };
+export function bodyLimitFor(pathname: string, options: BodyLimits): number;
 export class BodyTooLarge extends Error {
   limit: number;
   constructor(limit: number);
 }
-export function bodyLimit(options: {
-  uploadMaxBytes: number;
-  streaming?: boolean;
-}): (req: IncomingMessage, res: ServerResponse, next: () => void) => void;
+export function bodyLimit(
+  options: BodyLimits & {
+    streaming?: boolean;
+  },
+): (req: IncomingMessage, res: ServerResponse, next: () => void) => void;

@@ -12,11 +12,15 @@ const MiB = 1024 * KiB;
 
 /**
  * @param {string} pathname
- * @param {{ uploadMaxBytes: number }} options
+ * @param {{ uploadMaxBytes: number; modelRunMaxBytes?: number; modelRunBatchMaxBytes?: number }} options
  * @returns {number} the largest body accepted for this path, in bytes
  */
-export function bodyLimitFor(pathname, { uploadMaxBytes }) {
+export function bodyLimitFor(pathname, { uploadMaxBytes, modelRunMaxBytes = 512 * MiB, modelRunBatchMaxBytes = 2048 * MiB }) {
   if (pathname === "/sign-in" || pathname.startsWith("/sign-in/") || pathname === "/sign-out") return 16 * KiB;
+  // Model runs: one file through the API, an ensemble of files on the /runs page (each file is
+  // held to MODEL_RUN_MAX_BYTES by the file intake as it streams in).
+  if (pathname === "/api/v1/model-runs") return modelRunMaxBytes + 64 * KiB;
+  if (pathname === "/runs") return modelRunBatchMaxBytes + 64 * KiB;
   // Multipart framing adds a little to the file itself. Editors' file forms (a curve, a margin
   // reconstruction) check their own, smaller, limits once the body is in.
   if (
@@ -73,7 +77,7 @@ const pathnameOf = (url) => (url ?? "/").split("?")[0] ?? "/";
  * body is counted as it streams: the handler reads `req.limitedBody` (set here) instead of `req`.
  * With `streaming: false` (the Vite dev server, whose handler reads `req` itself) only the
  * declared length is checked.
- * @param {{ uploadMaxBytes: number; streaming?: boolean }} options
+ * @param {{ uploadMaxBytes: number; modelRunMaxBytes?: number; modelRunBatchMaxBytes?: number; streaming?: boolean }} options
  */
 export function bodyLimit(options) {
   /** @type {(req: import("node:http").IncomingMessage & { limitedBody?: import("node:stream").Readable }, res: import("node:http").ServerResponse, next: () => void) => void} */

@@ -28,6 +28,18 @@ const schema = z.object({
     .int()
     .positive()
     .default(10 * 1024 * 1024),
+  /** Largest model-run file taken by the /runs page and POST /api/v1/model-runs, bytes (the command-line scorer has none). */
+  MODEL_RUN_MAX_BYTES: z.coerce
+    .number()
+    .int()
+    .positive()
+    .default(512 * 1024 * 1024),
+  /** Largest /runs page upload in total (an ensemble of files), bytes; the production server stops reading past it. */
+  MODEL_RUN_BATCH_MAX_BYTES: z.coerce
+    .number()
+    .int()
+    .positive()
+    .default(2 * 1024 * 1024 * 1024),
   /** Radius of the neighbours check, km. */
   CHECK_NEIGHBOUR_RADIUS_KM: z.coerce.number().positive().max(500).default(25),
   /** Largest accepted margin reconstruction file, bytes. */

@@ -1,84 +1,16 @@
-import { existsSync, mkdtempSync, readdirSync, rmSync } from "node:fs";
-import { tmpdir } from "node:os";
-import { join } from "node:path";
-import { afterAll, describe, expect, it } from "vitest";
-import { seedForFile } from "#tests/support/test-db.ts";
-import { getDb } from "#app/db/client.server.ts";
-import { calibrations, determinations, labs, modelRuns, samples, sites } from "#app/db/schema.ts";
-import { createToken } from "#app/models/accounts/tokens.server.ts";
-import { runFilesDir } from "#app/models/model-runs/runs.server.ts";
-import { jobFinished } from "#app/models/jobs.server.ts";
+import { describe, expect, it } from "vitest";
 import { action as postRun } from "#app/routes/api/v1/model-runs.ts";
 import { loader as getRun } from "#app/routes/api/v1/model-run.ts";
 import { loader as getEnsemble } from "#app/routes/api/v1/ensemble.ts";
-import { args, ORIGIN, personWithSession, run } from "#tests/support/auth.ts";
-import { densityBlob, runFile as runFileIn } from "#tests/support/model-runs.ts";
+import { args, ORIGIN, run } from "#tests/support/auth.ts";
+import { apiUpload, runFile as runFileIn, runsKept, scoringIdle, seedRunFixture } from "#tests/support/model-runs.ts";
 
-const dir = mkdtempSync(join(tmpdir(), "thawline-api-runs-"));
-afterAll(() => rmSync(dir, { recursive: true, force: true }));
-let token: string;
-let detIds: number[] = [];
+// Three minimum-limiting dates at 10,000 cal BP (σ 100): graded 3, 2 and rejected (0).
+const fx = seedRunFixture("ZZR", [3, 2, 0]);
 
-const runFile = (name: string, degl: number, units?: string) => runFileIn(dir, name, degl, units);
-
-function upload(form: Record<string, string | File>, auth = token) {
-  const body = new FormData();
-  for (const [k, v] of Object.entries(form)) body.append(k, v);
-  return new Request(`${ORIGIN}/api/v1/model-runs`, { method: "POST", body, headers: { Authorization: `Bearer ${auth}` } });
-}
-
-const apiGet = (path: string) => new Request(`${ORIGIN}${path}`, { headers: { Authorization: `Bearer ${token}` } });
-
-seedForFile(async () => {
-  const db = getDb();
-  const modeller = await personWithSession(["modeller"]);
-  token = createToken(db, modeller.id, "runs", { actorId: modeller.id }).token;
-  const contributor = await personWithSession(["contributor"]);
-  const lab = db.insert(labs).values({ name: "Runs Test Laboratory", codePrefix: "ZZR", city: "Nowhere" }).returning().get();
-  const site = db.insert(sites).values({ name: "Runs Test Site", latitude: 57, longitude: -66 }).returning().get();
-  const sample = db.insert(samples).values({ siteId: site.id, fieldCode: "ZZR-F1", material: "marine shell" }).returning().get();
-  // three minimum-limiting dates at 10,000 cal BP (σ 100): graded 3, 2 and rejected (0)
-  detIds = [3, 2, 0].map((grade, i) => {
-    const d = db
-      .insert(determinations)
-      .values({
-        sampleId: sample.id,
-        labId: lab.id,
-        contributorId: contributor.id,
-        labCode: `ZZR-000${i}`,
-        method: "luminescence",
-        constraintKind: "minimum",
-        status: "graded",
-        grade,
-      })
-      .returning()
-      .get();
-    const { start, blob } = densityBlob(10000, 100);
-    db.insert(calibrations)
-      .values({
-        determinationId: d.id,
-        curveLabel: "luminescence",
-        isCurrent: true,
-        densityStartCalBp: start,
-        density: blob,
-        medianCalBp: 10000,
-      })
-      .run();
-    return d.id;
-  });
-});
-
-/** Waits for every scoring job this file started (the runs record their job). */
-async function scoringIdle() {
-  const ids = new Set(
-    getDb()
-      .select({ jobId: modelRuns.jobId })
-      .from(modelRuns)
-      .all()
-      .map((r) => r.jobId),
-  );
-  for (const id of ids) if (id) await jobFinished(id);
-}
+const runFile = (name: string, degl: number, units?: string) => runFileIn(fx.dir, name, degl, units);
+const upload = (form: Record<string, string | File>) => apiUpload(fx.token, form);
+const apiGet = (path: string) => new Request(`${ORIGIN}${path}`, { headers: { Authorization: `Bearer ${fx.token}` } });
 
 describe("POST /api/v1/model-runs → background scoring → GET", () => {
   it("answers 202 queued, scores in the background, and reports raw scores", async () => {
@@ -118,7 +50,7 @@ describe("POST /api/v1/model-runs → background scoring → GET", () => {
     expect(body.status).toBe("scored");
     // the rejected date is not scored against; the two others are
     expect(body.n_constraints).toBe(2);
-    expect(body.scores.map((s) => s.determination_id).sort()).toEqual(detIds.slice(0, 2).sort());
+    expect(body.scores.map((s) => s.determination_id).sort()).toEqual(fx.detIds.slice(0, 2).sort());
     // hand: F ramps from 0 at 11,000 to 1 at 10,000; under N(10000, 100)
     // E[min(1, (11000 − t)/1000)] = 1 − E[(t − 10000)+]/1000 = 1 − 100·φ(0)/1000 = 0.96011
     for (const s of body.scores) {
@@ -160,8 +92,7 @@ describe("POST /api/v1/model-runs → background scoring → GET", () => {
   });
 
   it("needs a time offset when the units do not say, and keeps nothing for a bad file", async () => {
-    const before = getDb().select().from(modelRuns).all().length;
-    const filesBefore = existsSync(runFilesDir()) ? readdirSync(runFilesDir()).length : 0;
+    const before = runsKept();
     const bad = await run(async () =>
       postRun(args(upload({ file: await runFile("model-time.nc", 10500, "years"), name: "needs offset" }))),
     );
@@ -169,8 +100,7 @@ describe("POST /api/v1/model-runs → background scoring → GET", () => {
     expect((bad.data as { error: string }).error).toMatch(/time offset/);
     const text = await run(() => postRun(args(upload({ file: new File(["not a model"], "x.nc"), name: "text" }))));
     expect(text.status).toBe(400);
-    expect(getDb().select().from(modelRuns).all().length).toBe(before);
-    expect(existsSync(runFilesDir()) ? readdirSync(runFilesDir()).length : 0).toBe(filesBefore);
+    expect(runsKept()).toEqual(before);
     const ok = await run(async () =>
       postRun(args(upload({ file: await runFile("model-time.nc", 10500, "years"), name: "with offset", time_offset: "12000" }))),
     );

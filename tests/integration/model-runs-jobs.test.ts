@@ -1,13 +1,9 @@
 // Scoring as a background job: the time-mapping step on the run page, resuming runs a restart
 // left queued, release scoring on the densities frozen at publication, and the margin outlines.
-import { mkdtempSync, rmSync } from "node:fs";
-import { tmpdir } from "node:os";
-import { join } from "node:path";
 import { eq } from "drizzle-orm";
-import { afterAll, describe, expect, it } from "vitest";
-import { seedForFile } from "#tests/support/test-db.ts";
+import { describe, expect, it } from "vitest";
 import { getDb } from "#app/db/client.server.ts";
-import { calibrations, determinations, jobs, labs, modelRunMargins, modelRuns, samples, sites } from "#app/db/schema.ts";
+import { calibrations, jobs, modelRunMargins, modelRuns } from "#app/db/schema.ts";
 import { getJob, jobFinished } from "#app/models/jobs.server.ts";
 import { createRun, resumeScoring } from "#app/models/model-runs/runs.server.ts";
 import { getRun, runScores } from "#app/models/model-runs/views.server.ts";
@@ -15,56 +11,13 @@ import { action as runsAction } from "#app/routes/runs/runs.tsx";
 import { action as runAction, loader as runLoader } from "#app/routes/runs/run.tsx";
 import { loader as marginsLoader } from "#app/routes/resources/model-run-margins.ts";
 import { args, get, ORIGIN, personWithSession, run } from "#tests/support/auth.ts";
-import { densityBlob, runFile, writeRunFile } from "#tests/support/model-runs.ts";
+import { densityBlob, pageUpload as pageUploadAs, runFile, seedRunFixture, writeRunFile } from "#tests/support/model-runs.ts";
 
-const dir = mkdtempSync(join(tmpdir(), "thawline-run-jobs-"));
-afterAll(() => rmSync(dir, { recursive: true, force: true }));
-let modeller: Awaited<ReturnType<typeof personWithSession>>;
-let detId: number;
+// One minimum-limiting date, graded 3; its live density sits at 10,000 cal BP (σ 100).
+const fx = seedRunFixture("ZZJ", [3]);
+const dir = fx.dir;
 
-seedForFile(async () => {
-  const db = getDb();
-  modeller = await personWithSession(["modeller"]);
-  const contributor = await personWithSession(["contributor"]);
-  const lab = db.insert(labs).values({ name: "Jobs Test Laboratory", codePrefix: "ZZJ", city: "Nowhere" }).returning().get();
-  const site = db.insert(sites).values({ name: "Jobs Test Site", latitude: 57, longitude: -66 }).returning().get();
-  const sample = db.insert(samples).values({ siteId: site.id, fieldCode: "ZZJ-F1", material: "marine shell" }).returning().get();
-  // One minimum-limiting date, graded 3; its live density sits at 10,000 cal BP (σ 100).
-  const d = db
-    .insert(determinations)
-    .values({
-      sampleId: sample.id,
-      labId: lab.id,
-      contributorId: contributor.id,
-      labCode: "ZZJ-0001",
-      method: "luminescence",
-      constraintKind: "minimum",
-      status: "graded",
-      grade: 3,
-    })
-    .returning()
-    .get();
-  detId = d.id;
-  const { start, blob } = densityBlob(10000, 100);
-  db.insert(calibrations)
-    .values({
-      determinationId: d.id,
-      curveLabel: "luminescence",
-      isCurrent: true,
-      densityStartCalBp: start,
-      density: blob,
-      medianCalBp: 10000,
-    })
-    .run();
-});
-
-function pageUpload(files: File[], extra: Record<string, string> = {}) {
-  const body = new FormData();
-  body.append("intent", "upload");
-  for (const f of files) body.append("file", f);
-  for (const [k, v] of Object.entries(extra)) body.append(k, v);
-  return new Request(`${ORIGIN}/runs`, { method: "POST", body, headers: { Cookie: modeller.cookie } });
-}
+const pageUpload = (files: File[], extra: Record<string, string> = {}) => pageUploadAs(fx.modeller.cookie, files, extra);
 
 async function waitForRun(id: number) {
   const jobId = getRun(getDb(), id)!.jobId;
@@ -85,7 +38,7 @@ describe("time-mapping step", () => {
     expect(runs[0].jobId).toBeNull(); // nothing scores before the offset is stated
 
     const page = await run(() =>
-      runLoader(args(get(`/runs/${runs[0].id}`, { cookie: modeller.cookie }), { id: String(runs[0].id) })),
+      runLoader(args(get(`/runs/${runs[0].id}`, { cookie: fx.modeller.cookie }), { id: String(runs[0].id) })),
     );
     expect((page.data as { waitingOthers: number }).waitingOthers).toBe(1);
 
@@ -96,7 +49,7 @@ describe("time-mapping step", () => {
           new Request(`${ORIGIN}/runs/${runs[0].id}`, {
             method: "POST",
             body: new URLSearchParams({ intent: "time-offset", time_offset: "soon" }),
-            headers: { Cookie: modeller.cookie },
+            headers: { Cookie: fx.modeller.cookie },
           }),
           { id: String(runs[0].id) },
         ),
@@ -128,7 +81,7 @@ describe("time-mapping step", () => {
           new Request(`${ORIGIN}/runs/${runs[0].id}`, {
             method: "POST",
             body: new URLSearchParams({ intent: "time-offset", time_offset: "12000", whole_ensemble: "on" }),
-            headers: { Cookie: modeller.cookie },
+            headers: { Cookie: fx.modeller.cookie },
           }),
           { id: String(runs[0].id) },
         ),
@@ -154,7 +107,7 @@ describe("time-mapping step", () => {
 describe("restart", () => {
   it("scores runs a restart left queued or cut off, and leaves waiting ones alone", async () => {
     const db = getDb();
-    const base = { userId: modeller.id, ensemble: "restart", maxBytes: Infinity };
+    const base = { userId: fx.modeller.id, ensemble: "restart", maxBytes: Infinity };
     const queued = await createRun(db, {
       ...base,
       name: "left queued",
@@ -187,7 +140,7 @@ describe("restart", () => {
     const margins = db.select().from(modelRunMargins).where(eq(modelRunMargins.runId, queued.id)).all();
     expect(margins).toHaveLength(5);
     const served = await run(() =>
-      marginsLoader(args(get(`/runs/${queued.id}/margins.json`, { cookie: modeller.cookie }), { id: String(queued.id) })),
+      marginsLoader(args(get(`/runs/${queued.id}/margins.json`, { cookie: fx.modeller.cookie }), { id: String(queued.id) })),
     );
     const slices = (served.data as { slices: { calBp: number; coordinates: number[][][][] }[] }).slices;
     expect(slices.map((s) => s.calBp)).toEqual([12000, 11000, 10000, 9000, 8000]);
@@ -209,7 +162,7 @@ describe("release scoring", () => {
           `insert into releases (slug, name, version, filter, curve_versions, item_count, checksum, created_by, published_at)
            values ('frozen-test-1', 'Frozen test', '1', '{}', '[]', 1, 'x', ?, ?)`,
         )
-        .run(modeller.id, Date.now()).lastInsertRowid,
+        .run(fx.modeller.id, Date.now()).lastInsertRowid,
     );
     db.$client
       .prepare(
@@ -217,25 +170,25 @@ describe("release scoring", () => {
       )
       .run(
         releaseId,
-        detId,
-        JSON.stringify({ id: detId, latitude: 57, longitude: -66, constraint_kind: "minimum", grade: 3 }),
+        fx.detIds[0],
+        JSON.stringify({ id: fx.detIds[0], latitude: 57, longitude: -66, constraint_kind: "minimum", grade: 3 }),
         frozen.start,
         frozen.blob,
       );
     db.update(calibrations)
       .set({ densityStartCalBp: live.start, density: live.blob })
-      .where(eq(calibrations.determinationId, detId))
+      .where(eq(calibrations.determinationId, fx.detIds[0]))
       .run();
     // Ice leaves at 9,500: free at 8,500 (live: agrees) but not at 10,000 (frozen: disagrees).
     const withRelease = await createRun(db, {
-      userId: modeller.id,
+      userId: fx.modeller.id,
       name: "release run",
       filePath: await writeRunFile(dir, "rel.nc", 9500),
       fileName: "rel.nc",
       choice: { releaseSlug: "frozen-test-1" },
     });
     const live2 = await createRun(db, {
-      userId: modeller.id,
+      userId: fx.modeller.id,
       name: "live run",
       filePath: await writeRunFile(dir, "live.nc", 9500),
       fileName: "live.nc",
@@ -247,10 +200,10 @@ describe("release scoring", () => {
     const back = densityBlob(10000, 100);
     db.update(calibrations)
       .set({ densityStartCalBp: back.start, density: back.blob })
-      .where(eq(calibrations.determinationId, detId))
+      .where(eq(calibrations.determinationId, fx.detIds[0]))
       .run();
-    const rel = runScores(db, withRelease.id).find((s) => s.determinationId === detId)!;
-    const cur = runScores(db, live2.id).find((s) => s.determinationId === detId)!;
+    const rel = runScores(db, withRelease.id).find((s) => s.determinationId === fx.detIds[0])!;
+    const cur = runScores(db, live2.id).find((s) => s.determinationId === fx.detIds[0])!;
     expect(getRun(db, withRelease.id)!.releaseId).toBe(releaseId);
     expect(rel.score).toBeLessThan(0.05);
     expect(cur.score).toBeGreaterThan(0.95);

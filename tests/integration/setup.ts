@@ -9,6 +9,8 @@ process.env.SECURE_COOKIES = "false";
 // The fixtures' sites lie where the demo's do (northern Labrador and Ungava Bay).
 process.env.REGION_OF_INTEREST = "55,62,-75,-58";
 process.env.MAIL_OUTBOX_DIR = path.join(inject("integrationDir"), "outbox");
+// A small model-run limit, so a test can go past it without streaming half a gigabyte (test runs are a few KB).
+process.env.MODEL_RUN_MAX_BYTES = String(2 * 1024 * 1024);
 
 // Every test starts from a fresh copy of the migrated base (or of its file's seeded base, see
 // tests/support/test-db.ts seedForFile), so no test sees another's writes.

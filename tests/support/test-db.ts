@@ -13,11 +13,14 @@ import { openDatabase, setDb, type Db } from "#app/db/client.server.ts";
 
 const dir = inject("integrationDir");
 const plainBase = path.join(dir, "base.db");
-// One path per worker: files in a worker run one after another, workers never share a path.
-const worker = `w${process.env.VITEST_POOL_ID ?? "0"}-${process.pid}`;
+// One folder per worker: files in a worker run one after another, workers never share a path.
+// Model-run files are kept beside the database (data folder/model-runs, by run id), so the
+// folder keeps one worker's run files from another's runs of the same id.
+const workerDir = path.join(dir, `w${process.env.VITEST_POOL_ID ?? "0"}-${process.pid}`);
+fs.mkdirSync(workerDir, { recursive: true });
 /** The database the app uses during a test (DATABASE_URL; model-run files are stored beside it). */
-export const testDatabaseFile = path.join(dir, `${worker}.db`);
-const seededBase = path.join(dir, `${worker}-seeded.db`);
+export const testDatabaseFile = path.join(workerDir, "app.db");
+const seededBase = path.join(workerDir, "seeded.db");
 
 let base = plainBase;
 let open: Db | undefined;
@@ -37,6 +40,7 @@ export function closeDatabase() {
 function openCopy(from: string, file: string): Db {
   closeDatabase();
   remove(file);
+  fs.mkdirSync(path.dirname(file), { recursive: true });
   fs.copyFileSync(from, file);
   open = openDatabase(file);
   setDb(open);
@@ -66,6 +70,5 @@ export function seedForFile(build: () => unknown) {
 /** The end of the file: close and remove its databases. */
 export function removeDatabases() {
   closeDatabase();
-  remove(testDatabaseFile);
-  remove(seededBase);
+  fs.rmSync(workerDir, { recursive: true, force: true });
 }

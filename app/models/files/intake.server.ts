@@ -48,6 +48,8 @@ export type IntakeOptions = {
   requireFile?: boolean;
   /** Where the temporary folder is made (default: the system's temporary folder). */
   tempRoot?: string;
+  /** What to tell the sender after "the file is over the size limit" (default: split it). */
+  overLimitAdvice?: string;
 };
 
 export type ReceivedFile = {
@@ -100,7 +102,10 @@ export async function receiveFiles(request: Request, options: IntakeOptions): Pr
     await rm(dir, { recursive: true, force: true });
   };
   try {
-    const { files, fields } = await streamParts(request.body, contentType, dir, options);
+    const streamed = await streamParts(request.body, contentType, dir, options);
+    const fields = streamed.fields;
+    // A file input left empty sends a part without a file name or bytes: nothing was chosen.
+    const files = streamed.files.filter((f) => f.named || f.size > 0).map(({ named: _named, ...f }) => f);
     if ((options.requireFile ?? true) && files.length === 0) {
       throw new FileIntakeError(`Choose a file to upload (field "${(options.fileFields ?? ["file"])[0]}").`);
     }
@@ -134,7 +139,8 @@ export async function withReceivedFiles<T>(
   }
 }
 
-type Streamed = { files: Omit<ReceivedFile, "sniffed">[]; fields: URLSearchParams };
+type StreamedFile = Omit<ReceivedFile, "sniffed"> & { named: boolean };
+type Streamed = { files: StreamedFile[]; fields: URLSearchParams };
 
 function streamParts(body: ReadableStream<Uint8Array>, contentType: string, dir: string, o: IntakeOptions): Promise<Streamed> {
   const maxFiles = o.maxFiles ?? 1;
@@ -142,7 +148,7 @@ function streamParts(body: ReadableStream<Uint8Array>, contentType: string, dir:
   const maxFields = o.maxFields ?? 50;
   const maxFieldBytes = o.maxFieldBytes ?? 64 * KiB;
   return new Promise<Streamed>((resolve, reject) => {
-    const files: Omit<ReceivedFile, "sniffed">[] = [];
+    const files: StreamedFile[] = [];
     const fields = new URLSearchParams();
     const writes: Promise<void>[] = [];
     const sinks: NodeJS.WritableStream[] = [];
@@ -183,13 +189,13 @@ function streamParts(body: ReadableStream<Uint8Array>, contentType: string, dir:
         return fail(new FileIntakeError(`A file came in field "${field.slice(0, 40)}"; send it in "${fileFields[0]}".`));
       }
       const path = join(dir, String(files.length));
-      const entry = { field, name, path, size: 0 };
+      const entry = { field, name, path, size: 0, named: !!info.filename };
       files.push(entry);
       stream.on("data", (chunk: Buffer) => (entry.size += chunk.length));
       stream.on("limit", () =>
         fail(
           new FileIntakeError(
-            `${name}: the file is over the size limit; the limit is ${formatBytes(o.maxFileBytes)}. Split it into several files.`,
+            `${name}: the file is over the size limit; the limit is ${formatBytes(o.maxFileBytes)}. ${o.overLimitAdvice ?? "Split it into several files."}`,
             413,
             name,
           ),

@@ -8,8 +8,7 @@ import { JobProgress } from "#app/components/ui/job-progress.tsx";
 import { getDb } from "#app/db/client.server.ts";
 import { getJob, type JobView } from "#app/models/jobs.server.ts";
 import { UnknownReleaseError } from "#app/models/model-runs/constraints.server.ts";
-import { IntakeError, intakeRuns, readForm } from "#app/models/model-runs/intake.server.ts";
-import { MODEL_RUN_MAX_BYTES } from "#app/models/model-runs/run-file.server.ts";
+import { IntakeError, intakeRuns, modelRunMaxBytes, withReceivedRuns } from "#app/models/model-runs/intake.server.ts";
 import { startScoring } from "#app/models/model-runs/runs.server.ts";
 import { listRuns } from "#app/models/model-runs/views.server.ts";
 import { redirectWithFlash } from "#app/utils/flash.server.ts";
@@ -45,12 +44,12 @@ export async function loader({ request }: Route.LoaderArgs) {
       waiting: r.run.timeMapping !== null,
       fileName: r.run.fileName,
     })),
-    maxMb: Math.round(MODEL_RUN_MAX_BYTES / 1048576),
+    maxMb: Math.round(modelRunMaxBytes() / 1048576),
   };
 }
 
-const num = (form: FormData, key: string) => {
-  const v = String(form.get(key) ?? "").trim();
+const num = (form: URLSearchParams, key: string) => {
+  const v = (form.get(key) ?? "").trim();
   if (!v) return null;
   const n = Number(v);
   if (!Number.isFinite(n)) throw new IntakeError(`${key.replace("_", " ")} must be a number.`);
@@ -61,23 +60,23 @@ export async function action({ request }: Route.ActionArgs) {
   const user = await requireRole(request, "modeller");
   const db = getDb();
   try {
-    const form = await readForm(request);
-    if (form.get("intent") !== "upload") throw new IntakeError("Unknown intent.");
-    const files = form.getAll("file").filter((f): f is File => typeof f !== "string" && f.size > 0);
-    const csv = form.get("parameters_csv");
-    const runs = await intakeRuns(db, files, {
-      userId: user.id,
-      ensemble:
-        String(form.get("ensemble") ?? "")
-          .trim()
-          .slice(0, 200) || null,
-      parametersCsv: csv && typeof csv !== "string" && csv.size ? await csv.text() : null,
-      timeOffset: num(form, "time_offset"),
-      thresholdM: num(form, "threshold"),
-      tolerance: num(form, "tolerance"),
-      choice: { releaseSlug: String(form.get("release") ?? "").trim() || null },
-      keepUnmapped: true,
-    });
+    const runs = await withReceivedRuns(
+      request,
+      { maxFiles: 200, parametersCsv: true },
+      ({ runs: files, parametersCsv, fields: form }) => {
+        if (form.get("intent") !== "upload") throw new IntakeError("Unknown intent.");
+        return intakeRuns(db, files, {
+          userId: user.id,
+          ensemble: (form.get("ensemble") ?? "").trim().slice(0, 200) || null,
+          parametersCsv,
+          timeOffset: num(form, "time_offset"),
+          thresholdM: num(form, "threshold"),
+          tolerance: num(form, "tolerance"),
+          choice: { releaseSlug: (form.get("release") ?? "").trim() || null },
+          keepUnmapped: true,
+        });
+      },
+    );
     startScoring(
       db,
       runs.map((r) => r.id),
