@@ -71,6 +71,20 @@ export default defineConfig(({ command }) => ({
         );
       },
     },
+    {
+      // As server.js does in production: once the dev server listens, background work a restart
+      // cut off (model runs still queued or cut off while scoring) starts again.
+      name: "thawline-resume-background-work",
+      apply: "serve",
+      configureServer(server) {
+        server.httpServer?.once("listening", () => {
+          server
+            .ssrLoadModule("/app/models/startup.server.ts")
+            .then((startup) => (startup as typeof import("./app/models/startup.server.ts")).resumeBackgroundWork())
+            .catch((error: unknown) => server.config.logger.error(`Could not resume background work: ${String(error)}`));
+        });
+      },
+    },
     reactRouter(),
     buildSummary(),
   ],

@@ -34,6 +34,15 @@ export const median = (xs: number[]) => {
 export const ms = (x: number) => `${x < 10 ? x.toFixed(2) : x.toFixed(0)} ms`;
 export const seconds = (x: number) => `${(x / 1000).toFixed(2)} s`;
 
+/** Wall and CPU time (user + system, this process) of one synchronous step, in ms. */
+export function measure<T>(step: () => T): { value: T; ms: number; cpuMs: number } {
+  const t0 = performance.now();
+  const c0 = process.cpuUsage();
+  const value = step();
+  const c = process.cpuUsage(c0);
+  return { value, ms: performance.now() - t0, cpuMs: (c.user + c.system) / 1000 };
+}
+
 export function freePort(): Promise<number> {
   return new Promise((resolve, reject) => {
     const srv = net.createServer();
