@@ -10,6 +10,15 @@ import { API_DEFAULT_PER_PAGE, API_MAX_PER_PAGE } from "#app/models/registry/det
 import { EXPLORE_PAGE_SIZE } from "#app/utils/explore-filters.ts";
 import { COLUMNS } from "#app/utils/determination-input/columns.ts";
 import { MAX_CALIBRATION_ITEMS } from "#app/utils/calibrate-input.ts";
+import {
+  CALIBRATE_RATE_LIMIT,
+  CALIBRATE_WORK_BUDGET,
+  DENSITY_VALUE_COST,
+  ITEM_COST,
+  MAX_REQUEST_WORK,
+  MAX_SIGMA_YR,
+} from "#app/utils/calibrate-limits.ts";
+import { groupThousands } from "#app/science/calendar.ts";
 import { env } from "#app/utils/env.server.ts";
 
 export const meta: Route.MetaFunction = () => [{ title: "API · Thawline" }];
@@ -138,7 +147,7 @@ export default function ApiDocs({ loaderData }: Route.ComponentProps) {
         id="calibrate"
         method="POST"
         path="/api/v1/calibrate"
-        who="Anyone; no token. Rate-limited per address (429 with Retry-After)."
+        who="Anyone; no token. Rate-limited per address, by requests and by work (429 with Retry-After)."
       >
         <p>
           Calibrates ¹⁴C ages that need not be in the registry. Each item has an <code>id</code>, <code>c14_age</code> and{" "}
@@ -154,6 +163,18 @@ export default function ApiDocs({ loaderData }: Route.ComponentProps) {
           Ranges run from the oldest: <code>from</code> is the older bound, <code>to</code> the younger, in cal BP, with their
           probability <code>p</code>. An item that cannot be calibrated comes back as <code>{`{"id": …, "error": "…"}`}</code> in
           its place; a malformed request is <code>400</code> <code>{`{"error": "…"}`}</code>.
+        </p>
+        <p>
+          The work of a request is counted before it is done: each item costs {groupThousands(ITEM_COST)} units plus one per
+          calendar year its age spans on the curve (a wide error spans many), and a density {DENSITY_VALUE_COST} more per year. A
+          request of more than {groupThousands(MAX_REQUEST_WORK)} units is <code>413</code> with the count, the limit (
+          <code>work</code>, <code>limit</code>) and the widest items — {MAX_CALIBRATION_ITEMS.toLocaleString("en")} dates of
+          ordinary error fit, about 1,500 with densities. An item whose <code>c14_error</code> or <code>delta_r_error</code> is
+          over {groupThousands(MAX_SIGMA_YR)} years makes the request <code>400</code>, with every such item in{" "}
+          <code>problems</code> (<code>index</code>, <code>field</code>, <code>message</code>). Each address may use{" "}
+          {groupThousands(CALIBRATE_WORK_BUDGET.capacity)} units a minute, refilling steadily, besides{" "}
+          {CALIBRATE_RATE_LIMIT.limit} requests a minute; past either the answer is <code>429</code> with <code>Retry-After</code>{" "}
+          in seconds. Large answers are sent as they are written.
         </p>
       </Endpoint>
 

@@ -70,6 +70,15 @@ export function curveAgeLimits(prepared: PreparedCurve, deltaR = 0): { min: numb
   return { min: prepared.minC14 + deltaR, max: prepared.maxC14 + deltaR };
 }
 
+/** How far (2σ, widened by the curve's own σ at each end and σ_ΔR) the age reaches below and above. */
+function reach(prepared: PreparedCurve, input: CalibrationInput): { below: number; above: number } {
+  const drs = input.deltaRError ?? 0;
+  return {
+    below: Math.hypot(input.error, drs, prepared.minC14Sigma) * REACH_SD,
+    above: Math.hypot(input.error, drs, prepared.maxC14Sigma) * REACH_SD,
+  };
+}
+
 /**
  * Why a measurement cannot be calibrated on this curve, or null when it can: it is refused only
  * when its 2σ range, widened by the curve's own σ at that end and σ_ΔR, lies wholly outside the
@@ -84,8 +93,7 @@ export function beyondCurve(prepared: PreparedCurve, input: CalibrationInput): s
   const covers =
     `${name} covers ${fmt(lim.min)}–${fmt(lim.max)} ¹⁴C yr BP${deltaR !== 0 ? ` with ΔR ${fmt(deltaR)}` : ""} ` +
     `(${fmt(prepared.startCalBp)}–${fmt(last)} cal BP)`;
-  const below = Math.hypot(input.error, drs, prepared.minC14Sigma) * REACH_SD;
-  const above = Math.hypot(input.error, drs, prepared.maxC14Sigma) * REACH_SD;
+  const { below, above } = reach(prepared, input);
   if (useF14cSpace(input)) {
     // The same test in F14C, where the error is symmetric: F + 2σ must reach the curve's oldest F.
     const fOld = ageToF(lim.max);
@@ -126,6 +134,57 @@ function checkInput(input: CalibrationInput): void {
   }
 }
 
+/** Whether a block of the curve (its 14C min and max, largest σ²) lies within the cutoff of `mu`. Squared distances avoid a square root per block. */
+function withinCutoff(mu: number, extraVar: number) {
+  return (lo: number, hi: number, maxS2: number) => {
+    const d = mu < lo ? lo - mu : mu > hi ? mu - hi : 0;
+    return d * d <= CUTOFF2 * (extraVar + maxS2);
+  };
+}
+
+/** The first and last block of the curve where the likelihood of `mu` (variance `extraVar` besides the curve's) is not cut off; -1 when none. */
+function likelihoodBlocks(prepared: PreparedCurve, mu: number, extraVar: number): { bFirst: number; bLast: number } {
+  const { blockMinC, blockMaxC, blockMaxS2, superMinC, superMaxC, superMaxS2 } = prepared;
+  const within = withinCutoff(mu, extraVar);
+  const nBlocks = blockMinC.length;
+  let bFirst = -1;
+  let bLast = -1;
+  for (let k = 0; k < superMinC.length; k++) {
+    if (!within(superMinC[k], superMaxC[k], superMaxS2[k])) continue;
+    const bEnd = Math.min(nBlocks, (k + 1) * SUPER_BLOCK);
+    for (let b = k * SUPER_BLOCK; b < bEnd; b++) {
+      if (within(blockMinC[b], blockMaxC[b], blockMaxS2[b])) {
+        if (bFirst < 0) bFirst = b;
+        bLast = b;
+      }
+    }
+  }
+  return { bFirst, bLast };
+}
+
+/**
+ * The calendar years `calibrate` computes the likelihood over for this input: the measure of its
+ * work (time and, with a density, the size of the answer grow with it). 0 when the input cannot be
+ * calibrated on this curve (invalid, or beyond it). Costs one pass over the curve's block index.
+ */
+export function calibrationSpan(prepared: PreparedCurve, input: CalibrationInput): number {
+  try {
+    checkInput(input);
+  } catch {
+    return 0;
+  }
+  if (useF14cSpace(input)) return beyondCurve(prepared, input) ? 0 : prepared.length;
+  // beyondCurve's test without its message (this runs for every item of a request).
+  const lim = curveAgeLimits(prepared, input.deltaR ?? 0);
+  const { below, above } = reach(prepared, input);
+  if (input.age + below < lim.min || input.age - above > lim.max) return 0;
+  const mu = input.age - (input.deltaR ?? 0);
+  const extraVar = input.error * input.error + (input.deltaRError ?? 0) ** 2;
+  const { bFirst, bLast } = likelihoodBlocks(prepared, mu, extraVar);
+  if (bFirst < 0) return 0;
+  return Math.min(prepared.length, (bLast + 1) * prepared.blockSize) - bFirst * prepared.blockSize;
+}
+
 export function calibrate(prepared: PreparedCurve, input: CalibrationInput): CalibrationResult {
   checkInput(input);
   const refusal = beyondCurve(prepared, input);
@@ -136,27 +195,9 @@ export function calibrate(prepared: PreparedCurve, input: CalibrationInput): Cal
   const deltaRError = input.deltaRError ?? 0;
   const mu = age - deltaR;
   const extraVar = error * error + deltaRError * deltaRError;
-  const { blockSize, blockMinC, blockMaxC, blockMaxS2, superMinC, superMaxC, superMaxS2, c, s2, length } = prepared;
-  const nBlocks = blockMinC.length;
-  const nSuper = superMinC.length;
-
-  // Squared distances avoid a square root per block.
-  const within = (lo: number, hi: number, maxS2: number) => {
-    const d = mu < lo ? lo - mu : mu > hi ? mu - hi : 0;
-    return d * d <= CUTOFF2 * (extraVar + maxS2);
-  };
-  let bFirst = -1;
-  let bLast = -1;
-  for (let k = 0; k < nSuper; k++) {
-    if (!within(superMinC[k], superMaxC[k], superMaxS2[k])) continue;
-    const bEnd = Math.min(nBlocks, (k + 1) * SUPER_BLOCK);
-    for (let b = k * SUPER_BLOCK; b < bEnd; b++) {
-      if (within(blockMinC[b], blockMaxC[b], blockMaxS2[b])) {
-        if (bFirst < 0) bFirst = b;
-        bLast = b;
-      }
-    }
-  }
+  const { blockSize, blockMinC, blockMaxC, blockMaxS2, c, s2, length } = prepared;
+  const within = withinCutoff(mu, extraVar);
+  const { bFirst, bLast } = likelihoodBlocks(prepared, mu, extraVar);
   if (bFirst < 0) {
     // Only reachable if the curve has gaps in 14C coverage wider than the cutoff.
     throw new CalibrationError(`${fmt(age)} ¹⁴C yr BP matches no part of ${input.curveLabel ?? prepared.name}.`, "beyond-curve");

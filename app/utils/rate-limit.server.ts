@@ -24,6 +24,47 @@ export function hit(key: string, limit: number, windowMs: number, options: { db?
   return { allowed: false, retryAfterS: Math.max(1, Math.ceil((row.windowStart + windowMs - now) / 1000)) };
 }
 
+export type BudgetResult = { allowed: boolean; retryAfterS: number; used: number };
+
+/**
+ * A budget of work per key that refills steadily (a token bucket kept as the amount in use):
+ * `capacity` units at most, `capacity` more every `refillMs`. A request that costs `cost` is
+ * allowed when it fits, and then counted; a refused one is not counted, and `retryAfterS` says
+ * when it would fit. One transaction, so concurrent requests never spend the same units twice.
+ */
+export function spend(
+  key: string,
+  cost: number,
+  capacity: number,
+  refillMs: number,
+  options: { db?: Db; now?: number } = {},
+): BudgetResult {
+  const db = options.db ?? getDb();
+  const now = options.now ?? Date.now();
+  const rate = capacity / refillMs;
+  const run = db.$client.transaction(() => {
+    const row = db.$client.prepare("select window_start as at, count from rate_limits where key = ?").get(key) as
+      { at: number; count: number } | undefined;
+    const used = row ? Math.max(0, row.count - (now - row.at) * rate) : 0;
+    if (used + cost > capacity) {
+      return {
+        allowed: false,
+        retryAfterS: Math.max(1, Math.ceil((used + cost - capacity) / rate / 1000)),
+        used: Math.round(used),
+      };
+    }
+    const after = Math.round(used + cost);
+    db.$client
+      .prepare(
+        `insert into rate_limits (key, window_start, count) values (@key, @now, @after)
+         on conflict(key) do update set window_start = @now, count = @after`,
+      )
+      .run({ key, now, after });
+    return { allowed: true, retryAfterS: 0, used: after };
+  });
+  return run.immediate();
+}
+
 /** Uses up a key's window at once (e.g. a one-time code that has been used). */
 export function exhaust(key: string, options: { db?: Db; now?: number } = {}) {
   const db = options.db ?? getDb();

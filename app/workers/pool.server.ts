@@ -73,6 +73,8 @@ export type RunOptions = {
   timeoutMs?: number;
   /** Called with progress the task reports. */
   onProgress?: (done: number, message?: string) => void;
+  /** Called with each piece of an answer the task sends as it goes (in order). */
+  onPiece?: (piece: string) => void;
 };
 
 /** Runs a task in a worker thread and resolves with its result; errors thrown there are re-thrown as WorkerError. */
@@ -86,10 +88,16 @@ export async function runInWorker<N extends TaskName>(
   const { port1, port2 } = new MessageChannel();
   const controller = new AbortController();
   let timer: NodeJS.Timeout | undefined;
-  port1.on("message", (m: { started?: true; done?: number; message?: string }) => {
+  let ended!: () => void;
+  const portEnded = new Promise<void>((resolve) => (ended = resolve));
+  port1.on("message", (m: { started?: true; done?: number; message?: string; piece?: string; end?: true }) => {
     // The time limit counts from the moment the task starts in its thread, not from the queue or start-up.
-    if (m.started) {
+    if (m.end) {
+      ended();
+    } else if (m.started) {
       if (options.timeoutMs) timer = setTimeout(() => controller.abort(), options.timeoutMs);
+    } else if (m.piece !== undefined) {
+      options.onPiece?.(m.piece);
     } else if (options.onProgress && m.done !== undefined) {
       options.onProgress(m.done, m.message);
     }
@@ -100,6 +108,8 @@ export async function runInWorker<N extends TaskName>(
       { task, dbFile, payload, port: port2 },
       { transferList: [port2], signal: controller.signal },
     );
+    // The answer and the port's messages travel apart: wait for the port's last one.
+    await Promise.race([portEnded, new Promise((resolve) => setTimeout(resolve, 5_000).unref())]);
   } catch (error) {
     if (controller.signal.aborted) {
       throw new TaskStopped(`Stopped after ${Math.round(options.timeoutMs! / 1000)} s.`, "time");

@@ -11,6 +11,8 @@ import type { CommitMode } from "#app/models/submission/uploads/commit.server.ts
 // Each task imports what it needs when it first runs, so a thread loads only its own tasks' modules.
 
 type Progress = (done: number, message?: string) => void;
+/** Sends a piece of the task's answer to the server as soon as it is ready (see RunOptions.onPiece). */
+type Send = (piece: string) => void;
 
 const tasks = {
   /** A background job of a registered kind (models/jobs.server.ts), with progress in the jobs table. */
@@ -34,6 +36,12 @@ const tasks = {
   async submitJsonRows(db: Db, p: { items: unknown[]; userId: number; ip: string | null }) {
     const { submitJsonRows } = await import("#app/models/submission/uploads/commit.server.ts");
     return submitJsonRows(db, p.items, { userId: p.userId }, { ip: p.ip });
+  },
+  /** Calibrates the items of a large request and sends the answer's JSON in pieces; nothing is stored. */
+  async calibrate(db: Db, p: { items: unknown[]; density: boolean }, _progress: Progress, send: Send) {
+    const { calibrationPieces } = await import("#app/models/calibration/calibrate-work.server.ts");
+    for (const piece of calibrationPieces(db, p.items, { density: p.density })) send(piece);
+    return null;
   },
   /** Reads an uploaded spreadsheet (with the reader's limits), validates it and stores it as a batch. */
   async createUpload(db: Db, p: { path: string; fileName: string; userId: number }) {
@@ -74,12 +82,13 @@ function connection(file: string): Db {
 export async function runTask(message: { task: TaskName; dbFile: string | null; payload: unknown; port: MessagePort }) {
   const { task, dbFile, payload, port } = message;
   const progress: Progress = (done, text) => port.postMessage({ done, message: text });
+  const send: Send = (piece) => port.postMessage({ piece });
   // The time limit counts from here, not from the thread's start-up.
   port.postMessage({ started: true });
   try {
     const db = dbFile ? connection(dbFile) : null;
-    const fn = tasks[task] as (db: Db | null, p: unknown, progress: Progress) => unknown;
-    const value = await fn(db, payload, progress);
+    const fn = tasks[task] as (db: Db | null, p: unknown, progress: Progress, send: Send) => unknown;
+    const value = await fn(db, payload, progress, send);
     return { ok: true, value } satisfies TaskOutcome;
   } catch (error) {
     const e = error as Error & { status?: number; problems?: unknown };
@@ -93,6 +102,8 @@ export async function runTask(message: { task: TaskName; dbFile: string | null; 
       },
     } satisfies TaskOutcome;
   } finally {
+    // The last message on the port: the server waits for it, so no piece is still on its way.
+    port.postMessage({ end: true });
     port.close();
   }
 }
