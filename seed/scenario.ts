@@ -10,6 +10,7 @@ import { doseRateFromFields } from "#app/science/dose-rate-fields.ts";
 import type { FullDoseRate } from "#app/science/dose-rate.ts";
 import { f14cFromAge } from "#app/science/radiocarbon.ts";
 import { buildLandIndex, type Bounds, type LandGeometry, type LandIndex } from "./land.ts";
+import { formatCitation } from "#app/utils/citation.ts";
 import { authorList, initials, siteName } from "./names.ts";
 import { deriveSeed, Rng } from "./random.ts";
 import {
@@ -68,7 +69,12 @@ export interface ScenarioLab {
 }
 
 export interface ScenarioPublication {
+  /** The one-line citation, written from the fields below as the registry writes it (formatCitation). */
   citation: string;
+  authors: string;
+  title: string;
+  /** Journal with volume and pages. */
+  journal: string;
   doi: string;
   year: number;
   /** The part of the demo region the paper covers: every site citing it lies there. */
@@ -894,6 +900,9 @@ function makePublications(rng: Rng, n: number): ScenarioPublication[] {
     const year = rng.int(1978, 2024);
     out.push({
       citation: "",
+      authors: "",
+      title: "",
+      journal: "",
       doi: `10.99999/jigs.${year}.${String(i + 1).padStart(4, "0")}`,
       year,
       region: REGIONS[i % REGIONS.length],
@@ -957,7 +966,8 @@ function describePublications(
     const first = rng.int(1, 400);
     const title = `${publicationTitle(p.region, cited)} (synthetic)`;
     const authors = authorList(rng, lead === undefined ? undefined : DEMO_CONTRIBUTORS[lead].surname!);
-    return { ...p, citation: `${authors} (${p.year}) ${title}. ${DEMO_JOURNAL} ${volume}, ${first}–${first + rng.int(8, 30)}.` };
+    const journal = `${DEMO_JOURNAL} ${volume}, ${first}–${first + rng.int(8, 30)}`;
+    return { ...p, authors, title, journal, citation: formatCitation({ authors, year: p.year, title, journal, doi: p.doi }) };
   });
 }
 

@@ -154,7 +154,17 @@ function writeScenario(db: Db, scenario: Scenario) {
     });
     const publicationIds = scenario.publications.map((p) => {
       const existing = db.select({ id: publications.id }).from(publications).where(eq(publications.doi, p.doi)).get();
-      return existing?.id ?? insertPublication(db, { citation: p.citation, doi: p.doi, year: p.year }).id;
+      return (
+        existing?.id ??
+        insertPublication(db, {
+          citation: p.citation,
+          doi: p.doi,
+          year: p.year,
+          authors: p.authors,
+          title: p.title,
+          journal: p.journal,
+        }).id
+      );
     });
 
     // Sites and samples are dated by their oldest determination.

@@ -227,6 +227,9 @@ export default function ApiDocs({ loaderData }: Route.ComponentProps) {
       "dose_rate_gy_per_ka": null, "dose_rate_error_gy_per_ka": null,
       "measurement_year": null, "aliquots": null, "age_model": null,
       "doi": "10.99999/example.1",
+      "publication": {"doi": "10.99999/example.1", "authors": "Example, A., Sample, B.", "year": 2024,
+        "title": "An example publication", "journal": "Example Journal 1, 1–10",
+        "citation": "Example, A., Sample, B. (2024) An example publication. Example Journal 1, 1–10."},
       "created_at": "2026-03-02T10:15:00.000Z", "updated_at": "2026-03-09T16:40:00.000Z",
       "calibration": {
         "curve": "Marine20 (2020), ΔR 150 ± 60",
@@ -239,6 +242,9 @@ export default function ApiDocs({ loaderData }: Route.ComponentProps) {
   ]
 }`}</Code>
         <p>
+          <code>publication</code> is <code>null</code> for an unpublished date; <code>citation</code> is written from the other
+          fields, and a publication stored before citations were asked for has only its DOI (<code>title</code> <code>null</code>,{" "}
+          <code>citation</code> “untitled — doi:…”). <code>doi</code> beside it is kept for older scripts.{" "}
           <code>calibration</code> is <code>null</code> before a determination is calibrated; a “greater than” age or a post-bomb
           sample has a calibration with <code>median_cal_bp</code> <code>null</code> and the reason in <code>error</code>.
           Luminescence ages have <code>"curve": "luminescence (normal)"</code>: a normal density on the calendar scale, no curve.
@@ -292,7 +298,9 @@ export default function ApiDocs({ loaderData }: Route.ComponentProps) {
         <p>
           Submits determinations as a JSON array of rows whose keys are the template's column names (below), with the same checks
           as an upload. Either every row is valid and all are stored as one batch, or nothing is written. At most 10,000 rows and
-          16 MB per request.
+          16 MB per request. A row citing a DOI the registry does not know carries the publication&apos;s citation once in the
+          request (<code>pub_authors</code>, <code>pub_year</code>, <code>pub_title</code>, <code>pub_journal</code>, on any row
+          with that DOI); otherwise it is refused at <code>doi</code>. A paper without a DOI is given by its citation alone.
         </p>
         <Code>{`curl -s -X POST ${base}/api/v1/determinations -H "Authorization: Bearer <token>" \\
   -H 'Content-Type: application/json' -d '[{

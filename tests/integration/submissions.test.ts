@@ -63,6 +63,10 @@ function radiocarbonForm(overrides: Record<string, string> = {}): Record<string,
     pretreatment: "acid–base–acid",
     curve: "",
     doi: "10.99999/thawline.form.1",
+    pub_authors: "Tester, A.",
+    pub_year: "2021",
+    pub_title: "An invented paper for the form tests",
+    pub_journal: "Journal of Imaginary Glacial Studies 61, 10–19",
     ...overrides,
   };
 }

@@ -5,6 +5,14 @@ import { COLUMN_NAMES } from "#app/utils/determination-input/columns.ts";
 
 export type Cells = Record<string, string | number | Date | { formula: string; result?: number } | null | undefined>;
 
+/** The invented paper the test rows cite: a DOI the registry may not know yet needs its citation. */
+export const TEST_CITATION = {
+  pub_authors: "Tester, A., Fixture, B.",
+  pub_year: 2021,
+  pub_title: "Invented radiocarbon and luminescence ages for tests",
+  pub_journal: "Journal of Imaginary Glacial Studies 61, 1–9",
+} as const;
+
 /** `n` valid rows: radiocarbon (terrestrial and marine) and luminescence, up to 3 determinations per sample. */
 export function uploadRows(n: number, options: { prefix?: string; seed?: number } = {}): Cells[] {
   const prefix = options.prefix ?? "ZZQ";
@@ -30,6 +38,7 @@ export function uploadRows(n: number, options: { prefix?: string; seed?: number 
       lab_name: "Testing Laboratory North",
       constraint_kind: "minimum",
       doi: "10.99999/thawline.test.1",
+      ...TEST_CITATION,
     };
     const kind = i % 10;
     if (kind < 4) {

@@ -56,7 +56,13 @@ export function determinationDetail(db: Db, id: number) {
       sample: samples,
       site: sites,
       lab: { id: labs.id, name: labs.name, codePrefix: labs.codePrefix, city: labs.city },
-      publication: { id: publications.id, citation: publications.citation, doi: publications.doi, year: publications.year },
+      publication: {
+        id: publications.id,
+        citation: publications.citation,
+        doi: publications.doi,
+        year: publications.year,
+        title: publications.title,
+      },
       contributor: { id: users.id, name: users.name },
       upload: { publicId: uploadBatches.publicId, fileName: uploadBatches.fileName },
     })

@@ -70,6 +70,15 @@ export type ApiDetermination = {
   aliquots: number | null;
   age_model: string | null;
   doi: string | null;
+  /** The publication reporting the date; its citation is one line written from the fields (authors, year, title, journal). */
+  publication: {
+    doi: string | null;
+    authors: string | null;
+    year: number | null;
+    title: string | null;
+    journal: string | null;
+    citation: string;
+  } | null;
   created_at: string;
   updated_at: string;
   calibration: {
@@ -104,8 +113,14 @@ function pageIds(db: Db, filters: ExploreFilters, perPage: number): { ids: numbe
 /** A row as the query returns it: the API's own fields as they are, plus the ones toApi reshapes. */
 type Joined = Omit<
   ApiDetermination,
-  "lab" | "site" | "age_normalised" | "greater_than" | "created_at" | "updated_at" | "calibration"
+  "lab" | "site" | "age_normalised" | "greater_than" | "created_at" | "updated_at" | "calibration" | "publication"
 > & {
+  pub_id: number | null;
+  pub_authors: string | null;
+  pub_year: number | null;
+  pub_title: string | null;
+  pub_journal: string | null;
+  pub_citation: string | null;
   lab_id: number;
   lab_name: string;
   site_id: number;
@@ -173,7 +188,9 @@ function apiRows(db: Db, ids: number[]): ApiDetermination[] {
                d.age_normalised, d.is_limit, d.pretreatment, d.curve_name as curve,
                d.delta_r_yr as delta_r, d.delta_r_error_yr as delta_r_error, d.delta_r_curve,
                d.signal, d.mineral, d.de_gy, d.de_error_gy, d.dose_rate_gy_per_ka, d.dose_rate_error_gy_per_ka,
-               d.measurement_year, d.aliquots, d.age_model, p.doi, d.created_at, d.updated_at,
+               d.measurement_year, d.aliquots, d.age_model, p.id as pub_id, p.doi, p.authors as pub_authors,
+               p.year as pub_year, p.title as pub_title, p.journal as pub_journal, p.citation as pub_citation,
+               d.created_at, d.updated_at,
                c.curve_label as cal_label, c.median_cal_bp, c.hpd68, c.hpd95, c.error as cal_error
              from determinations d
              join samples s on s.id = d.sample_id
@@ -229,6 +246,17 @@ function toApi(r: Joined): ApiDetermination {
     aliquots: r.aliquots,
     age_model: r.age_model,
     doi: r.doi,
+    publication:
+      r.pub_id == null
+        ? null
+        : {
+            doi: r.doi,
+            authors: r.pub_authors,
+            year: r.pub_year,
+            title: r.pub_title,
+            journal: r.pub_journal,
+            citation: r.pub_citation!,
+          },
     created_at: new Date(r.created_at).toISOString(),
     updated_at: new Date(r.updated_at).toISOString(),
     calibration:

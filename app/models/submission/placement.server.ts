@@ -5,13 +5,14 @@
 
 import { and, eq, sql } from "drizzle-orm";
 import type { Db } from "#app/db/client.server.ts";
-import { labs, publications, samples, sites } from "#app/db/schema.ts";
+import { labs, samples, sites } from "#app/db/schema.ts";
 import {
   sampleValues,
   siteValues,
   type DeterminationRow as StoredDetermination,
 } from "#app/models/submission/determinations.server.ts";
 import { type LabRef, type LabTarget, type NewLab, planLab, registerLab } from "#app/models/submission/placement-labs.server.ts";
+import { PublicationPlanner, type PublicationTarget } from "#app/models/submission/placement-publications.server.ts";
 import type { DeterminationRow, RowIssue } from "#app/utils/determination-input/row.ts";
 
 type SiteRef = { id: number; name: string; latitude: number; longitude: number };
@@ -21,7 +22,13 @@ type NewSample = { site: SiteTarget; fieldCode: string; material: string; firstR
 
 export type SiteTarget = { site: SiteRef } | { newSite: NewSite };
 export type SampleTarget = { sample: SampleRow } | { updateInPlace: SampleRow } | { newSample: NewSample };
-export type RowPlan = { site: SiteTarget; sample: SampleTarget; lab: LabTarget; doi: string | null; row: DeterminationRow };
+export type RowPlan = {
+  site: SiteTarget;
+  sample: SampleTarget;
+  lab: LabTarget;
+  publication: PublicationTarget;
+  row: DeterminationRow;
+};
 export type PlanResult = { plan?: RowPlan; issues: RowIssue[]; warnings: RowIssue[] };
 
 export type PlacementOptions = {
@@ -32,6 +39,8 @@ export type PlacementOptions = {
   mayRegisterLabs: boolean;
   /** The determination being edited (form only): its own sample may change in place. */
   editing?: StoredDetermination | null;
+  /** The one-record form: messages speak of the record, not of a file's other rows. */
+  oneRecord?: boolean;
 };
 
 const SITE_MATCH_M = 100;
@@ -67,8 +76,7 @@ export class Placement {
   private readonly newSiteKeys = new Map<NewSite, number>();
   private readonly siteLookup;
   private readonly sampleLookup;
-  private readonly publicationLookup;
-  private readonly publicationIds = new Map<string, number>();
+  private readonly publications: PublicationPlanner;
 
   constructor(
     private readonly db: Db,
@@ -85,7 +93,7 @@ export class Placement {
       .from(samples)
       .where(and(eq(samples.siteId, sql.placeholder("siteId")), eq(samples.fieldCode, sql.placeholder("code"))))
       .prepare();
-    this.publicationLookup = db.$client.prepare("select id from publications where lower(doi) = lower(?)").pluck();
+    this.publications = new PublicationPlanner(db, options.oneRecord ?? false);
   }
 
   /**
@@ -99,10 +107,16 @@ export class Placement {
     const lab = row.lab_code !== undefined || row.lab_name !== undefined ? planLab(this, row, issues, warnings) : null;
     const site = this.planSite(row, where.siteId, issues);
     const sample = site ? this.planSample(row, site, where.n, issues) : null;
+    const publication = this.publications.plan(row, where.n, issues, warnings);
     if (!lab || !site || !sample || issues.length > 0) return { issues, warnings };
     const full = row as DeterminationRow;
     this.remember(full, site, sample);
-    return { plan: { site, sample, lab, doi: full.doi ?? null, row: full }, issues, warnings };
+    return { plan: { site, sample, lab, publication, row: full }, issues, warnings };
+  }
+
+  /** A file's rows, read before planning, so a DOI's citation may come on any row of the file. */
+  offerCitations(rows: Iterable<{ row: Partial<DeterminationRow>; n?: number }>) {
+    this.publications.offer(rows);
   }
 
   private planSite(row: Partial<DeterminationRow>, siteId: number | null | undefined, issues: RowIssue[]): SiteTarget | null {
@@ -260,19 +274,7 @@ export class Placement {
       }
       sampleId = s.id;
     }
-    return { labId, siteId, createdSite, sampleId, createdSample, publicationId: this.publicationFor(plan.doi) };
-  }
-
-  private publicationFor(doi: string | null): number | null {
-    if (!doi) return null;
-    const key = doi.toLowerCase();
-    let id = this.publicationIds.get(key) ?? (this.publicationLookup.get(doi) as number | undefined);
-    id ??= this.db
-      .insert(publications)
-      .values({ citation: `DOI ${doi}`, doi })
-      .returning({ id: publications.id })
-      .get().id;
-    this.publicationIds.set(key, id);
-    return id;
+    const publicationId = this.publications.place(plan.publication);
+    return { labId, siteId, createdSite, sampleId, createdSample, publicationId };
   }
 }

@@ -1,3 +1,4 @@
+import { PublicationCitation } from "#app/components/publication-citation.tsx";
 import { data, Link } from "react-router";
 import type { Route } from "./+types/determination";
 import { clientAddress, requireRole, requireUser } from "#app/auth/session.server.ts";
@@ -143,22 +144,7 @@ export default function DeterminationPage({ loaderData, actionData }: Route.Comp
             <DetailList
               items={[
                 ["Lab", `${detail.lab.name} (${detail.lab.codePrefix})${detail.lab.city ? `, ${detail.lab.city}` : ""}`],
-                [
-                  "Publication",
-                  detail.publication ? (
-                    <span>
-                      {detail.publication.citation}
-                      {detail.publication.doi ? (
-                        <>
-                          {" "}
-                          <a href={`https://doi.org/${detail.publication.doi}`} rel="noopener noreferrer">
-                            doi:{detail.publication.doi}
-                          </a>
-                        </>
-                      ) : null}
-                    </span>
-                  ) : null,
-                ],
+                ["Publication", detail.publication ? <PublicationCitation publication={detail.publication} /> : null],
                 ["Contributor", detail.contributor?.name],
                 ["Upload", detail.upload ? `${detail.upload.fileName}` : null],
                 ["Added", formatTime(d.createdAt)],

@@ -13,6 +13,7 @@ import { COLUMNS, EXAMPLE_DOI, EXAMPLE_LAB_CODES } from "#app/utils/determinatio
 import type { DeterminationRow, Region, RowContext, RowIssue } from "#app/utils/determination-input/row.ts";
 import { nearest } from "#app/utils/nearest.ts";
 import { checkDoseRateInputs, checkOffsets } from "#app/utils/determination-input/check-science.ts";
+import { checkPublication } from "#app/utils/determination-input/check-citation.ts";
 
 function inRegion(region: Region, lat: number, lon: number): boolean {
   return lat >= region.south && lat <= region.north && lon >= region.west && lon <= region.east;
@@ -75,7 +76,7 @@ export const LUMINESCENCE_ONLY_COLUMNS = [
   "age_model",
 ] as const;
 
-const TEXT_MAX: Record<string, number> = { notes: 2000, context: 1000 };
+const TEXT_MAX: Record<string, number> = { notes: 2000, context: 1000, pub_authors: 1000, pub_title: 500, pub_journal: 300 };
 
 /** Text columns that identify something: read with the invisible-character check and normalised. */
 export const IDENTIFIER_COLUMNS: ReadonlySet<string> = new Set(["site_name", "sample_code", "lab_code", "lab_name"]);
@@ -259,12 +260,7 @@ function checkRanges(row: RowState) {
   if (year !== undefined && (year < 1950 || year > thisYear)) {
     row.add("measurement_year", `Year of measurement ${year} is not between 1950 and ${thisYear}.`);
   }
-  const given = row.text("doi");
-  if (given !== undefined) {
-    const doi = given.replace(/^(https?:\/\/)?(dx\.)?doi\.org\//i, "").replace(/^doi:\s*/i, "");
-    if (/^10\.\d{4,9}\/\S+$/.test(doi)) row.out.doi = doi;
-    else row.add("doi", `"${truncate(given)}" is not a DOI (they look like 10.99999/example.1).`);
-  }
+  checkPublication(row);
 }
 
 function checkRadiocarbon(row: RowState) {

@@ -619,8 +619,44 @@ export const COLUMNS: readonly ColumnSpec[] = [
     kind: "text",
     unit: "",
     group: "provenance",
-    help: "DOI of the publication reporting the date, e.g. 10.99999/example.1.",
+    help: "DOI of the publication reporting the date, e.g. 10.99999/example.1. A DOI the registry does not know yet needs the publication's citation (the four columns below) once: on this row or on another row of the same file with the same DOI.",
     synonyms: ["publication doi", "reference doi"],
+  },
+  {
+    name: "pub_authors",
+    label: "Authors",
+    kind: "text",
+    unit: "",
+    group: "provenance",
+    help: "Authors of the publication as it lists them, e.g. Frostvik, A., Kettle, B. Part of the citation: give authors, year, title and journal together.",
+    synonyms: ["authors", "author", "publication authors", "reference authors"],
+  },
+  {
+    name: "pub_year",
+    label: "Year published",
+    kind: "integer",
+    unit: "year AD",
+    group: "provenance",
+    help: "Year the publication appeared. Part of the citation.",
+    synonyms: ["publication year", "year published", "reference year"],
+  },
+  {
+    name: "pub_title",
+    label: "Title of the publication",
+    kind: "text",
+    unit: "",
+    group: "provenance",
+    help: "Title of the paper, report or thesis. Part of the citation.",
+    synonyms: ["title", "publication title", "paper title", "reference title"],
+  },
+  {
+    name: "pub_journal",
+    label: "Journal",
+    kind: "text",
+    unit: "",
+    group: "provenance",
+    help: "Journal (or report series, book, thesis), with volume and pages if you like, e.g. Journal of Imaginary Glacial Studies 41, 12–30. Part of the citation.",
+    synonyms: ["journal", "publication journal", "journal volume pages"],
   },
   {
     name: "notes",
@@ -643,6 +679,12 @@ export function columnSpec(name: string): ColumnSpec | undefined {
 /** Lab codes and DOI of the template's example rows: a row that still carries one is refused (checkRow). */
 export const EXAMPLE_LAB_CODES = ["XMPL-0001", "XMPL-L001"] as const;
 export const EXAMPLE_DOI = "10.99999/example.1";
+const EXAMPLE_CITATION = {
+  pub_authors: "Example, A., Sample, B.",
+  pub_year: 2024,
+  pub_title: "An example publication (replace with yours)",
+  pub_journal: "Example Journal 1, 1–10",
+};
 const EXAMPLE_NOTE = "EXAMPLE ROW: replace it with your own measurement or delete it; it is refused if uploaded.";
 
 /** Example rows for the template: one radiocarbon, one luminescence (invented values), each marked in its notes. */
@@ -674,6 +716,7 @@ export const EXAMPLE_ROWS: Record<string, string | number>[] = [
     delta_r_error: 60,
     delta_r_curve: "marine20",
     doi: EXAMPLE_DOI,
+    ...EXAMPLE_CITATION,
     notes: EXAMPLE_NOTE,
   },
   {
@@ -715,6 +758,7 @@ export const EXAMPLE_ROWS: Record<string, string | number>[] = [
     age_model: "central",
     measurement_year: 2023,
     doi: EXAMPLE_DOI,
+    ...EXAMPLE_CITATION,
     notes: EXAMPLE_NOTE,
   },
 ];

@@ -75,6 +75,11 @@ export type DeterminationRow = {
   measurement_year?: number;
   /** Bare DOI (a doi.org address is reduced to it). */
   doi?: string;
+  /** The publication's citation: all four or none (checkCitation). */
+  pub_authors?: string;
+  pub_year?: number;
+  pub_title?: string;
+  pub_journal?: string;
   notes?: string;
 };
 

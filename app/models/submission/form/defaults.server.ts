@@ -9,7 +9,16 @@ import type { DeterminationRow as StoredDetermination } from "#app/models/submis
 /** The form's fields (template column names) as strings, from a stored determination. */
 export function formDefaults(db: Db, det: StoredDetermination): Record<string, string> {
   const place = db
-    .select({ sample: samples, site: sites, labName: labs.name, doi: publications.doi })
+    .select({
+      sample: samples,
+      site: sites,
+      labName: labs.name,
+      doi: publications.doi,
+      pubAuthors: publications.authors,
+      pubYear: publications.year,
+      pubTitle: publications.title,
+      pubJournal: publications.journal,
+    })
     .from(samples)
     .innerJoin(sites, eq(sites.id, samples.siteId))
     .innerJoin(labs, eq(labs.id, det.labId))
@@ -87,6 +96,11 @@ export function formDefaults(db: Db, det: StoredDetermination): Record<string, s
     aliquots: s(det.aliquots),
     age_model: s(det.ageModel),
     doi: s(place.doi),
+    // A stored citation comes back whole (a publication without a DOI is found again by it).
+    pub_authors: s(place.pubTitle === null ? null : place.pubAuthors),
+    pub_year: s(place.pubTitle === null ? null : place.pubYear),
+    pub_title: s(place.pubTitle),
+    pub_journal: s(place.pubTitle === null ? null : place.pubJournal),
     notes: s(det.notes),
   };
 }

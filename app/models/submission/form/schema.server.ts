@@ -86,7 +86,7 @@ function calendarProblem(db: Db, row: DeterminationRow): RowIssue | null {
 
 /** Where the form's row belongs, planned by the one placement rule the upload and the API use too. */
 export function planFormRow(db: Db, value: SubmissionValue, editing: StoredDetermination | null, userId: number) {
-  const placement = new Placement(db, { userId, userLabId: null, mayRegisterLabs: false, editing });
+  const placement = new Placement(db, { userId, userLabId: null, mayRegisterLabs: false, editing, oneRecord: true });
   return { placement, ...placement.planRow(value.row, { siteId: value.siteChoice === "existing" ? value.siteId : null }) };
 }
 

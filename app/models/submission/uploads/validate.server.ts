@@ -149,8 +149,7 @@ export function validateRows(
   const placement = new Placement(db, { userId: options.userId, userLabId: options.userLabId ?? null, mayRegisterLabs: true });
   const mapped = new Set(index.map(([, c]) => c));
   const notices = REQUIRED_COLUMNS.filter((c) => !mapped.has(c)).map((c) => `No column is mapped to ${c}; every row needs it.`);
-  const seenCodes = new Map<string, number>();
-  const results: RowResult[] = [];
+  const checked: { n: number; check: ReturnType<typeof checkRow>; issues: RowIssue[] }[] = [];
   for (const r of sheet.rows) {
     const raw: Record<string, unknown> = {};
     const issues: RowIssue[] = [];
@@ -163,18 +162,25 @@ export function validateRows(
     if (Object.values(raw).every(isBlankCell) && issues.length === 0) continue;
     const check = checkRow(raw, registry.ctx);
     issues.push(...check.issues.filter((i) => !issues.some((f) => f.column === i.column)));
+    checked.push({ n: r.n, check, issues });
+  }
+  // A DOI's citation may be given on any one of the rows that cite it.
+  placement.offerCitations(checked.map(({ n, check }) => ({ n, row: check.ok ? check.value : check.partial })));
+  const seenCodes = new Map<string, number>();
+  const results: RowResult[] = [];
+  for (const { n, check, issues } of checked) {
     const code = (check.ok ? check.value : check.partial).lab_code;
     if (code) {
       const first = seenCodes.get(identifierKey(code));
       if (first !== undefined)
         issues.push({ column: "lab_code", message: `Lab code ${code} also appears in row ${first} of this file.` });
-      else seenCodes.set(identifierKey(code), r.n);
+      else seenCodes.set(identifierKey(code), n);
     }
-    const placed = placement.planRow(check.ok ? check.value : soundPart(check.partial, issues), { n: r.n });
+    const placed = placement.planRow(check.ok ? check.value : soundPart(check.partial, issues), { n });
     issues.push(...placed.issues);
     const warnings = [...check.warnings, ...placed.warnings];
     const value = check.ok && issues.length === 0 && placed.plan ? check.value : undefined;
-    results.push({ n: r.n, value, plan: value ? placed.plan : undefined, issues, warnings });
+    results.push({ n, value, plan: value ? placed.plan : undefined, issues, warnings });
   }
   const errors = results.flatMap((r) => r.issues.map((i) => ({ row: r.n, column: i.column, message: i.message })));
   const warnings = results.flatMap((r) => r.warnings.map((i) => ({ row: r.n, column: i.column, message: i.message })));
