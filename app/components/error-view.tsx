@@ -6,9 +6,11 @@ export function ErrorView({ error }: { error: unknown }) {
   let detail = "The page could not be shown. Try again, or go back to where you were.";
   let stack: string | undefined;
   if (isRouteErrorResponse(error)) {
+    // React Router's own answers (no route matches the address) carry a message for developers.
+    const internal = (error as { internal?: boolean }).internal === true;
     if (error.status === 404) {
       title = "Not found";
-      detail = typeof error.data === "string" && error.data ? error.data : "There is nothing at this address.";
+      detail = !internal && typeof error.data === "string" && error.data ? error.data : "There is nothing at this address.";
     } else if (error.status === 403) {
       title = "Not allowed";
       detail = typeof error.data === "string" && error.data ? error.data : "Your roles do not give access to this page.";
