@@ -3,6 +3,7 @@ import type { Db } from "#app/db/client.server.ts";
 import { selectionCount } from "#app/models/registry/constraints.server.ts";
 import { selectConstraints, selectionResponse } from "#app/models/releases/selection-download.server.ts";
 import { publishRelease } from "#app/models/releases/releases.server.ts";
+import { clearDensityTexts, densityTextHeld } from "#app/models/releases/density-text.server.ts";
 import { parseConstraintFilter } from "#app/utils/constraint-filter.ts";
 
 import { median, type BenchSection, type Report } from "./support.ts";
@@ -46,12 +47,26 @@ export async function benchReleases(db: Db, userId: number, report: Report, medi
     `${median(csv.map((r) => r.ms)).toFixed(0)} ms`,
     "≤ 200 ms",
   );
-  const dense: { ms: number; cpu: number; bytes: number }[] = [];
-  for (let i = 0; i < 3; i++) dense.push(await timeDownload(db, "json", true));
+  // Cold: nothing held as text (the first such download after the server starts); warm: every
+  // density already held by its hash (density-text.server.ts), as for any later download.
+  const cold: { ms: number; cpu: number; bytes: number }[] = [];
+  for (let i = 0; i < 3; i++) {
+    clearDensityTexts();
+    cold.push(await timeDownload(db, "json", true));
+  }
+  const warm: { ms: number; cpu: number; bytes: number }[] = [];
+  for (let i = 0; i < 3; i++) warm.push(await timeDownload(db, "json", true));
+  const mb = (cold[0]!.bytes / 1e6).toFixed(0);
   report(
     "constraints",
-    `JSON with densities, full demo (${(dense[0]!.bytes / 1e6).toFixed(0)} MB), median of 3 (${cpuNote(dense, median)})`,
-    `${median(dense.map((r) => r.ms)).toFixed(0)} ms`,
+    `JSON with densities, full demo (${mb} MB), first download, median of 3 (${cpuNote(cold, median)})`,
+    `${median(cold.map((r) => r.ms)).toFixed(0)} ms`,
+    "≤ 1 s",
+  );
+  report(
+    "constraints",
+    `JSON with densities, full demo, densities held as text (${(densityTextHeld().bytes / 1e6).toFixed(0)} MB), median of 3 (${cpuNote(warm, median)})`,
+    `${median(warm.map((r) => r.ms)).toFixed(0)} ms`,
     "≤ 1 s",
   );
   const f = filter("bbox=-70,56,-62,60&from_cal_bp=9000&to_cal_bp=11000");

@@ -18,7 +18,10 @@ export function csvLine(cells: readonly CsvCell[]): string {
   let line = "";
   for (let i = 0; i < cells.length; i++) {
     if (i > 0) line += ",";
-    line += quote(safeCell(cells[i]));
+    const cell = cells[i];
+    // Numbers and empty cells need neither the formula guard nor quotes (what safeCell gives them).
+    if (typeof cell === "number") line += Number.isFinite(cell) ? String(cell) : "";
+    else if (cell != null) line += quote(safeCell(cell));
   }
   return line + "\r\n";
 }

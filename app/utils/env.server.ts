@@ -48,6 +48,8 @@ const schema = z.object({
     .int()
     .positive()
     .default(8 * 1024 * 1024),
+  /** Memory for densities already written as text, MB (downloads with densities; 0 keeps none). */
+  DENSITY_TEXT_CACHE_MB: z.coerce.number().int().min(0).default(256),
   /** "south,north,west,east" in decimal degrees: where the sites lie, for the swapped-coordinates hint. */
   REGION_OF_INTEREST: z
     .string()

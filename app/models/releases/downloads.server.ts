@@ -5,7 +5,6 @@ import type { Db } from "#app/db/client.server.ts";
 import type { ConstraintItem, SelectedRow } from "#app/models/releases/selection.server.ts";
 import { csvStream, type CsvCell } from "#app/utils/csv-stream.ts";
 import { geojsonStream } from "#app/utils/geojson-stream.ts";
-import { probabilityArrayBytes } from "#app/utils/probability-text.ts";
 import { textStream } from "#app/utils/text-stream.ts";
 
 export const DOWNLOAD_FORMATS = ["json", "csv", "geojson", "metadata"] as const;
@@ -47,12 +46,38 @@ export const CAUTIONS = [
   "For research use; follow your field's reporting conventions.",
 ];
 
-/** Curves and publications used by a selection, each with how many items use it. */
+/** Determinations that share a curve (curveId) or, without one, a method (label), counted. */
+export type CurveGroup = { id: number | null; label: string; count: number };
+
+/** The curves of some groups, named and cited from the curves table, most used first. */
+export function curvesOf(db: Db, groups: Iterable<CurveGroup>): CurveUse[] {
+  const curveRows = db.$client.prepare("select id, display_name as name, version, citation, doi from curves").all() as {
+    id: number;
+    name: string;
+    version: string;
+    citation: string;
+    doi: string | null;
+  }[];
+  const byId = new Map(curveRows.map((c) => [c.id, c]));
+  const curves: CurveUse[] = [...groups].map((c) => {
+    const row = c.id == null ? undefined : byId.get(c.id);
+    return row
+      ? { curve: row.name, version: row.version, citation: row.citation, doi: row.doi, count: c.count }
+      : { curve: `${c.label} (normal density, no curve)`, version: null, citation: null, doi: null, count: c.count };
+  });
+  return curves.sort((a, b) => b.count - a.count || a.curve.localeCompare(b.curve));
+}
+
+/** Publications in the order they are listed: by citation. */
+export const sortCitations = (citations: Iterable<CitationUse>): CitationUse[] =>
+  [...citations].sort((a, b) => a.citation.localeCompare(b.citation));
+
+/** Curves and publications used by some items, each with how many items use it (groups in order of first use). */
 export function usageOf(
   db: Db,
   rows: readonly Pick<SelectedRow, "item" | "curveId">[],
 ): { curves: CurveUse[]; citations: CitationUse[] } {
-  const curveCounts = new Map<string, { id: number | null; label: string; count: number }>();
+  const curveCounts = new Map<string, CurveGroup>();
   const pubCounts = new Map<string, CitationUse>();
   for (const { item, curveId } of rows) {
     const key = curveId == null ? `label:${item.method}` : `id:${curveId}`;
@@ -66,23 +91,7 @@ export function usageOf(
       pubCounts.set(pk, p);
     }
   }
-  const curveRows = db.$client.prepare("select id, display_name as name, version, citation, doi from curves").all() as {
-    id: number;
-    name: string;
-    version: string;
-    citation: string;
-    doi: string | null;
-  }[];
-  const byId = new Map(curveRows.map((c) => [c.id, c]));
-  const curves: CurveUse[] = [...curveCounts.values()].map((c) => {
-    const row = c.id == null ? undefined : byId.get(c.id);
-    return row
-      ? { curve: row.name, version: row.version, citation: row.citation, doi: row.doi, count: c.count }
-      : { curve: `${c.label} (normal density, no curve)`, version: null, citation: null, doi: null, count: c.count };
-  });
-  curves.sort((a, b) => b.count - a.count || a.curve.localeCompare(b.curve));
-  const citations = [...pubCounts.values()].sort((a, b) => a.citation.localeCompare(b.citation));
-  return { curves, citations };
+  return { curves: curvesOf(db, curveCounts.values()), citations: sortCitations(pubCounts.values()) };
 }
 
 const rangesText = (ranges: ConstraintItem["hpd95"]) => ranges.map((r) => `${r.from}–${r.to} (${r.p.toFixed(3)})`).join("; ");
@@ -155,7 +164,8 @@ export function geojsonDownload(meta: DownloadMetadata, items: Iterable<Constrai
   return geojsonStream(meta, points());
 }
 
-export type DensityOut = { start: number; values: Float32Array };
+/** A density ready to write: its first year and its probabilities already as JSON text (`[p0,p1,…]`). */
+export type DensityOut = { start: number; text: Uint8Array };
 
 /**
  * `{...metadata, "constraints": [...]}` written item by item. With densities, each item gets
@@ -177,10 +187,10 @@ export function jsonDownload(
         yield lead + text;
         continue;
       }
-      // Probabilities to 6 significant digits (Float32 holds about seven), written as bytes: a full
-      // download holds millions of them.
+      // Probabilities to 6 significant digits (Float32 holds about seven), already written as bytes
+      // (density-text.server.ts): a full download holds millions of them.
       yield `${lead}${text.slice(0, -1)},"density":{"start_cal_bp":${density.start},"step":1,"p":`;
-      yield probabilityArrayBytes(density.values);
+      yield density.text;
       yield "}}";
     }
     yield "\n]}\n";

@@ -6,7 +6,9 @@
 import { createHash } from "node:crypto";
 import type { Db } from "#app/db/client.server.ts";
 import { CHECKSUM_RULE, releaseChecksum, roundForFreezing } from "#app/models/releases/canonical.server.ts";
-import { usageOf, type CurveUse } from "#app/models/releases/downloads.server.ts";
+import { decodeDensity } from "#app/models/calibration/calibrations.server.ts";
+import { densityText, heldDensityText } from "#app/models/releases/density-text.server.ts";
+import { usageOf, type CurveUse, type DensityOut } from "#app/models/releases/downloads.server.ts";
 import { selectionIds } from "#app/models/registry/constraints.server.ts";
 import { densitiesFor, selectionItems, type ConstraintItem, type SelectedRow } from "#app/models/releases/selection.server.ts";
 import { filterRecord, type ConstraintFilter } from "#app/utils/constraint-filter.ts";
@@ -237,24 +239,48 @@ export const RELEASE_DENSITY_SQL = {
   join: "left join calibrations rc on rc.id = ri.calibration_id",
 };
 
-/** The frozen densities of a release's items, a few hundred at a time, in id order. */
-export function* releaseItemsWithDensities(db: Db, releaseId: number, batch = 500) {
-  const stmt = db.$client.prepare(
-    `select ri.determination_id as id, ri.frozen, ${RELEASE_DENSITY_SQL.start} as start, ${RELEASE_DENSITY_SQL.density} as blob
+/**
+ * A release's frozen items with their densities as text, a few hundred at a time, in id order. A
+ * density already held as text (by the SHA-256 its density_ref names) is not read again.
+ */
+export function* releaseItemsWithDensities(
+  db: Db,
+  releaseId: number,
+  batch = 500,
+): Generator<{ item: FrozenItem; density: DensityOut | null }> {
+  const sqlite = db.$client;
+  const heads = sqlite.prepare(
+    `select ri.determination_id as id, ri.frozen, ${RELEASE_DENSITY_SQL.start} as start
      from release_items ri ${RELEASE_DENSITY_SQL.join}
      where ri.release_id = ? and ri.determination_id > ? order by ri.determination_id limit ?`,
   );
+  const blobs = (n: number) =>
+    sqlite.prepare(
+      `select ri.determination_id as id, ${RELEASE_DENSITY_SQL.density} as blob
+       from release_items ri ${RELEASE_DENSITY_SQL.join}
+       where ri.release_id = ? and ri.determination_id in (${Array.from({ length: n }, () => "?").join(",")})`,
+    );
   let after = -1;
   for (;;) {
-    const rows = stmt.all(releaseId, after, batch) as { id: number; frozen: string; start: number | null; blob: Buffer | null }[];
+    const rows = heads.all(releaseId, after, batch) as { id: number; frozen: string; start: number | null }[];
     if (rows.length === 0) return;
-    for (const r of rows) {
-      const copy = r.blob ? new Uint8Array(r.blob.byteLength) : null;
-      if (copy && r.blob) copy.set(r.blob);
-      yield {
-        item: JSON.parse(r.frozen) as FrozenItem,
-        density: copy && r.start != null ? { start: r.start, values: new Float32Array(copy.buffer) } : null,
-      };
+    const items = rows.map((r) => JSON.parse(r.frozen) as FrozenItem);
+    const texts = items.map((item) => heldDensityText(item.density_ref?.sha256));
+    const missing = rows.filter((r, k) => !texts[k] && r.start != null).map((r) => r.id);
+    const read = new Map(
+      missing.length === 0
+        ? []
+        : (blobs(missing.length).all(releaseId, ...missing) as { id: number; blob: Buffer | null }[]).map((b) => [b.id, b.blob]),
+    );
+    for (let k = 0; k < rows.length; k++) {
+      const { id, start } = rows[k]!;
+      const item = items[k]!;
+      const blob = read.get(id);
+      const text =
+        start == null
+          ? undefined
+          : (texts[k] ?? (blob ? densityText(item.density_ref?.sha256, decodeDensity(blob, start).values) : undefined));
+      yield { item, density: text && start != null ? { start, text } : null };
     }
     after = rows[rows.length - 1]!.id;
   }

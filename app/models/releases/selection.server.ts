@@ -1,6 +1,7 @@
 // Each selected determination as a constraint item: the shape of the API, the downloads and a
 // release's frozen items. Which determinations a filter selects is the registry's
 // (models/registry/constraints.server.ts); rows are read in chunks, no per-row queries.
+import type { Statement } from "better-sqlite3";
 import type { Db } from "#app/db/client.server.ts";
 import type { HpdRange } from "#app/db/schema.ts";
 import { CURRENT_CALIBRATION_JOIN } from "#app/models/registry/conditions.server.ts";
@@ -96,7 +97,44 @@ type RowTuple = [
 
 const WORST: Record<string, number> = { pass: 0, note: 1, warning: 2, conflict: 3 };
 
-function toItem(r: RowTuple, flags: string | undefined, unsorted: CheckSummary[] | undefined): ConstraintItem {
+/** A determination's checks in the items' order (by check, the worst first) and the worst severity. */
+type Checks = { checks: CheckSummary[]; worst: string | null };
+const NO_CHECKS: Checks = Object.freeze({ checks: Object.freeze([]) as unknown as CheckSummary[], worst: null });
+
+/**
+ * Reads the grouped checks text ("check<TAB>severity" lines). Few combinations recur across a
+ * whole registry, so each distinct text is read once per call (`seen`) and its frozen result shared.
+ */
+function checksOf(text: string | undefined, seen: Map<string, Checks>): Checks {
+  if (!text) return NO_CHECKS;
+  const known = seen.get(text);
+  if (known) return known;
+  const checks = text
+    .split("\n")
+    .map((line) => {
+      const tab = line.indexOf("\t");
+      return Object.freeze({ check: line.slice(0, tab), severity: line.slice(tab + 1) });
+    })
+    .sort((a, b) => (a.check === b.check ? WORST[b.severity]! - WORST[a.severity]! : a.check < b.check ? -1 : 1));
+  let worst: string | null = null;
+  for (const c of checks) if (worst === null || WORST[c.severity]! > WORST[worst]!) worst = c.severity;
+  const read: Checks = Object.freeze({ checks: Object.freeze(checks) as CheckSummary[], worst });
+  seen.set(text, read);
+  return read;
+}
+
+/** The latest review's flags, sorted; shared per distinct text like the checks. */
+function flagsOf(text: string | undefined, seen: Map<string, string[]>): string[] {
+  if (!text) return [];
+  let flags = seen.get(text);
+  if (!flags) {
+    flags = Object.freeze((JSON.parse(text) as string[]).sort()) as string[];
+    seen.set(text, flags);
+  }
+  return flags;
+}
+
+function toItem(r: RowTuple, flags: string[], { checks, worst }: Checks): ConstraintItem {
   const [
     id,
     lab_code,
@@ -138,11 +176,6 @@ function toItem(r: RowTuple, flags: string | undefined, unsorted: CheckSummary[]
     pub_citation,
     pub_doi,
   ] = r;
-  const checks = (unsorted ?? []).sort((a, b) =>
-    a.check === b.check ? WORST[b.severity]! - WORST[a.severity]! : a.check < b.check ? -1 : 1,
-  );
-  let worst: string | null = null;
-  for (const c of checks) if (worst === null || WORST[c.severity]! > WORST[worst]!) worst = c.severity;
   return {
     id,
     lab_code,
@@ -160,7 +193,7 @@ function toItem(r: RowTuple, flags: string | undefined, unsorted: CheckSummary[]
     constraint_kind,
     grade,
     grade_name: gradeWord(grade),
-    flags: flags ? (JSON.parse(flags) as string[]).sort() : [],
+    flags,
     checks,
     worst_check: worst,
     determination_version,
@@ -189,68 +222,68 @@ export type DensityInfo = { start: number; length: number; sha256: string | null
 
 export type SelectedRow = { item: ConstraintItem; calibrationId: number; curveId: number | null; density: DensityInfo | null };
 
-const CHUNK = 900; // below SQLite's bound-parameter limit
+const CHUNK = 900; // below SQLite's bound-parameter limit (densitiesFor)
+const ITEM_CHUNK = 2000; // ids per items query (passed as one JSON array)
+
+const ITEMS_SQL = {
+  rows: `select d.id, d.lab_code, l.name as lab, t.id as site_id, t.name as site_name, t.latitude, t.longitude,
+      t.elevation_m, s.field_code as sample_code, s.material, s.depth_cm, d.method, d.signal, d.constraint_kind,
+      d.grade, d.version as determination_version,
+      d.c14_age_yr as c14_age, d.c14_error_yr as c14_error, d.f14c, d.f14c_error, d.d13c_permil as d13c,
+      d.delta_r_yr as delta_r, d.delta_r_error_yr as delta_r_error, d.de_gy, d.de_error_gy,
+      d.dose_rate_gy_per_ka, d.dose_rate_error_gy_per_ka, d.measurement_year,
+      c.id as calibration_id, c.curve_id, c.curve_label as calibration_curve, c.median_cal_bp, c.hpd68, c.hpd95,
+      c.density_start_cal_bp as density_start, c.density_length, c.density_sha256,
+      p.citation as pub_citation, p.doi as pub_doi
+    from determinations d
+    join samples s on s.id = d.sample_id
+    join sites t on t.id = s.site_id
+    join labs l on l.id = d.lab_id
+    join ${CURRENT_CALIBRATION_JOIN}
+    left join publications p on p.id = d.publication_id
+    where d.id in (select value from json_each(?))`,
+  flags: `select determination_id as id, flags from reviews
+    where id in (select max(id) from reviews where determination_id in (select value from json_each(?)) group by determination_id)`,
+  // One text per determination ("check<TAB>severity" lines): far fewer values to read than a row per check.
+  checks: `select determination_id as id, group_concat("check" || char(9) || severity, char(10)) as checks
+    from check_results where determination_id in (select value from json_each(?)) group by determination_id`,
+};
+
+type ItemStatements = { [K in keyof typeof ITEMS_SQL]: Statement };
+const prepared = new WeakMap<Db["$client"], ItemStatements>();
+
+function itemStatements(db: Db): ItemStatements {
+  let st = prepared.get(db.$client);
+  if (!st) {
+    const prep = (sql: string) => db.$client.prepare(sql).raw(true);
+    st = { rows: prep(ITEMS_SQL.rows), flags: prep(ITEMS_SQL.flags), checks: prep(ITEMS_SQL.checks) };
+    prepared.set(db.$client, st);
+  }
+  return st;
+}
 
 /**
- * The items for the given ids, in the order given, read in chunks of a few hundred: one query for
- * the rows (the calibration read from its covering index), one for the latest review's flags and
- * one for the check results of the chunk.
+ * The items for the given ids, in the order given, read in chunks of a couple of thousand: one
+ * query for the rows (the calibration read from its covering index), one for the latest review's
+ * flags and one for the grouped check results of the chunk, each statement prepared once per connection.
  */
 export function* selectionItems(db: Db, ids: readonly number[]): Generator<SelectedRow> {
-  const sqlite = db.$client;
-  const stmt = (n: number) =>
-    sqlite.prepare(
-      `select d.id, d.lab_code, l.name as lab, t.id as site_id, t.name as site_name, t.latitude, t.longitude,
-         t.elevation_m, s.field_code as sample_code, s.material, s.depth_cm, d.method, d.signal, d.constraint_kind,
-         d.grade, d.version as determination_version,
-         d.c14_age_yr as c14_age, d.c14_error_yr as c14_error, d.f14c, d.f14c_error, d.d13c_permil as d13c,
-         d.delta_r_yr as delta_r, d.delta_r_error_yr as delta_r_error, d.de_gy, d.de_error_gy,
-         d.dose_rate_gy_per_ka, d.dose_rate_error_gy_per_ka, d.measurement_year,
-         c.id as calibration_id, c.curve_id, c.curve_label as calibration_curve, c.median_cal_bp, c.hpd68, c.hpd95,
-         c.density_start_cal_bp as density_start, c.density_length, c.density_sha256,
-         p.citation as pub_citation, p.doi as pub_doi
-       from determinations d
-       join samples s on s.id = d.sample_id
-       join sites t on t.id = s.site_id
-       join labs l on l.id = d.lab_id
-       join ${CURRENT_CALIBRATION_JOIN}
-       left join publications p on p.id = d.publication_id
-       where d.id in (${placeholders(n)})`,
-    );
-  const flagsStmt = (n: number) =>
-    sqlite.prepare(
-      `select determination_id as id, flags from reviews
-       where id in (select max(id) from reviews where determination_id in (${placeholders(n)}) group by determination_id)`,
-    );
-  const checksStmt = (n: number) =>
-    sqlite.prepare(
-      `select determination_id as id, "check", severity from check_results where determination_id in (${placeholders(n)})`,
-    );
-  for (let i = 0; i < ids.length; i += CHUNK) {
-    const chunk = ids.slice(i, i + CHUNK);
-    const rows = stmt(chunk.length)
-      .raw(true)
-      .all(...chunk) as RowTuple[];
-    const byId = new Map(rows.map((r) => [r[0], r]));
-    const flags = new Map(
-      flagsStmt(chunk.length)
-        .raw(true)
-        .all(...chunk) as [number, string][],
-    );
-    const checks = new Map<number, CheckSummary[]>();
-    for (const [kid, check, severity] of checksStmt(chunk.length)
-      .raw(true)
-      .all(...chunk) as [number, string, string][]) {
-      const list = checks.get(kid) ?? [];
-      list.push({ check, severity });
-      checks.set(kid, list);
-    }
+  const st = itemStatements(db);
+  const seenChecks = new Map<string, Checks>();
+  const seenFlags = new Map<string, string[]>();
+  for (let i = 0; i < ids.length; i += ITEM_CHUNK) {
+    const chunk = ids.slice(i, i + ITEM_CHUNK);
+    const json = JSON.stringify(chunk);
+    const byId = new Map((st.rows.all(json) as RowTuple[]).map((r) => [r[0], r]));
+    const flags = new Map(st.flags.all(json) as [number, string][]);
+    const checks = new Map(st.checks.all(json) as [number, string][]);
     for (const id of chunk) {
       const r = byId.get(id);
       if (!r) continue;
       const [start, length, sha256] = [r[34], r[35], r[36]];
       const density = start != null && length != null ? { start, length, sha256 } : null;
-      yield { item: toItem(r, flags.get(id), checks.get(id)), calibrationId: r[28], curveId: r[29], density };
+      const item = toItem(r, flagsOf(flags.get(id), seenFlags), checksOf(checks.get(id), seenChecks));
+      yield { item, calibrationId: r[28], curveId: r[29], density };
     }
   }
 }
