@@ -59,6 +59,8 @@ export default [
   route("api/determination-preview", "routes/resources/determination-preview.ts"),
   route("api/site-search", "routes/resources/site-search.ts"),
   route("calibrate/results.csv", "routes/resources/calibrate-csv.ts"),
+  route("calibrate/batch", "routes/resources/calibrate-batch.ts"),
+  route("calibrate/file", "routes/resources/calibrate-file.ts"),
   route("uploads/file", "routes/resources/upload-file.ts"),
   route("uploads/template.xlsx", "routes/resources/upload-template-xlsx.ts"),
   route("uploads/template.csv", "routes/resources/upload-template-csv.ts"),

@@ -55,6 +55,12 @@ const tasks = {
       warnings: validation.warnings,
     };
   },
+  /** Reads a spreadsheet file with the reader's limits into its header and rows; stores nothing (calibration page). */
+  async readSheet(_db: Db | null, p: { path: string; fileName: string }) {
+    const { readFile } = await import("node:fs/promises");
+    const { readUpload } = await import("#app/models/submission/uploads/read-sheet.server.ts");
+    return readUpload(await readFile(p.path), p.fileName);
+  },
 };
 
 export type TaskName = keyof typeof tasks;

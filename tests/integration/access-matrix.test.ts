@@ -95,6 +95,8 @@ export const ACCESS: Record<string, Row> = {
   // Calibration: public (rate-limited per address)
   "routes/calibrate": { url: "/calibrate", get: "ok", post: "allowed" },
   "routes/resources/calibrate-csv": { url: "/calibrate/results.csv", get: "status:405", post: "allowed" },
+  "routes/resources/calibrate-batch": { url: "/calibrate/batch", get: "status:405", post: "allowed" },
+  "routes/resources/calibrate-file": { url: "/calibrate/file", get: "status:405", post: "allowed" },
   "routes/api/v1/calibrate": { url: "/api/v1/calibrate", get: "status:405", post: "allowed" },
   "routes/resources/curve-window": { url: "/api/curve-window?curve=intcal20&from=12500&to=11500", get: "ok", post: "none" },
   // Curves, checks and reconstructions, background jobs: editors (reviewers follow check runs: review-admin.test.ts)

@@ -1,0 +1,186 @@
+import { describe, expect, test } from "vitest";
+import {
+  MAX_SHEET_ROWS,
+  readCalibrationSheet,
+  readOneAge,
+  sheetText,
+  splitPastedSheet,
+  type CurveChoice,
+} from "#app/utils/calibrate-sheet.ts";
+import { ageToF14c } from "#app/science/radiocarbon.ts";
+
+const CURVES: CurveChoice[] = [
+  { name: "intcal20", kind: "atmospheric" },
+  { name: "marine20", kind: "marine" },
+];
+const DEFAULTS = { curve: "intcal20" };
+
+function read(text: string, defaults: { curve: string; deltaR?: number; deltaRError?: number } = DEFAULTS) {
+  const split = splitPastedSheet(text);
+  return readCalibrationSheet(split.rows, { defaults, curves: CURVES, more: split.more });
+}
+
+describe("a pasted sheet in the template's columns", () => {
+  test("reads a spreadsheet paste (tabs) with its header, in any column order, setting other template columns aside", () => {
+    const sheet = read(
+      [
+        "site_name\tc14_error\tlab_code\tc14_age\tcurve\tdelta_r\tdelta_r_error\tMystery",
+        "Cove\t45\tXMPL-1\t10250\t\t\t\tx",
+        "Cove\t70\tXMPL-2\t9500\tmarine20\t50\t40\t",
+        "",
+      ].join("\n"),
+    );
+    expect(sheet.problems).toEqual([]);
+    expect(sheet.headerRow).toBe(1);
+    expect(sheet.setAside).toEqual(["site_name"]);
+    expect(sheet.unknown).toEqual(["Mystery"]);
+    expect(sheet.rows.map((r) => [r.row, r.label, r.item])).toEqual([
+      [2, "XMPL-1", { id: "XMPL-1", c14_age: 10250, c14_error: 45, curve: "intcal20" }],
+      [3, "XMPL-2", { id: "XMPL-2", c14_age: 9500, c14_error: 70, curve: "marine20", delta_r: 50, delta_r_error: 40 }],
+    ]);
+  });
+
+  test("recognises the template's labels and common spellings as headers, and commas as separators", () => {
+    const sheet = read("Lab No.,14C age (yr BP),Error\nXMPL-7,8120,35");
+    expect(sheet.used.map((u) => u.column)).toEqual(["lab_code", "c14_age", "c14_error"]);
+    expect(sheet.rows[0]!.item).toMatchObject({ id: "XMPL-7", c14_age: 8120, c14_error: 35 });
+  });
+
+  test("without a header row reads lab_code, c14_age, c14_error, curve, ΔR — or the age first when the row starts with a number", () => {
+    expect(read("XMPL-1, 10250, 45\nXMPL-2, 9500, 70, marine20, 50, 40").rows.map((r) => r.item)).toEqual([
+      { id: "XMPL-1", c14_age: 10250, c14_error: 45, curve: "intcal20" },
+      { id: "XMPL-2", c14_age: 9500, c14_error: 70, curve: "marine20", delta_r: 50, delta_r_error: 40 },
+    ]);
+    const bare = read("10250\t45\n8120\t35");
+    expect(bare.headerRow).toBeNull();
+    expect(bare.rows.map((r) => [r.label, r.item?.c14_age])).toEqual([
+      ["row 1", 10250],
+      ["row 2", 8120],
+    ]);
+  });
+
+  test("reports every problem of every row at its column, and keeps the good rows", () => {
+    const sheet = read(
+      [
+        "lab_code\tc14_age\tc14_error\tcurve\tdelta_r",
+        "XMPL-1\t10250\t45",
+        "XMPL-2\tx\t-3",
+        "XMPL-3\t12400\t60\tintcal21",
+        "XMPL-4\t9000\t40\t\t120",
+        "XMPL-5\t10,250\t",
+      ].join("\n"),
+    );
+    const byRow = Object.fromEntries(sheet.rows.map((r) => [r.row, r.problems]));
+    expect(sheet.rows[0]!.item).toBeDefined();
+    expect(byRow[3]).toEqual([
+      { column: "c14_age", message: '"x" is not a number; c14_age takes a number in ¹⁴C yr BP.' },
+      { column: "c14_error", message: "c14_error must be more than 0." },
+    ]);
+    expect(byRow[4]).toEqual([
+      { column: "curve", message: expect.stringMatching(/"intcal21" is not a curve.*did you mean intcal20/) },
+    ]);
+    expect(byRow[5]).toEqual([{ column: "delta_r", message: expect.stringMatching(/ΔR applies to marine curves only/) }]);
+    expect(byRow[6]!.map((p) => p.column)).toEqual(["c14_age", "c14_error"]);
+    expect(byRow[6]![0]!.message).toMatch(/use a point as the decimal separator/);
+    for (const row of sheet.rows.slice(1)) expect(row.item).toBeUndefined();
+  });
+
+  test("rows on the page's marine curve take the page's ΔR; rows with their own ΔR or another curve do not", () => {
+    const sheet = read(
+      [
+        "lab_code\tc14_age\tc14_error\tcurve\tdelta_r\tdelta_r_error",
+        "A\t9500\t70",
+        "B\t9500\t70\t\t10\t5",
+        "C\t9500\t70\tintcal20",
+      ].join("\n"),
+      { curve: "marine20", deltaR: 150, deltaRError: 60 },
+    );
+    expect(sheet.rows.map((r) => r.item)).toEqual([
+      { id: "A", c14_age: 9500, c14_error: 70, curve: "marine20", delta_r: 150, delta_r_error: 60 },
+      { id: "B", c14_age: 9500, c14_error: 70, curve: "marine20", delta_r: 10, delta_r_error: 5 },
+      { id: "C", c14_age: 9500, c14_error: 70, curve: "intcal20" },
+    ]);
+  });
+
+  test("measurements are made conventional as the registry does: F¹⁴C to age, δ¹³C normalisation; limits and luminescence are not calibrated", () => {
+    const f = ageToF14c(10250);
+    const sheet = read(
+      [
+        "lab_code\tmethod\tc14_age\tc14_error\tf14c\tf14c_error\td13c\tage_normalised\tgreater_than",
+        `F\tradiocarbon\t\t\t${f}\t0.001`,
+        "N\tradiocarbon\t10000\t40\t\t\t-20\tno",
+        "G\tradiocarbon\t45000\t500\t\t\t\t\tyes",
+        "L\tluminescence",
+      ].join("\n"),
+    );
+    const [fromF, normalised, limit, lum] = sheet.rows;
+    // F14C = exp(−age/8033) (Stuiver & Polach 1977), so the age comes back to 10,250 to rounding.
+    expect(fromF!.item!.c14_age).toBeCloseTo(10250, 6);
+    expect(fromF!.note).toMatch(/From F¹⁴C/);
+    // δ13C −20 ‰ → the age is made older by 8033·ln((1−20/1000)/(1−25/1000))² ≈ 82 yr (common practice, exact form).
+    expect(normalised!.item!.c14_age).toBeGreaterThan(10080);
+    expect(normalised!.item!.c14_age).toBeLessThan(10084);
+    expect(normalised!.note).toMatch(/Normalised to δ¹³C −25 ‰/);
+    expect(limit!.item).toBeUndefined();
+    expect(limit!.problems[0]!.column).toBe("greater_than");
+    expect(lum!.problems).toEqual([{ column: "method", message: expect.stringMatching(/radiocarbon ages only/) }]);
+  });
+
+  test("a header without an age column, and a sheet longer than the limit, are refused as a whole", () => {
+    expect(read("lab_code\tsite_name\nA\tB").problems[0]).toMatch(/names no c14_age/);
+    const long = ["lab_code\tc14_age\tc14_error", ...Array.from({ length: MAX_SHEET_ROWS + 1 }, (_, i) => `A${i}\t1000\t30`)];
+    const sheet = read(long.join("\n"));
+    expect(sheet.problems[0]).toMatch(/more than 5,000 rows/);
+    expect(sheet.rows).toEqual([]);
+  });
+
+  test("cells from a workbook: numbers as numbers, dates and formulas named", () => {
+    const sheet = readCalibrationSheet(
+      [
+        { n: 1, cells: ["lab_code", "c14_age", "c14_error"] },
+        { n: 3, cells: ["A", 10250, 45] },
+        { n: 4, cells: ["B", { date: "2021-03-04T00:00:00.000Z" }, { formula: true }] },
+      ],
+      { defaults: DEFAULTS, curves: CURVES },
+    );
+    expect(sheet.rows[0]).toMatchObject({ row: 3, item: { c14_age: 10250 } });
+    expect(sheet.rows[1]!.problems.map((p) => p.column)).toEqual(["c14_age", "c14_error"]);
+    expect(sheet.rows[1]!.problems[0]!.message).toMatch(/date/);
+    expect(sheet.rows[1]!.problems[1]!.message).toMatch(/formula/);
+  });
+
+  test("a read file written as the paste box's text reads back the same", () => {
+    const rows = [
+      { n: 1, cells: ["lab_code", "c14_age", "c14_error"] },
+      { n: 2, cells: ['XM"PL, 1', 10250, 45] },
+    ];
+    const again = read(sheetText(rows));
+    expect(again.rows[0]!.item).toEqual({ id: 'XM"PL, 1', c14_age: 10250, c14_error: 45, curve: "intcal20" });
+  });
+});
+
+describe("the one age typed in the form", () => {
+  const base = { age: "10250", error: "45", curve: "intcal20", deltaR: "", deltaRError: "" };
+  test("gives an item, with ΔR only on a marine curve", () => {
+    expect(readOneAge(base, CURVES)).toEqual({
+      item: { id: "1", c14_age: 10250, c14_error: 45, curve: "intcal20" },
+      problems: [],
+    });
+    expect(readOneAge({ ...base, deltaR: "50" }, CURVES).item?.delta_r).toBeUndefined();
+    expect(readOneAge({ ...base, curve: "marine20", deltaR: "50", deltaRError: "40" }, CURVES).item).toMatchObject({
+      delta_r: 50,
+      delta_r_error: 40,
+    });
+  });
+
+  test("says what is wrong at each field in the form's words; nothing typed is no problem", () => {
+    expect(readOneAge({ ...base, age: "", error: "" }, CURVES)).toEqual({ problems: [] });
+    const bad = readOneAge({ ...base, age: "ten", error: "0", curve: "marine20", deltaRError: "-4" }, CURVES);
+    expect(bad.item).toBeUndefined();
+    expect(bad.problems).toEqual([
+      { field: "age", message: '"ten" is not a number; ¹⁴C age takes a number in ¹⁴C yr BP.' },
+      { field: "error", message: "The error must be more than 0." },
+      { field: "delta_r_error", message: "The ΔR error must be 0 or more." },
+    ]);
+  });
+});
