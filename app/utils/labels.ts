@@ -99,6 +99,17 @@ export const SIGNAL_LABELS: Record<string, string> = {
   pIRIR: "post-IR IRSL",
 };
 
+/** A signal's short name as the trade writes it ("OSL", "post-IR IRSL"), without its explanation. */
+export function signalShortWords(signal: string): string {
+  return (SIGNAL_LABELS[signal] ?? signal).replace(/ \(.*\)$/, "");
+}
+
+/** A determination's method in words, with its signal for luminescence: "luminescence (OSL)". */
+export function methodWords(method: string, signal?: string | null): string {
+  const words = METHOD_LABELS[method] ?? method;
+  return signal ? `${words} (${signalShortWords(signal)})` : words;
+}
+
 /** Audit actions as the verb of a sentence: "<verb> by <person>". */
 export const AUDIT_ACTION_VERBS: Record<string, string> = {
   "determination.create": "Submitted",

@@ -27,6 +27,8 @@ const INTERNAL_CODES: RegExp[] = [
   /\bpartial_bleaching\b/,
   /\bold_carbon\b/,
   /\bwrong_delta_r\b/,
+  /\blum\. /,
+  /^DOI 10\./m,
 ];
 
 /** The page's readable text, without code samples, scripts and form values. */

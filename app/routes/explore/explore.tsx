@@ -16,7 +16,7 @@ import {
 } from "#app/models/registry/query.server.ts";
 import { formatCal, formatCalRange, formatMeasuredAge } from "#app/utils/age-format.ts";
 import { defaultDirection, exploreSearch, type ExploreSort } from "#app/utils/explore-filters.ts";
-import { CONSTRAINT_KIND_LABELS, STATUS_LABELS } from "#app/utils/labels.ts";
+import { CONSTRAINT_KIND_LABELS, methodWords, SIGNAL_LABELS, STATUS_LABELS } from "#app/utils/labels.ts";
 
 export const meta: Route.MetaFunction = () => [{ title: "Explore determinations · Thawline" }];
 
@@ -86,7 +86,7 @@ export default function Explore({ loaderData }: Route.ComponentProps) {
         </div>
       ) : (
         <>
-          <div className={`mt-6 overflow-x-auto transition-opacity ${loading ? "opacity-60" : ""}`} aria-busy={loading}>
+          <div className={`relative mt-6 overflow-x-auto transition-opacity ${loading ? "opacity-60" : ""}`} aria-busy={loading}>
             <table className="data-table text-[14px] [&_td]:px-2 [&_th]:px-2" data-testid="explore-table">
               <caption className="sr-only">
                 Determinations, page {result.page} of {result.pageCount}, sorted by {SORT_LABELS[filters.sort]}
@@ -161,8 +161,8 @@ function ResultRow({ row }: { row: ExploreRow }) {
         <Link to={`/sites/${row.siteId}`}>{row.siteName}</Link>
       </td>
       <td>{row.material}</td>
-      <td className="whitespace-nowrap" title={row.signal ? `${row.method} (${row.signal})` : row.method}>
-        {row.method === "luminescence" && row.signal ? `lum. ${row.signal}` : row.method}
+      <td className="whitespace-nowrap" title={row.signal ? (SIGNAL_LABELS[row.signal] ?? row.signal) : undefined}>
+        {methodWords(row.method, row.signal)}
       </td>
       <td className="text-right whitespace-nowrap">{formatMeasuredAge(row)}</td>
       <td className="text-right whitespace-nowrap">{formatCal(row.medianCalBp)}</td>
