@@ -93,7 +93,7 @@ export default function ApiDocs({ loaderData }: Route.ComponentProps) {
     : `{"curves": {"intcal20": {"version": "…", "citation": "…"}},
  "results": [{"id": "a1", "median_cal_bp": …, "hpd68": [{"from": …, "to": …, "p": …}], "hpd95": […]}]}`;
   return (
-    <div className="grid max-w-5xl gap-8">
+    <div className="grid max-w-5xl grid-cols-1 gap-8 [overflow-wrap:anywhere]">
       <header>
         <p className="text-sm tracking-widest text-muted uppercase">For scripts</p>
         <h1 className="mt-1">The Thawline API</h1>
@@ -108,7 +108,7 @@ export default function ApiDocs({ loaderData }: Route.ComponentProps) {
         </p>
       </header>
 
-      <section className="card grid gap-3" aria-labelledby="auth-heading">
+      <section className="card grid grid-cols-1 gap-3" aria-labelledby="auth-heading">
         <h2 id="auth-heading">Tokens</h2>
         <p>
           Every endpoint except calibration needs a personal API token, made on <Link to="/account">your account page</Link> and
@@ -119,28 +119,30 @@ export default function ApiDocs({ loaderData }: Route.ComponentProps) {
           Without a valid token the answer is <code>401</code> <code>{`{"error": "…"}`}</code>; with a token whose owner lacks the
           role, <code>403</code>. A wrong method is <code>405</code> with an <code>Allow</code> header.
         </p>
-        <table className="data-table">
-          <thead>
-            <tr>
-              <th scope="col">Endpoint</th>
-              <th scope="col">Who</th>
-            </tr>
-          </thead>
-          <tbody>
-            {ENDPOINTS.map(([method, path, anchor, who]) => (
-              <tr key={anchor}>
-                <td>
-                  <a href={`#${anchor}`}>
-                    <code>
-                      {method} {path}
-                    </code>
-                  </a>
-                </td>
-                <td>{who}</td>
+        <div className="overflow-x-auto">
+          <table className="data-table">
+            <thead>
+              <tr>
+                <th scope="col">Endpoint</th>
+                <th scope="col">Who</th>
               </tr>
-            ))}
-          </tbody>
-        </table>
+            </thead>
+            <tbody>
+              {ENDPOINTS.map(([method, path, anchor, who]) => (
+                <tr key={anchor}>
+                  <td>
+                    <a href={`#${anchor}`}>
+                      <code>
+                        {method} {path}
+                      </code>
+                    </a>
+                  </td>
+                  <td>{who}</td>
+                </tr>
+              ))}
+            </tbody>
+          </table>
+        </div>
       </section>
 
       <Endpoint
@@ -188,24 +190,26 @@ export default function ApiDocs({ loaderData }: Route.ComponentProps) {
           The registry's determinations with their current calibration, filtered exactly as on <Link to="/explore">Explore</Link>,
           in the same order. All parameters are optional:
         </p>
-        <table className="data-table">
-          <thead>
-            <tr>
-              <th scope="col">Parameter</th>
-              <th scope="col">Meaning</th>
-            </tr>
-          </thead>
-          <tbody>
-            {filterParameters(perPage).map(([name, meaning]) => (
-              <tr key={name}>
-                <td>
-                  <code>{name}</code>
-                </td>
-                <td>{withCodes(meaning)}</td>
+        <div className="overflow-x-auto">
+          <table className="data-table">
+            <thead>
+              <tr>
+                <th scope="col">Parameter</th>
+                <th scope="col">Meaning</th>
               </tr>
-            ))}
-          </tbody>
-        </table>
+            </thead>
+            <tbody>
+              {filterParameters(perPage).map(([name, meaning]) => (
+                <tr key={name}>
+                  <td>
+                    <code>{name}</code>
+                  </td>
+                  <td>{withCodes(meaning)}</td>
+                </tr>
+              ))}
+            </tbody>
+          </table>
+        </div>
         <Code>{`curl -H "Authorization: Bearer <token>" \\
   "${base}/api/v1/determinations?method=radiocarbon&kind=minimum&grade=2&calFrom=8000&calTo=12000&per_page=200&page=1"`}</Code>
         <Code label="200">{`{
@@ -416,7 +420,7 @@ export default function ApiDocs({ loaderData }: Route.ComponentProps) {
   "max_implausibility": 7.9, "second_implausibility": 6.2, "ruled_out": false}]}`}</Code>
       </Endpoint>
 
-      <section className="card grid gap-3" aria-labelledby="columns-heading">
+      <section className="card grid grid-cols-1 gap-3" aria-labelledby="columns-heading">
         <h2 id="columns-heading">Column names</h2>
         <p>The names used by uploads, both determinations endpoints and the form.</p>
         <div className="overflow-x-auto">
@@ -461,7 +465,7 @@ function Endpoint({
   children: React.ReactNode;
 }) {
   return (
-    <section id={id} className="card grid gap-3" aria-labelledby={`${id}-heading`}>
+    <section id={id} className="card grid grid-cols-1 gap-3" aria-labelledby={`${id}-heading`}>
       <h2 id={`${id}-heading`} className="font-mono text-lg">
         {method} {path}
       </h2>
@@ -475,7 +479,7 @@ function Code({ label, children }: { label?: string; children: string }) {
   return (
     <div>
       {label ? <p className="text-sm font-semibold text-muted">Answer {label}</p> : null}
-      <pre className="overflow-x-auto rounded bg-ice-50 p-3 text-xs">{children}</pre>
+      <pre className="max-w-full overflow-x-auto rounded bg-ice-50 p-3 text-xs [overflow-wrap:normal]">{children}</pre>
     </div>
   );
 }

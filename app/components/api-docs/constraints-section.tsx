@@ -51,24 +51,26 @@ export function ConstraintsApiSection({ base, releaseSlug }: { base: string; rel
           already published.
         </li>
       </ul>
-      <table className="data-table text-sm">
-        <thead>
-          <tr>
-            <th scope="col">Parameter</th>
-            <th scope="col">Meaning</th>
-          </tr>
-        </thead>
-        <tbody>
-          {PARAMETERS.map(([name, meaning]) => (
-            <tr key={name}>
-              <td>
-                <code>{name}</code>
-              </td>
-              <td>{typeof meaning === "string" ? withCodes(meaning) : meaning}</td>
+      <div className="overflow-x-auto">
+        <table className="data-table text-sm">
+          <thead>
+            <tr>
+              <th scope="col">Parameter</th>
+              <th scope="col">Meaning</th>
             </tr>
-          ))}
-        </tbody>
-      </table>
+          </thead>
+          <tbody>
+            {PARAMETERS.map(([name, meaning]) => (
+              <tr key={name}>
+                <td>
+                  <code>{name}</code>
+                </td>
+                <td>{typeof meaning === "string" ? withCodes(meaning) : meaning}</td>
+              </tr>
+            ))}
+          </tbody>
+        </table>
+      </div>
       <p>
         CSV is plain (one header row, one row per determination) so spreadsheets and <code>pandas.read_csv</code> read it without
         options; its metadata is the second file <code>format=metadata</code>, named by the CSV response&apos;s <code>Link</code>{" "}
@@ -89,7 +91,7 @@ export function ConstraintsApiSection({ base, releaseSlug }: { base: string; rel
       {constraintExamples(releaseSlug).map((ex) => (
         <div key={ex.id}>
           <h3>{ex.title}</h3>
-          <pre className="overflow-x-auto rounded bg-ice-50 p-3 text-sm" data-example={ex.id}>
+          <pre className="max-w-full overflow-x-auto rounded bg-ice-50 p-3 text-sm [overflow-wrap:normal]" data-example={ex.id}>
             <code>{ex.code}</code>
           </pre>
         </div>
