@@ -619,7 +619,7 @@ export const COLUMNS: readonly ColumnSpec[] = [
     kind: "text",
     unit: "",
     group: "provenance",
-    help: "DOI of the publication reporting the date, e.g. 10.99999/example.1. A DOI the registry does not know yet needs the publication's citation (the four columns below) once: on this row or on another row of the same file with the same DOI.",
+    help: "DOI of the publication reporting the date, e.g. 10.99999/example.1. A DOI the registry does not know yet needs the publication's citation — authors, year, title and journal, given together — once (in a spreadsheet, on any one row with that DOI).",
     synonyms: ["publication doi", "reference doi"],
   },
   {
@@ -628,7 +628,7 @@ export const COLUMNS: readonly ColumnSpec[] = [
     kind: "text",
     unit: "",
     group: "provenance",
-    help: "Authors of the publication as it lists them, e.g. Frostvik, A., Kettle, B. Part of the citation: give authors, year, title and journal together.",
+    help: "Authors as the publication lists them, e.g. Frostvik, A., Kettle, B.",
     synonyms: ["authors", "author", "publication authors", "reference authors"],
   },
   {
@@ -637,7 +637,7 @@ export const COLUMNS: readonly ColumnSpec[] = [
     kind: "integer",
     unit: "year AD",
     group: "provenance",
-    help: "Year the publication appeared. Part of the citation.",
+    help: "Year the publication appeared.",
     synonyms: ["publication year", "year published", "reference year"],
   },
   {
@@ -646,7 +646,7 @@ export const COLUMNS: readonly ColumnSpec[] = [
     kind: "text",
     unit: "",
     group: "provenance",
-    help: "Title of the paper, report or thesis. Part of the citation.",
+    help: "Title of the paper, report or thesis.",
     synonyms: ["title", "publication title", "paper title", "reference title"],
   },
   {
@@ -655,7 +655,7 @@ export const COLUMNS: readonly ColumnSpec[] = [
     kind: "text",
     unit: "",
     group: "provenance",
-    help: "Journal (or report series, book, thesis), with volume and pages if you like, e.g. Journal of Imaginary Glacial Studies 41, 12–30. Part of the citation.",
+    help: "Journal (or report series, book), with volume and pages if you like, e.g. Journal of Imaginary Glacial Studies 41, 12–30.",
     synonyms: ["journal", "publication journal", "journal volume pages"],
   },
   {
