@@ -35,6 +35,7 @@ const SECTIONS: BenchSection[] = [
   (await import("./releases.ts")).bench,
   (await import("./runs.ts")).bench,
   (await import("./load.ts")).bench,
+  (await import("./site-search.ts")).bench,
 ];
 const NAMES = ["seed", ...SECTIONS.map((s) => s.name)];
 

@@ -1,6 +1,7 @@
 import { useHydrated } from "#app/utils/use-hydrated.ts";
 import { lazy, Suspense, useCallback, useEffect, useState } from "react";
-import type { LatLon, PickerSite } from "#app/components/map/site-picker.client.tsx";
+import type { LatLon } from "#app/components/map/site-picker.client.tsx";
+import type { SiteArea } from "#app/utils/submission-form.ts";
 
 // Leaflet needs `window`: the map is a browser-only module loaded after hydration, as on the map page.
 const SitePickerMap = lazy(() => import("#app/components/map/site-picker.client.tsx"));
@@ -37,11 +38,11 @@ function typeInto(input: HTMLInputElement, value: string) {
  * works the same without JavaScript.
  */
 export function SiteLocationPicker({
-  sites,
+  siteArea,
   latitudeId,
   longitudeId,
 }: {
-  sites: PickerSite[];
+  siteArea: SiteArea | null;
   latitudeId: string;
   longitudeId: string;
 }) {
@@ -79,7 +80,7 @@ export function SiteLocationPicker({
       {hydrated ? (
         <Suspense fallback={<PickerPlaceholder text="Loading the map…" />}>
           <SitePickerMap
-            sites={sites}
+            siteArea={siteArea}
             position={position}
             onPick={onPick}
             label="Map for placing the new site"

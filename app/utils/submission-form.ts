@@ -20,9 +20,16 @@ export type SubmissionValue = {
   row: DeterminationRow;
 };
 
+/** The registry's sites in brief: their count and the box around them (degrees). */
+export type SiteArea = { count: number; south: number; north: number; west: number; east: number };
+
 /** The registry lists the form offers; the loader sends them, the browser builds its context from them. */
 export type FormOptions = {
-  sites: { id: number; name: string; latitude: number; longitude: number }[];
+  /**
+   * How many sites the registry has and the box they lie in — not the sites themselves, which the
+   * site combobox and the picker map ask the site search for, a page or a view at a time.
+   */
+  siteArea: SiteArea | null;
   labs: { id: number; name: string; codePrefix: string }[];
   materials: { name: string; methods: string[]; marine: boolean }[];
   curves: { name: string; displayName: string; kind: "atmospheric" | "marine" }[];

@@ -1,6 +1,6 @@
 import { describe, expect, it } from "vitest";
 import { getDb } from "#app/db/client.server.ts";
-import { pointFromText, searchSites } from "#app/models/registry/site-search.server.ts";
+import { boxFromText, pointFromText, searchSites, sitesInBox } from "#app/models/registry/site-search.server.ts";
 import * as siteSearch from "#app/routes/resources/site-search.ts";
 import * as submitPage from "#app/routes/contribute/submit.tsx";
 import { createTestSite } from "#tests/factories.ts";
@@ -65,5 +65,32 @@ describe("site search for the submission form", () => {
     const text = JSON.stringify(out.data ?? "");
     expect(text).not.toContain("Choose a site from the list");
     expect(text).toMatch(/lab_code|material|method/);
+  });
+
+  it("answers the sites inside a map's view through GET /api/site-search?bbox=, saying when there are more than it sends", async () => {
+    const inView = await run(() => siteSearch.loader(args(get("/api/site-search?bbox=58.05,-63.3,58.2,-63.1", { cookie }))));
+    expect(inView.status).toBe(200);
+    const body = inView.data as { sites: { name: string }[]; more: boolean };
+    expect(body.sites.map((s) => s.name).sort()).toEqual(["Quorvath Delta", "quorvath Moraine"]);
+    expect(body.more).toBe(false);
+    const few = sitesInBox(getDb(), { south: 55.9, west: -61.1, north: 56.4, east: -60.9 }, 10);
+    expect(few.sites).toHaveLength(10);
+    expect(few.more).toBe(true);
+    // Across the antimeridian: west > east.
+    expect(boxFromText("50,170,60,-170")).toEqual({ south: 50, west: 170, north: 60, east: -170 });
+    const bad = await run(() => siteSearch.loader(args(get("/api/site-search?bbox=60,0,50,10", { cookie }))));
+    expect(bad.status).toBe(400);
+    expect(JSON.stringify(bad.data)).toContain("bbox: give south,west,north,east");
+  });
+
+  it("sends the form the sites' count and box, never the sites themselves", async () => {
+    const out = await run(() => submitPage.loader(args(get("/submit", { cookie }))));
+    expect(out.status).toBe(200);
+    const options = (out.data as { options: Record<string, unknown> }).options;
+    expect(options).not.toHaveProperty("sites");
+    const area = options.siteArea as { count: number; south: number; north: number; west: number; east: number };
+    expect(area.count).toBe(34);
+    expect(area).toMatchObject({ south: 56, north: 59.4, west: -65, east: -61 });
+    expect(JSON.stringify(out.data)).not.toContain("Sennmark Bog");
   });
 });

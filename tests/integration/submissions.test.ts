@@ -145,14 +145,20 @@ describe("/submit access", () => {
     expect(counts()).toEqual(before);
   });
 
-  it("offers sites, labs, materials and curves to a contributor", async () => {
-    const site = createTestSite(db(), { name: "Offered Test Site" });
+  it("offers the sites' count and box (the sites are searched), labs, materials and curves to a contributor", async () => {
+    createTestSite(db(), { name: "Offered Test Site" });
     const out = await run(() => submitPage.loader(args(get("/submit", { cookie: contributor.cookie }))));
     expect(out.status).toBe(200);
     const data = out.data as {
-      options: { sites: { id: number }[]; labs: { name: string }[]; materials: { name: string }[]; curves: { name: string }[] };
+      options: {
+        siteArea: { count: number } | null;
+        labs: { name: string }[];
+        materials: { name: string }[];
+        curves: { name: string }[];
+      };
     };
-    expect(data.options.sites.map((s) => s.id)).toContain(site.id);
+    expect(data.options.siteArea?.count).toBe(count("sites"));
+    expect(JSON.stringify(data)).not.toContain("Offered Test Site");
     expect(data.options.labs.map((l) => l.name)).toContain(labName);
     expect(data.options.materials.map((m) => m.name)).toContain("marine shell");
     expect(data.options.curves.map((c) => c.name)).toEqual(expect.arrayContaining(["intcal20", "marine20"]));

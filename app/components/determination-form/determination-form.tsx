@@ -81,7 +81,7 @@ export function DeterminationForm({
           </p>
         ) : null}
         <FieldWarningsProvider warnings={preview.data?.warnings}>
-          <SiteSection f={f} sites={options.sites} start={start} />
+          <SiteSection f={f} siteArea={options.siteArea} start={start} />
           <SampleSection f={f} choices={choices} />
           <MeasurementSection f={f} choices={choices} labs={options.labs} defaultKind={defaultValue.constraint_kind} />
           <RadiocarbonSection f={f} choices={choices} curves={options.curves} />

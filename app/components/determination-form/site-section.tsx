@@ -8,11 +8,11 @@ import { FieldError, Radio, TextField, type Fields } from "./fields.tsx";
 /** Where the sample was taken: a site already in the registry, or a new one placed by coordinates. */
 export function SiteSection({
   f,
-  sites,
+  siteArea,
   start,
 }: {
   f: Fields;
-  sites: FormOptions["sites"];
+  siteArea: FormOptions["siteArea"];
   start: (name: string) => string | undefined;
 }) {
   const [siteChoice, setSiteChoice] = useState(start("site_choice") === "existing" ? "existing" : "new");
@@ -30,14 +30,16 @@ export function SiteSection({
         </Radio>
       </div>
 
-      {siteChoice === "existing" ? <ExistingSite f={f} sites={sites} siteId={siteId} onSiteId={setSiteId} /> : null}
+      {siteChoice === "existing" ? (
+        <ExistingSite f={f} siteArea={siteArea} start={start} siteId={siteId} onSiteId={setSiteId} />
+      ) : null}
 
       <fieldset disabled={siteChoice !== "new"} hidden={siteChoice !== "new"} className="grid gap-4 sm:grid-cols-2">
         <TextField field={f.site_name!} column="site_name" className="sm:col-span-2" />
         <TextField field={f.latitude!} column="latitude" inputMode="decimal" placeholder="58.7123" />
         <TextField field={f.longitude!} column="longitude" inputMode="decimal" placeholder="-64.3511" />
         {siteChoice === "new" ? (
-          <SiteLocationPicker sites={sites} latitudeId={f.latitude!.id} longitudeId={f.longitude!.id} />
+          <SiteLocationPicker siteArea={siteArea} latitudeId={f.latitude!.id} longitudeId={f.longitude!.id} />
         ) : null}
         <TextField field={f.elevation_m!} column="elevation_m" inputMode="decimal" />
         <TextField field={f.setting!} column="setting" />
@@ -56,16 +58,19 @@ export function SiteSection({
  */
 function ExistingSite({
   f,
-  sites,
+  siteArea,
+  start,
   siteId,
   onSiteId: setSiteId,
 }: {
   f: Fields;
-  sites: FormOptions["sites"];
+  siteArea: FormOptions["siteArea"];
+  start: (name: string) => string | undefined;
   siteId: string;
   onSiteId: (id: string) => void;
 }) {
-  const [chosen, setChosen] = useState<ChosenSite | null>(() => sites.find((s) => String(s.id) === siteId) ?? null);
+  // The chosen site comes back with the form (an edit, or a post that failed) as its id, name and coordinates.
+  const [chosen, setChosen] = useState<ChosenSite | null>(() => chosenFrom(siteId, start));
   const [showMap, setShowMap] = useState(false);
   const errorId = f.site_id!.errors?.length ? f.site_id!.errorId : undefined;
   return (
@@ -82,7 +87,7 @@ function ExistingSite({
           }}
           invalid={!!errorId}
           describedBy={errorId}
-          near={(searchNear) => (showMap ? <NearPointMap sites={sites} onPoint={searchNear} /> : null)}
+          near={(searchNear) => (showMap ? <NearPointMap siteArea={siteArea} onPoint={searchNear} /> : null)}
         />
         {chosen ? (
           <p className="text-sm" data-testid="chosen-site">
@@ -113,8 +118,17 @@ function ExistingSite({
   );
 }
 
+function chosenFrom(siteId: string, start: (name: string) => string | undefined): ChosenSite | null {
+  const id = Number(siteId);
+  const name = start("site_name");
+  const latitude = Number(start("latitude"));
+  const longitude = Number(start("longitude"));
+  if (!siteId || !Number.isSafeInteger(id) || !name || !Number.isFinite(latitude) || !Number.isFinite(longitude)) return null;
+  return { id, name, latitude, longitude };
+}
+
 /** A map whose clicked (or typed) point asks the combobox for the nearest sites; its inputs are not sent. */
-function NearPointMap({ sites, onPoint }: { sites: FormOptions["sites"]; onPoint: (q: string) => void }) {
+function NearPointMap({ siteArea, onPoint }: { siteArea: FormOptions["siteArea"]; onPoint: (q: string) => void }) {
   const [lat, setLat] = useState("");
   const [lon, setLon] = useState("");
   const changed = (nextLat: string, nextLon: string) => {
@@ -146,7 +160,7 @@ function NearPointMap({ sites, onPoint }: { sites: FormOptions["sites"]; onPoint
           onChange={(e) => changed(lat, e.currentTarget.value)}
         />
       </div>
-      <SiteLocationPicker sites={sites} latitudeId="near-latitude" longitudeId="near-longitude" />
+      <SiteLocationPicker siteArea={siteArea} latitudeId="near-latitude" longitudeId="near-longitude" />
     </div>
   );
 }

@@ -5,13 +5,14 @@ import L from "leaflet";
 import { MapContainer, useMap, useMapEvents } from "react-leaflet";
 import { textLabel } from "./text-label.client.ts";
 import { Basemap, FALLBACK_BOUNDS, SEA_COLOUR } from "./basemap.client.tsx";
+import type { SiteArea } from "#app/utils/submission-form.ts";
 
-export type PickerSite = { id: number; name: string; latitude: number; longitude: number };
 export type LatLon = { lat: number; lon: number };
+type PickerSite = { id: number; name: string; latitude: number; longitude: number };
 
 export type SitePickerMapProps = {
-  /** Registry sites, drawn faintly so the contributor sees what is nearby. */
-  sites: PickerSite[];
+  /** How many sites the registry has and where: the map opens on them, and asks for those in view. */
+  siteArea: SiteArea | null;
   /** The coordinates in the form's inputs, if they are a valid position. */
   position: LatLon | null;
   /** A place chosen on the map (by click, or Enter at the map's centre). */
@@ -21,8 +22,35 @@ export type SitePickerMapProps = {
   describedBy?: string;
 };
 
-function RegistrySites({ sites }: { sites: PickerSite[] }) {
+/** The registry's sites in the map's view, asked of the site search whenever the view settles (at most SITES_IN_VIEW_LIMIT). */
+function RegistrySites({ onMore }: { onMore: (more: boolean) => void }) {
   const map = useMap();
+  const [sites, setSites] = useState<PickerSite[]>([]);
+  useEffect(() => {
+    let controller: AbortController | null = null;
+    const load = () => {
+      controller?.abort();
+      controller = new AbortController();
+      const b = map.getBounds();
+      const box = [b.getSouth(), b.getWest(), b.getNorth(), b.getEast()].map((v) => v.toFixed(4)).join(",");
+      fetch(`/api/site-search?bbox=${box}`, { signal: controller.signal, headers: { Accept: "application/json" } })
+        .then((r) => (r.ok ? (r.json() as Promise<{ sites: PickerSite[]; more: boolean }>) : null))
+        .then((answer) => {
+          if (!answer) return;
+          setSites(answer.sites);
+          onMore(answer.more);
+        })
+        .catch(() => {
+          // A view left before its answer came (aborted), or the server unreachable: the dots stay as they were.
+        });
+    };
+    load();
+    map.on("moveend", load);
+    return () => {
+      map.off("moveend", load);
+      controller?.abort();
+    };
+  }, [map, onMore]);
   useEffect(() => {
     // The map's one canvas (preferCanvas), drawn after the land, so the dots lie on top of it.
     const group = L.layerGroup();
@@ -123,15 +151,22 @@ function AccessibleContainer({ label, describedBy }: { label: string; describedB
   return null;
 }
 
-export default function SitePickerMap({ sites, position, onPick, label, describedBy }: SitePickerMapProps) {
+export default function SitePickerMap({ siteArea, position, onPick, label, describedBy }: SitePickerMapProps) {
   const [focused, setFocused] = useState(false);
-  // Fitted once, when the map opens: to the registry's sites and the position already typed.
+  const [more, setMore] = useState(false);
+  // Fitted once, when the map opens: to the box around the registry's sites and the position already typed.
   const [initialBounds] = useState<L.LatLngBoundsExpression>(() => {
-    const points = sites.map((s) => [s.latitude, s.longitude] as [number, number]);
+    const points: [number, number][] = siteArea
+      ? [
+          [siteArea.south, siteArea.west],
+          [siteArea.north, siteArea.east],
+        ]
+      : [];
     if (position) points.push([position.lat, position.lon]);
     if (points.length === 0) return FALLBACK_BOUNDS;
-    if (points.length === 1) return L.latLng(points[0]!).toBounds(50_000);
-    return L.latLngBounds(points).pad(0.08);
+    const bounds = L.latLngBounds(points);
+    if (bounds.getNorthEast().equals(bounds.getSouthWest())) return bounds.getCenter().toBounds(50_000);
+    return bounds.pad(0.08);
   });
 
   return (
@@ -146,7 +181,7 @@ export default function SitePickerMap({ sites, position, onPick, label, describe
         keyboard
       >
         <Basemap />
-        <RegistrySites sites={sites} />
+        <RegistrySites onMore={setMore} />
         <ChosenPosition position={position} />
         <PickHandler onPick={onPick} onFocusChange={setFocused} />
         <AccessibleContainer label={label} describedBy={describedBy} />
@@ -162,6 +197,11 @@ export default function SitePickerMap({ sites, position, onPick, label, describe
         >
           <path d="M14 2v9M14 17v9M2 14h9M17 14h9" stroke="#0f273b" strokeWidth="2" strokeLinecap="round" />
         </svg>
+      ) : null}
+      {more ? (
+        <p className="pointer-events-none absolute right-2 bottom-2 z-[1000] rounded bg-white/85 px-2 py-0.5 text-xs text-ink">
+          Only some of the sites here are drawn: zoom in to see each one.
+        </p>
       ) : null}
     </div>
   );

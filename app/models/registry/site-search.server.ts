@@ -62,6 +62,33 @@ export function searchSites(db: Db, query: SiteQuery): SiteHit[] {
   return rows.map((s) => ({ ...s, distanceKm: null }));
 }
 
+/** At most this many sites in a map's view; the picker says when there are more. */
+const SITES_IN_VIEW_LIMIT = 500;
+
+type Box = { south: number; west: number; north: number; east: number };
+
+/** "south,west,north,east" in decimal degrees as a box, else null. A box across the antimeridian has west > east. */
+export function boxFromText(text: string): Box | null {
+  const parts = text.split(",").map((p) => Number(p.trim()));
+  if (parts.length !== 4 || parts.some((p) => !Number.isFinite(p))) return null;
+  const [south, west, north, east] = parts as [number, number, number, number];
+  if (south > north || Math.abs(south) > 90 || Math.abs(north) > 90) return null;
+  return { south, west: Math.max(-180, west), north, east: Math.min(180, east) };
+}
+
+/** The sites inside a box (a map's view), on the lat/lon index, at most `limit`; `more` when others lie there too. */
+export function sitesInBox(
+  db: Db,
+  box: Box,
+  limit = SITES_IN_VIEW_LIMIT,
+): { sites: Omit<SiteHit, "distanceKm">[]; more: boolean } {
+  const lonClause = box.west <= box.east ? "longitude between ? and ?" : "(longitude >= ? or longitude <= ?)";
+  const rows = db.$client
+    .prepare(`select id, name, latitude, longitude from sites where latitude between ? and ? and ${lonClause} limit ?`)
+    .all(box.south, box.north, box.west, box.east, limit + 1) as Omit<SiteHit, "distanceKm">[];
+  return { sites: rows.slice(0, limit), more: rows.length > limit };
+}
+
 function nearestSites(db: Db, point: { latitude: number; longitude: number }, limit: number): SiteHit[] {
   const stmt = db.$client.prepare(
     "select id, name, latitude, longitude from sites where latitude between ? and ? and longitude between ? and ?",

@@ -21,7 +21,7 @@ export async function loader({ request }: Route.LoaderArgs) {
   const user = await requireRole(request, "contributor");
   const db = getDb();
   const options = formOptions(db);
-  return { options, defaults: newFormDefaults(db, user.id, options.sites.length > 0) };
+  return { options, defaults: newFormDefaults(db, user.id, options.siteArea !== null) };
 }
 
 export async function action({ request }: Route.ActionArgs) {

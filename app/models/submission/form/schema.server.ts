@@ -3,7 +3,7 @@
 
 import { env } from "#app/utils/env.server.ts";
 import type { Db } from "#app/db/client.server.ts";
-import { labs, materials, sites } from "#app/db/schema.ts";
+import { labs, materials } from "#app/db/schema.ts";
 import { calendarOutcome, interpretMeasurement } from "#app/models/calibration/calibrations.server.ts";
 import { listCurves } from "#app/models/calibration/curves.server.ts";
 import { measurementFields, type DeterminationRow as StoredDetermination } from "#app/models/submission/determinations.server.ts";
@@ -42,15 +42,17 @@ export function referenceOptions(db: Db): Pick<FormOptions, "materials" | "curve
   };
 }
 
-/** Everything the form offers: sites to choose from, labs, materials and curves. */
+/** Everything the form offers: the registry's sites in brief (they are searched, never all sent), labs, materials and curves. */
 export function formOptions(db: Db): FormOptions {
-  const siteRows = db
-    .select({ id: sites.id, name: sites.name, latitude: sites.latitude, longitude: sites.longitude })
-    .from(sites)
-    .orderBy(sites.name, sites.id)
-    .all();
+  const area = db.$client
+    .prepare(
+      "select count(*) as count, min(latitude) as south, max(latitude) as north, min(longitude) as west, max(longitude) as east from sites",
+    )
+    .get() as { count: number; south: number | null; north: number | null; west: number | null; east: number | null };
+  const siteArea =
+    area.count > 0 ? { count: area.count, south: area.south!, north: area.north!, west: area.west!, east: area.east! } : null;
   const labRows = db.select({ id: labs.id, name: labs.name, codePrefix: labs.codePrefix }).from(labs).orderBy(labs.name).all();
-  return { sites: siteRows, labs: labRows, ...referenceOptions(db) };
+  return { siteArea, labs: labRows, ...referenceOptions(db) };
 }
 
 /** The server's validation context: the browser's, plus duplicate lab codes and the calendar-age check. */
