@@ -4,6 +4,7 @@ import { defineConfig, type Plugin } from "vite";
 import { originGuard } from "./app/utils/origin-guard.js";
 import { securityHeaders } from "./app/http/security-headers.js";
 import { bodyLimit } from "./app/http/body-limit.js";
+import { workerBundle } from "./app/workers/vite-plugin.ts";
 
 // A build says what a person needs: warnings, and one line per environment with its size and time.
 // Vite's per-file list (one line per asset, ~160 of them) and its progress chatter stay out
@@ -87,6 +88,7 @@ export default defineConfig(({ command }) => ({
     },
     reactRouter(),
     buildSummary(),
+    workerBundle(),
   ],
   build: {
     // Timings of plugins are a note for the bundler's developers, not for a person building the app.

@@ -5,6 +5,7 @@
 // A task that runs past its time limit, or past the thread's memory limit, ends its thread (and with
 // it any open transaction, which SQLite rolls back); the pool starts a fresh one.
 
+import { existsSync } from "node:fs";
 import { MessageChannel } from "node:worker_threads";
 import path from "node:path";
 import { Piscina } from "piscina";
@@ -37,12 +38,24 @@ export class WorkerError extends Error {
 
 const pools = new Map<PoolName, Piscina>();
 
+/**
+ * The file a thread starts from: in production the bundle `vite build` makes (app/workers/vite-plugin.ts),
+ * which needs no TypeScript loader; elsewhere (dev server, tests, scripts) the sources through tsx.
+ */
+export function workerEntry(): { filename: string; name: string } {
+  const bundle = path.resolve(process.cwd(), "build/workers/entry.js");
+  if (process.env.NODE_ENV === "production") {
+    if (existsSync(bundle)) return { filename: bundle, name: "runTask" };
+    console.warn(`${bundle} is missing (run the build); worker threads load the TypeScript sources instead.`);
+  }
+  return { filename: path.resolve(process.cwd(), "app/workers/entry.js"), name: "default" };
+}
+
 function poolFor(name: PoolName, warm = false): Piscina {
   let pool = pools.get(name);
   if (!pool) {
     pool = new Piscina({
-      filename: path.resolve(process.cwd(), "app/workers/entry.js"),
-      name: "default",
+      ...workerEntry(),
       // A warm server keeps one thread per pool ready; elsewhere (tests, scripts) threads come and go.
       minThreads: warm ? 1 : 0,
       maxThreads: 1,

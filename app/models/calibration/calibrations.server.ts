@@ -288,7 +288,8 @@ export function calibrateDeterminations(db: Db, ids: number[]): { calibrated: nu
     }
   };
   if (sqlite.inTransaction) run();
-  else sqlite.transaction(run)();
+  // Immediate: a transaction that reads before it writes fails outright if another connection wrote meanwhile.
+  else sqlite.transaction(run).immediate();
   return { calibrated, failed };
 }
 

@@ -41,11 +41,13 @@ export const recalibrateJob: JobHandler<RecalibrateParams> = async (ctx) => {
   let calibrated = 0;
   let failed = 0;
   await ctx.inChunks(ids, params.chunkSize ?? RECALIBRATION_CHUNK, (chunk) =>
-    db.$client.transaction(() => {
-      const r = calibrateDeterminations(db, chunk);
-      calibrated += r.calibrated;
-      failed += r.failed;
-    })(),
+    db.$client
+      .transaction(() => {
+        const r = calibrateDeterminations(db, chunk);
+        calibrated += r.calibrated;
+        failed += r.failed;
+      })
+      .immediate(),
   );
   audit(db, {
     actorId: ctx.actorId,

@@ -37,7 +37,8 @@ export function storeCheckResults(db: Db, results: Map<number, CheckResult[]>): 
     }
   };
   if (sqlite.inTransaction) write();
-  else sqlite.transaction(write)();
+  // Immediate: a transaction that reads before it writes fails outright if another connection wrote meanwhile.
+  else sqlite.transaction(write).immediate();
   return { determinations: results.size, bySeverity };
 }
 

@@ -26,6 +26,14 @@ export class CommitRefused extends Error {
 
 export type CommitMode = "all" | "valid_only";
 
+/**
+ * Commits take the write lock when they begin (BEGIN IMMEDIATE). A deferred transaction reads first
+ * and asks for the lock at its first write; if the server's thread wrote anything meanwhile (a
+ * session, a rate-limit counter), SQLite refuses that upgrade at once ("database is locked",
+ * SQLITE_BUSY_SNAPSHOT: no wait helps), and the whole commit failed.
+ */
+const IMMEDIATE = { behavior: "immediate" } as const;
+
 export type CommitOptions = {
   /** Called after each determination is written; a test throws here to prove the rollback. */
   afterRow?: (i: number) => void;
@@ -140,7 +148,7 @@ export function commitUpload(
       ip: options.ip,
     });
     return result;
-  });
+  }, IMMEDIATE);
 }
 
 /** A problem or warning of one item sent to the API: index from 0, row from 1. */
@@ -227,5 +235,5 @@ export function submitJsonRows(
       ip: options.ip,
     });
     return { ok: true as const, determinationIds: result.determinationIds, warnings };
-  });
+  }, IMMEDIATE);
 }
