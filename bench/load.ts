@@ -1,10 +1,14 @@
 // The load section of `npm run bench`: the production server under bounded traffic on 127.0.0.1
-// (autocannon, 50 connections for 20 s per target), then the same while 5,000-row uploads are
-// committed back to back in the background. Standalone: `tsx bench/load.ts [--db file] [--port n]
+// (autocannon, 50 connections for 20 s per target: Explore, the map data, the determinations API,
+// a constraint selection's CSV and, when there is a release, its CSV), then the same while 5,000-row
+// uploads are committed back to back in the background. Each row reports wall time beside the CPU
+// time of the server and of this process. BENCH_LOAD_ONLY=csv,explore measures only targets whose
+// names contain one of those words. Standalone: `tsx bench/load.ts [--db file] [--port n]
 // [--seconds n]` against an existing database (set up and seeded); `bench/run.ts` calls it on its own.
 import { spawn, spawnSync, type ChildProcess } from "node:child_process";
 import fs from "node:fs";
 import net from "node:net";
+import os from "node:os";
 import path from "node:path";
 import autocannon from "autocannon";
 import type { BenchSection } from "./support.ts";
@@ -21,6 +25,14 @@ export type LoadRow = {
   kbPerAnswer: number;
   /** Server process CPU time (user + system) per answer: less sensitive to other load on the machine. */
   cpuMsPerAnswer: number;
+  /** Wall time of the measurement, s. */
+  wallS: number;
+  /** CPU time of the server process (its worker threads included) during it, s. */
+  serverCpuS: number;
+  /** CPU time of this process (the load generator) during it, s: it shares the machine's cores with the server. */
+  benchCpuS: number;
+  /** The machine's 1-minute load average at the end (other work on the shared machine). */
+  loadAvg: number;
 };
 
 type Target = { name: string; path: string; headers: Record<string, string> };
@@ -175,6 +187,8 @@ function cpuMs(pid: number | undefined): number {
 
 async function hit(base: string, t: Target, seconds: number, connections: number, pid?: number) {
   const cpuBefore = cpuMs(pid);
+  const benchCpu = process.cpuUsage();
+  const wallStart = performance.now();
   const times: number[] = [];
   const instance = autocannon({
     url: `${base}${t.path}`,
@@ -184,6 +198,9 @@ async function hit(base: string, t: Target, seconds: number, connections: number
   }) as unknown as Promise<autocannon.Result> & { on: (event: "response", fn: (...args: never[]) => void) => void };
   instance.on("response", (_client: unknown, _status: number, _bytes: number, ms: number) => times.push(ms));
   const result = await instance;
+  const wallS = (performance.now() - wallStart) / 1000;
+  const bench = process.cpuUsage(benchCpu);
+  const serverCpu = cpuMs(pid) - cpuBefore;
   times.sort((a, b) => a - b);
   const round = (x: number) => Math.round(x);
   return {
@@ -194,7 +211,11 @@ async function hit(base: string, t: Target, seconds: number, connections: number
     errors: result.errors + result.timeouts,
     non2xx: result.non2xx,
     kbPerAnswer: result.requests.total ? result.throughput.total / result.requests.total / 1024 : 0,
-    cpuMsPerAnswer: result.requests.total ? (cpuMs(pid) - cpuBefore) / result.requests.total : NaN,
+    cpuMsPerAnswer: result.requests.total ? serverCpu / result.requests.total : NaN,
+    wallS,
+    serverCpuS: serverCpu / 1000,
+    benchCpuS: (bench.user + bench.system) / 1e6,
+    loadAvg: os.loadavg()[0]!,
   };
 }
 
@@ -216,8 +237,10 @@ async function credentials(dbFile: string) {
     name: string;
     prefix: string;
   };
+  // The newest release, when the database has one: its CSV is the release download of the load table.
+  const release = db.$client.prepare("select slug from releases order by id desc limit 1").get() as { slug: string } | undefined;
   db.$client.pragma("wal_checkpoint(TRUNCATE)");
-  return { cookie: session.cookie.split(";")[0]!, modellerToken, contributorToken, lab };
+  return { cookie: session.cookie.split(";")[0]!, modellerToken, contributorToken, lab, releaseSlug: release?.slug };
 }
 
 export async function runLoadBench(options: Options): Promise<LoadRow[]> {
@@ -237,13 +260,30 @@ export async function runLoadBench(options: Options): Promise<LoadRow[]> {
       path: "/api/v1/determinations",
       headers: { Authorization: `Bearer ${creds.modellerToken}` },
     },
+    {
+      // A modeller's download of a constraint selection: the default selection (graded 2 or 3) as CSV.
+      name: "constraint selection CSV /api/v1/constraints?format=csv",
+      path: "/api/v1/constraints?format=csv",
+      headers: { Authorization: `Bearer ${creds.modellerToken}` },
+    },
+    ...(creds.releaseSlug
+      ? [
+          {
+            name: `release download CSV /api/v1/releases/{slug}?format=csv`,
+            path: `/api/v1/releases/${creds.releaseSlug}?format=csv`,
+            headers: {},
+          },
+        ]
+      : []),
   ];
+  const only = process.env.BENCH_LOAD_ONLY?.split(",").map((x) => x.trim().toLowerCase());
+  const chosen = only ? targets.filter((t) => only.some((o) => t.name.toLowerCase().includes(o))) : targets;
   const rows: LoadRow[] = [];
   // Each measurement starts a server on a fresh copy of the database, so the commits of one
   // measurement do not grow the registry the next one reads.
   const work = path.join(path.dirname(options.dbFile), "load-work.db");
   for (const withCommits of [false, true]) {
-    for (const t of targets) {
+    for (const t of chosen) {
       for (const suffix of ["", "-wal", "-shm"]) fs.rmSync(work + suffix, { force: true });
       fs.copyFileSync(options.dbFile, work);
       const log: string[] = [];
@@ -278,13 +318,20 @@ export async function runLoadBench(options: Options): Promise<LoadRow[]> {
 }
 
 export function loadTable(rows: LoadRow[]): string {
-  const head = "| target | background | req/s | p50 ms | p95 ms | p99 ms | errors | non-2xx | KB/answer | server CPU ms/answer |";
-  const line = "|---|---|---:|---:|---:|---:|---:|---:|---:|---:|";
+  const head =
+    "| target | background | req/s | p50 ms | p95 ms | p99 ms | errors | non-2xx | KB/answer | server CPU ms/answer | wall s | server CPU s | bench CPU s | load avg |";
+  const line = "|---|---|---:|---:|---:|---:|---:|---:|---:|---:|---:|---:|---:|---:|";
   const body = rows.map(
     (r) =>
-      `| ${r.target} | ${r.background} | ${r.reqPerSec.toFixed(0)} | ${r.p50} | ${r.p95} | ${r.p99} | ${r.errors} | ${r.non2xx} | ${r.kbPerAnswer.toFixed(1)} | ${r.cpuMsPerAnswer.toFixed(1)} |`,
+      `| ${r.target} | ${r.background} | ${r.reqPerSec.toFixed(0)} | ${r.p50} | ${r.p95} | ${r.p99} | ${r.errors} | ${r.non2xx} | ${r.kbPerAnswer.toFixed(1)} | ${r.cpuMsPerAnswer.toFixed(1)} | ${r.wallS.toFixed(1)} | ${r.serverCpuS.toFixed(1)} | ${r.benchCpuS.toFixed(1)} | ${r.loadAvg.toFixed(1)} |`,
   );
-  return [head, line, ...body].join("\n");
+  return [
+    head,
+    line,
+    ...body,
+    "",
+    `Wall time beside CPU time: server CPU s / wall s is the share of a core the server got; the machine has ${os.cpus().length} cores, and the load average says how many other processes wanted them.`,
+  ].join("\n");
 }
 
 if (import.meta.url === `file://${process.argv[1]}`) {
@@ -307,7 +354,8 @@ let lastRows: LoadRow[] = [];
 
 export const bench: BenchSection = {
   name: "load",
-  about: "50 connections × 20 s against Explore, the map data and the determinations API, idle and during 5,000-row commits",
+  about:
+    "50 connections × 20 s against Explore, the map data, the determinations API and the constraint and release CSV downloads, idle and during 5,000-row commits",
   async run({ db, dbFile }) {
     console.log("Load: 50 connections × 20 s per target, idle and during 5,000-row commits…");
     db.$client.pragma("wal_checkpoint(TRUNCATE)");
