@@ -11,6 +11,8 @@ import { selectConstraints, selectionResponse } from "#app/models/releases/selec
 import { selectionItems } from "#app/models/releases/selection.server.ts";
 import { parseConstraintFilter, type ConstraintFilter } from "#app/utils/constraint-filter.ts";
 import { seedDemo } from "#seed/seed.server.ts";
+import * as summaryRoute from "#app/routes/resources/constraints-summary.ts";
+import { args, get, personWithSession, run } from "#tests/support/auth.ts";
 import { createTestUser } from "#tests/factories.ts";
 
 /*
@@ -29,11 +31,13 @@ function filter(query: string): ConstraintFilter {
 
 const bytes = async (r: Response) => new Uint8Array(await r.arrayBuffer());
 let releaseId = 0;
+let modellerCookie = "";
 
 seedForFile(async () => {
   const db = getDb();
   await seedDemo(db, { size: "small" });
   const editor = createTestUser(db, ["editor"]);
+  modellerCookie = (await personWithSession(["modeller"])).cookie;
   releaseId = publishRelease(db, {
     name: "Streaming test",
     version: "1",
@@ -106,5 +110,19 @@ describe("constraint downloads read as they are written", () => {
     const items = (JSON.parse(new TextDecoder().decode(warm)) as { constraints: { density: unknown }[] }).constraints;
     expect(items).toHaveLength(release.itemCount);
     expect(items.every((i) => i.density != null)).toBe(true);
+  });
+
+  it("the page's live count answers React Router's data request, which adds _routes to the address", async () => {
+    const out = await run(() =>
+      summaryRoute.loader(
+        args(
+          get("/constraints/summary.data?min_grade=2&_routes=routes%2Fresources%2Fconstraints-summary", {
+            cookie: modellerCookie,
+          }),
+        ),
+      ),
+    );
+    expect(out.status).toBe(200);
+    expect((out.data as { count: number }).count).toBe(selectionIds(getDb(), filter("min_grade=2")).length);
   });
 });

@@ -13,6 +13,9 @@ export async function loader({ request }: Route.LoaderArgs) {
   const params = normaliseFormParams(new URL(request.url).searchParams);
   const countOnly = params.get("count_only") === "1";
   params.delete("count_only");
+  // The page's fetcher asks through React Router's data request, which names the route it wants in
+  // `_routes`; that is not part of the filter.
+  params.delete("_routes");
   const parsed = parseConstraintFilter(params);
   if (!parsed.ok) return json({ errors: parsed.errors }, { status: 400 });
   const db = getDb();
