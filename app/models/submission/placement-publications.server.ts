@@ -69,7 +69,7 @@ export class PublicationPlanner {
       if (citation && !sameWork(stored, citation)) {
         warnings.push({
           column: "pub_title",
-          message: `The registry already has ${doi} as “${stored.citation}”; the citation given here is not used (an editor can correct a stored citation).`,
+          message: `The registry already has ${doi} as “${stored.citation}”; the citation given here is not used.`,
         });
       }
       return { publication: stored };
