@@ -34,8 +34,9 @@ export async function action({ request }: Route.ActionArgs) {
       { status: 429, headers: { "Retry-After": String(limited.retryAfterS) } },
     );
   }
-  const answer = answerPageForm(getDb(), await receivePageForm(request));
-  return data({ answer, message: null as string | null }, { status: answer.problem ? 400 : 200 });
+  const address = clientAddress(request);
+  const answer = await answerPageForm(getDb(), await receivePageForm(request), { address });
+  return data({ answer, message: null as string | null }, { status: answer.status });
 }
 
 /** The answer of a post without script as the live calibration's first state, so nothing is calibrated twice. */

@@ -4,7 +4,9 @@
 // a paste in the browser; the server reads the same way for the page without script).
 
 import Papa from "papaparse";
+import { groupThousands } from "#app/science/calendar.ts";
 import { interpretRadiocarbon } from "#app/science/radiocarbon.ts";
+import { MAX_SIGMA_YR } from "#app/utils/calibrate-limits.ts";
 import { formatValueError } from "#app/utils/age-format.ts";
 import type { CalibrationItem } from "#app/utils/calibrate-input.ts";
 import { isBlankCell, readChoice, readIdentifier, readNumber, readYesNo } from "#app/utils/determination-input/cells.ts";
@@ -248,6 +250,12 @@ function readRow(n: number, raw: Partial<Record<SheetColumn, SheetCell>>, ctx: R
     problems.push({ column: "f14c_error", message: "f14c_error must be more than 0." });
   if (deltaRError !== undefined && deltaRError < 0)
     problems.push({ column: "delta_r_error", message: "delta_r_error must be 0 or more." });
+  for (const [column, sigma] of [
+    ["c14_error", error],
+    ["delta_r_error", deltaRError],
+  ] as const) {
+    if (sigma !== undefined && sigma > MAX_SIGMA_YR) problems.push({ column, message: tooUncertain(column, sigma) });
+  }
 
   const curve = (curveText ?? ctx.curve).toLowerCase();
   const marine = ctx.kindOf.get(curve) === "marine";
@@ -275,6 +283,9 @@ function readRow(n: number, raw: Partial<Record<SheetColumn, SheetCell>>, ctx: R
           : "f14c";
     return { row: n, label, problems: [{ column, message: interpreted.message }] };
   }
+  if (interpreted.error > MAX_SIGMA_YR) {
+    return { row: n, label, problems: [{ column: "f14c_error", message: tooUncertain("the age's error", interpreted.error) }] };
+  }
   const item: CalibrationItem = { id: label, c14_age: interpreted.age, c14_error: interpreted.error, curve };
   // The row's own ΔR, else the page's ΔR for rows on the page's curve.
   const ownCurve = curveText === undefined || curve === ctx.curve.toLowerCase();
@@ -288,6 +299,11 @@ function readRow(n: number, raw: Partial<Record<SheetColumn, SheetCell>>, ctx: R
       ? `Normalised to δ¹³C −25 ‰ (${interpreted.correctionYears >= 0 ? "+" : "−"}${Math.abs(Math.round(interpreted.correctionYears))} ¹⁴C yr).`
       : undefined;
   return { row: n, label, item, problems: [], ...(note ? { note } : {}) };
+}
+
+/** The calibration API's bound on a 1σ (utils/calibrate-limits.ts), in the page's words. */
+function tooUncertain(what: string, sigma: number): string {
+  return `${what} ${groupThousands(Math.round(sigma))} is more than the ${groupThousands(MAX_SIGMA_YR)} ¹⁴C yr taken here; an age this uncertain spans the whole curve.`;
 }
 
 /** The sheet's columns in the template's words, for the page's help text. */
@@ -333,6 +349,9 @@ export function readOneAge(
   const deltaRError = marine ? number("delta_r_error", "delta_r_error", input.deltaRError) : undefined;
   if (deltaRError !== undefined && deltaRError < 0)
     problems.push({ field: "delta_r_error", message: "The ΔR error must be 0 or more." });
+  if (error !== undefined && error > MAX_SIGMA_YR) problems.push({ field: "error", message: tooUncertain("The error", error) });
+  if (deltaRError !== undefined && deltaRError > MAX_SIGMA_YR)
+    problems.push({ field: "delta_r_error", message: tooUncertain("The ΔR error", deltaRError) });
   if (problems.length) return { problems };
   const item: CalibrationItem = { id: "1", c14_age: age!, c14_error: error!, curve };
   if (deltaR !== undefined) item.delta_r = deltaR;

@@ -55,6 +55,11 @@ const tasks = {
       warnings: validation.warnings,
     };
   },
+  /** A slice of the calibration page's sheet: summaries with sparklines (see calibrate-page.server.ts); nothing stored. */
+  async calibrateForPage(db: Db, p: { items: unknown[] }) {
+    const { calibrateForPage } = await import("#app/models/calibration/calibrate-page.server.ts");
+    return calibrateForPage(db, p.items);
+  },
   /** Reads a spreadsheet file with the reader's limits into its header and rows; stores nothing (calibration page). */
   async readSheet(_db: Db | null, p: { path: string; fileName: string }) {
     const { readFile } = await import("node:fs/promises");

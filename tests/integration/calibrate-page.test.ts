@@ -5,6 +5,10 @@ import { action as pageAction, loader as pageLoader } from "#app/routes/calibrat
 import { action as batchAction } from "#app/routes/resources/calibrate-batch.ts";
 import { action as csvAction } from "#app/routes/resources/calibrate-csv.ts";
 import { action as fileAction } from "#app/routes/resources/calibrate-file.ts";
+import { getDb } from "#app/db/client.server.ts";
+import { calibrateForPage } from "#app/models/calibration/calibrate-page.server.ts";
+import { CALIBRATE_WORK_BUDGET } from "#app/utils/calibrate-limits.ts";
+import { spend } from "#app/utils/rate-limit.server.ts";
 import { args, run } from "#tests/support/auth.ts";
 import { toCsvText, toXlsx, uploadRows } from "#tests/support/upload-files.ts";
 import { emptyRowsXlsx } from "#tests/support/xlsx-bombs.ts";
@@ -130,6 +134,20 @@ describe("the calibration page without script", () => {
     expect(answer.problem).toMatch(/at most 1,000 rows.*this sheet has 1,001/);
   });
 
+  test("a long sheet is calibrated off the request thread with the same results", async () => {
+    const lines = Array.from({ length: 700 }, (_, i) => `Z-${i}\t${3000 + i * 10}\t40`);
+    const { status, answer } = await page({
+      ...ONE,
+      mode: "sheet",
+      sheet: ["lab_code\tc14_age\tc14_error", ...lines].join("\n"),
+    });
+    expect(status).toBe(200);
+    expect(answer.rows.filter((r) => r.result)).toHaveLength(700);
+    const here = calibrateForPage(getDb(), [answer.rows[350]!.item!]).results[0] as { median_cal_bp: number; hpd95: unknown };
+    expect(answer.rows[350]!.result!.median_cal_bp).toBe(here.median_cal_bp);
+    expect(answer.rows[350]!.result!.hpd95).toEqual(here.hpd95);
+  });
+
   test("the CSV download answers the same form with every row, formula-like text neutralised", async () => {
     const sheet = ["lab_code\tc14_age\tc14_error", "=cmd|'/c calc'!A1\t10250\t45", "XMPL-2\tnope\t30"].join("\n");
     const res = (await csvAction(args(form("/calibrate/results.csv", { ...ONE, mode: "sheet", sheet })))) as Response;
@@ -173,6 +191,22 @@ describe("the page's script calibrating a sheet in slices", () => {
     const body = data as { results: { median_cal_bp: number; hpd95: unknown }[]; plot: PageAnswer["plot"] };
     expect(body.plot!.calibration.medianCalBp).toBe(body.results[0]!.median_cal_bp);
     expect(body.plot!.calibration.hpd95).toEqual(body.results[0]!.hpd95);
+  });
+
+  test("the page's work budget is its own and, once spent, the next slice is a 429 with Retry-After", async () => {
+    // A slice of wide ages (about 4,000,000 units), far more than the budget refills in a moment.
+    const request = json("/calibrate/batch", { items: new Array(100).fill({ ...A1, c14_error: 4000 }) });
+    const address = request.headers.get("X-Thawline-Client")!;
+    spend(
+      `page.calibrate.work:${address}`,
+      CALIBRATE_WORK_BUDGET.capacity,
+      CALIBRATE_WORK_BUDGET.capacity,
+      CALIBRATE_WORK_BUDGET.refillMs,
+    );
+    const { status, data, headers } = await run(() => batchAction(args(request)));
+    expect(status).toBe(429);
+    expect(Number(headers.get("Retry-After"))).toBeGreaterThan(0);
+    expect((data as { error: string }).error).toMatch(/Too much calibration from this address/);
   });
 
   test("too many items, none, or not JSON is a 400", async () => {

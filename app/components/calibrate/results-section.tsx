@@ -138,7 +138,12 @@ export function ResultsSection(props: {
       {props.plot ? (
         <section aria-labelledby="plot-heading" className="space-y-3">
           <h2 id="plot-heading">{props.plotLabel ? `Plot: ${props.plotLabel}` : "Plot"}</h2>
-          <CalibrationPlot {...props.plot} scale={scale} heading={props.plotLabel ?? undefined} />
+          {/* On a phone the plot keeps a width its axis text can be read at, and scrolls sideways. */}
+          <div className="overflow-x-auto">
+            <div className="min-w-[620px]">
+              <CalibrationPlot {...props.plot} scale={scale} heading={props.plotLabel ?? undefined} />
+            </div>
+          </div>
         </section>
       ) : null}
     </section>

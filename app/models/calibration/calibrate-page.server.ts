@@ -3,7 +3,11 @@ import { calibrateItems } from "#app/models/calibration/calibrate-items.server.t
 import { plotForItem, type CalibrationPlotData } from "#app/models/calibration/calibration-plot.server.ts";
 import { listCurves } from "#app/models/calibration/curves.server.ts";
 import { FileIntakeError, type ReceivedFile, withReceivedFiles } from "#app/models/files/intake.server.ts";
-import { runInWorker, TaskStopped, WorkerError } from "#app/workers/pool.server.ts";
+import { planCalibration } from "#app/models/calibration/calibrate-work.server.ts";
+import { groupThousands } from "#app/science/calendar.ts";
+import { CALIBRATE_WORK_BUDGET, MAX_REQUEST_WORK, OFF_THREAD_WORK } from "#app/utils/calibrate-limits.ts";
+import { spend } from "#app/utils/rate-limit.server.ts";
+import { databaseFileOf, runInWorker, TaskStopped, WorkerError } from "#app/workers/pool.server.ts";
 import { isCalibrated, type CalibrationItem } from "#app/utils/calibrate-input.ts";
 import { MAX_SHEET_CHARS, pageFormFrom, readPageForm, EMPTY_FORM, type PageForm } from "#app/utils/calibrate-page-form.ts";
 import {
@@ -51,6 +55,49 @@ export function calibrateForPage(db: Db, items: unknown[]): { curves: CurvesUsed
       return { id: r.id, median_cal_bp: r.median_cal_bp, hpd68: r.hpd68, hpd95: r.hpd95, spark };
     }),
   };
+}
+
+export type WorkRefused = { status: 400 | 413 | 429; message: string; retryAfterS?: number };
+
+/**
+ * The work of calibrating these items for the page, counted as the API counts it (items × the
+ * calendar span each calibrates over; utils/calibrate-limits.ts) before any of it is done, and
+ * spent from the address's own budget for the page, which holds as much as the API's.
+ */
+export function spendPageWork(db: Db, items: unknown[], address: string): { work: number } | WorkRefused {
+  const plan = planCalibration(db, items);
+  if (plan.problems.length > 0) return { status: 400, message: plan.problems.map((p) => p.message).join(" ") };
+  if (plan.work > MAX_REQUEST_WORK) {
+    return {
+      status: 413,
+      message: `These ages are too much work to calibrate at once (${groupThousands(plan.work)} units; at most ${groupThousands(MAX_REQUEST_WORK)}). Split the sheet.`,
+    };
+  }
+  const budget = spend(
+    `page.calibrate.work:${address}`,
+    plan.work,
+    CALIBRATE_WORK_BUDGET.capacity,
+    CALIBRATE_WORK_BUDGET.refillMs,
+  );
+  if (!budget.allowed) {
+    return {
+      status: 429,
+      message: `Too much calibration from this address in the last minute; try again in ${budget.retryAfterS} s.`,
+      retryAfterS: budget.retryAfterS,
+    };
+  }
+  return { work: plan.work };
+}
+
+/** calibrateForPage, in the intake thread when the work is large, so the server keeps answering meanwhile. */
+export async function calibrateForPageAnywhere(
+  db: Db,
+  items: unknown[],
+  work: number,
+): Promise<{ curves: CurvesUsed; results: PageResult[] }> {
+  const dbFile = databaseFileOf(db);
+  if (work <= OFF_THREAD_WORK || !dbFile) return calibrateForPage(db, items);
+  return runInWorker("intake", "calibrateForPage", dbFile, { items }, { timeoutMs: 60_000 });
 }
 
 /**
@@ -167,10 +214,19 @@ export type PageAnswer = {
   plotRow: number | null;
   fileNote: string | null;
   problem: string | null;
+  /** The HTTP status to answer with (400, 413 or 429 with a problem). */
+  status: number;
 };
 
-/** Calibrates what the posted form asks (at most NO_SCRIPT_MAX_ROWS rows) and draws one row's plot. */
-export function answerPageForm(db: Db, received: ReceivedPageForm, options: { plot?: boolean } = {}): PageAnswer {
+/**
+ * Calibrates what the posted form asks (at most NO_SCRIPT_MAX_ROWS rows, the work spent from the
+ * address's budget) and draws one row's plot.
+ */
+export async function answerPageForm(
+  db: Db,
+  received: ReceivedPageForm,
+  options: { plot?: boolean; address: string },
+): Promise<PageAnswer> {
   const { form, plotRow, fileNote } = received;
   const reading = readPageForm(form, pageCurves(db));
   const base = {
@@ -180,23 +236,29 @@ export function answerPageForm(db: Db, received: ReceivedPageForm, options: { pl
     fileNote,
   };
   const items = reading.rows.flatMap((r) => (r.item ? [r.item] : []));
-  if (received.problem || items.length > NO_SCRIPT_MAX_ROWS) {
-    return {
-      ...base,
-      rows: received.problem ? [] : reading.rows,
-      curves: {},
-      plot: null,
-      plotRow: null,
-      problem:
-        received.problem ??
-        `Without script the page calibrates at most ${NO_SCRIPT_MAX_ROWS.toLocaleString("en")} rows at a time; this sheet has ${items.length.toLocaleString("en")}. Split it, or turn on JavaScript.`,
-    };
+  const refuse = (status: number, problem: string): PageAnswer => ({
+    ...base,
+    rows: received.problem ? [] : reading.rows,
+    curves: {},
+    plot: null,
+    plotRow: null,
+    problem,
+    status,
+  });
+  if (received.problem) return refuse(400, received.problem);
+  if (items.length > NO_SCRIPT_MAX_ROWS) {
+    return refuse(
+      400,
+      `Without script the page calibrates at most ${NO_SCRIPT_MAX_ROWS.toLocaleString("en")} rows at a time; this sheet has ${items.length.toLocaleString("en")}. Split it, or turn on JavaScript.`,
+    );
   }
-  const { curves, results } = calibrateForPage(db, items);
+  const spent = items.length ? spendPageWork(db, items, options.address) : { work: 0 };
+  if ("message" in spent) return refuse(spent.status, spent.message);
+  const { curves, results } = await calibrateForPageAnywhere(db, items, spent.work);
   const rows = joinResults(reading.rows, results);
   const chosen = rows.find((r) => r.row === plotRow && r.result) ?? rows.find((r) => r.result);
   const plot = options.plot !== false && chosen?.item && chosen.result ? plotForPage(db, chosen.item, chosen.result) : null;
-  return { ...base, rows, curves, plot, plotRow: plot ? chosen!.row : null, problem: null };
+  return { ...base, rows, curves, plot, plotRow: plot ? chosen!.row : null, problem: null, status: 200 };
 }
 
 function withoutRows(sheet: ReadSheet): Omit<ReadSheet, "rows"> {

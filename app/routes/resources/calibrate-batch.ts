@@ -2,7 +2,12 @@ import type { Route } from "./+types/calibrate-batch";
 import { clientAddress } from "#app/auth/session.server.ts";
 import { getDb } from "#app/db/client.server.ts";
 import { calibrationItemSchema } from "#app/models/calibration/calibrate-items.server.ts";
-import { calibrateForPage, PAGE_BATCH_ITEMS, plotForPage } from "#app/models/calibration/calibrate-page.server.ts";
+import {
+  calibrateForPageAnywhere,
+  PAGE_BATCH_ITEMS,
+  plotForPage,
+  spendPageWork,
+} from "#app/models/calibration/calibrate-page.server.ts";
 import type { CalibrationItem } from "#app/utils/calibrate-input.ts";
 import { json } from "#app/utils/http.server.ts";
 import { hit } from "#app/utils/rate-limit.server.ts";
@@ -21,8 +26,9 @@ export async function loader(_: Route.LoaderArgs) {
 const SLICES_PER_MINUTE = 120;
 
 export async function action({ request }: Route.ActionArgs) {
-  // Public route: the access check is the per-address rate limit.
-  const limited = hit(`page.calibrate-batch:${clientAddress(request)}`, SLICES_PER_MINUTE, 60_000);
+  // Public route: the access check is the per-address rate limit (requests, then work).
+  const address = clientAddress(request);
+  const limited = hit(`page.calibrate-batch:${address}`, SLICES_PER_MINUTE, 60_000);
   if (!limited.allowed) {
     return json(
       { error: `Too many requests; try again in ${limited.retryAfterS} s.` },
@@ -40,7 +46,12 @@ export async function action({ request }: Route.ActionArgs) {
     return json({ error: `Send 1 to ${PAGE_BATCH_ITEMS} items at a time.` }, { status: 400 });
   }
   const db = getDb();
-  const answer = calibrateForPage(db, items);
+  const spent = spendPageWork(db, items, address);
+  if ("message" in spent) {
+    const headers = spent.retryAfterS ? { "Retry-After": String(spent.retryAfterS) } : undefined;
+    return json({ error: spent.message }, { status: spent.status, headers });
+  }
+  const answer = await calibrateForPageAnywhere(db, items, spent.work);
   if (plot === true && items.length === 1) {
     const first = answer.results[0];
     const parsed = calibrationItemSchema.safeParse(items[0]);

@@ -25,9 +25,12 @@ export async function action({ request }: Route.ActionArgs) {
       headers: { "Retry-After": String(limited.retryAfterS), "Content-Type": "text/plain; charset=utf-8" },
     });
   }
-  const answer = answerPageForm(getDb(), await receivePageForm(request), { plot: false });
+  const answer = await answerPageForm(getDb(), await receivePageForm(request), {
+    plot: false,
+    address: clientAddress(request),
+  });
   if (answer.problem) {
-    return new Response(answer.problem, { status: 400, headers: { "Content-Type": "text/plain; charset=utf-8" } });
+    return new Response(answer.problem, { status: answer.status, headers: { "Content-Type": "text/plain; charset=utf-8" } });
   }
   return new Response(resultsCsv(answer.rows, answer.curves, answer.form.scale), {
     headers: {

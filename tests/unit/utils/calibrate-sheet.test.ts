@@ -126,6 +126,21 @@ describe("a pasted sheet in the template's columns", () => {
     expect(lum!.problems).toEqual([{ column: "method", message: expect.stringMatching(/radiocarbon ages only/) }]);
   });
 
+  test("an error beyond the 5,000 ¹⁴C yr the calibration takes is named at its cell", () => {
+    const sheet = read(
+      "lab_code\tc14_age\tc14_error\tcurve\tdelta_r\tdelta_r_error\nA\t30000\t6000\nB\t9000\t50\tmarine20\t0\t5001",
+    );
+    expect(sheet.rows.map((r) => r.problems)).toEqual([
+      [
+        {
+          column: "c14_error",
+          message: "c14_error 6,000 is more than the 5,000 ¹⁴C yr taken here; an age this uncertain spans the whole curve.",
+        },
+      ],
+      [{ column: "delta_r_error", message: expect.stringMatching(/^delta_r_error 5,001 is more than/) }],
+    ]);
+  });
+
   test("a header without an age column, and a sheet longer than the limit, are refused as a whole", () => {
     expect(read("lab_code\tsite_name\nA\tB").problems[0]).toMatch(/names no c14_age/);
     const long = ["lab_code\tc14_age\tc14_error", ...Array.from({ length: MAX_SHEET_ROWS + 1 }, (_, i) => `A${i}\t1000\t30`)];
