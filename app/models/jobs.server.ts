@@ -45,6 +45,8 @@ export type JobHandler<P> = (ctx: JobContext<P>) => Promise<string> | string;
 export type JobSpec<P extends Record<string, unknown>> = { kind: JobKind; total: number; params: P; actorId: number | null };
 
 const running = new Map<number, Promise<void>>();
+/** Progress of tracked jobs whose work holds an open transaction elsewhere: kept here, where pages read it. */
+const live = new Map<number, { progress: number; message?: string }>();
 const nextTick = () => new Promise<void>((resolve) => setImmediate(resolve));
 
 /** Records a job and starts it in the background; returns at once with its id. */
@@ -129,6 +131,54 @@ export async function runJobHere<P extends Record<string, unknown>>(
   }
 }
 
+/**
+ * A job whose work runs elsewhere as one transaction (an upload commit in the writer thread). Its row
+ * is written before and after; progress in between is kept in this process (no other connection can
+ * read a row written inside that transaction) and shown through getJob. Resolves with the work's
+ * result; a throw marks the job failed with the error's message and is thrown again.
+ */
+export async function runTrackedJob<T>(
+  db: Db,
+  spec: { kind: string; total: number; params: Record<string, unknown>; actorId: number | null },
+  work: (report: (done: number, message?: string) => void) => Promise<T>,
+  describe: (result: T) => string,
+): Promise<T> {
+  const job = db
+    .insert(jobs)
+    .values({ kind: spec.kind, status: "running", progress: 0, total: spec.total, params: spec.params, createdBy: spec.actorId })
+    .returning({ id: jobs.id })
+    .get();
+  let settle!: () => void;
+  running.set(job.id, new Promise<void>((resolve) => (settle = resolve)));
+  live.set(job.id, { progress: 0 });
+  try {
+    const result = await work((done, message) => live.set(job.id, { progress: done, message }));
+    db.update(jobs)
+      .set({ status: "done", progress: spec.total, message: describe(result), finishedAt: new Date() })
+      .where(eq(jobs.id, job.id))
+      .run();
+    return result;
+  } catch (error) {
+    const message = error instanceof Error ? error.message : String(error);
+    db.update(jobs).set({ status: "failed", message, finishedAt: new Date() }).where(eq(jobs.id, job.id)).run();
+    throw error;
+  } finally {
+    live.delete(job.id);
+    running.delete(job.id);
+    settle();
+  }
+}
+
+/** The newest job of `kind` a person started with this ticket (a value their page chose), as getJob shows it. */
+export function jobByTicket(db: Db, kind: string, userId: number, ticket: string): JobView | null {
+  const row = db.$client
+    .prepare(
+      "select id from jobs where kind = ? and created_by = ? and json_extract(params, '$.ticket') = ? order by id desc limit 1",
+    )
+    .get(kind, userId, ticket) as { id: number } | undefined;
+  return row ? getJob(db, row.id) : null;
+}
+
 /** Resolves when a job started in this process has finished (at once if it is not running here). */
 export function jobFinished(jobId: number): Promise<void> {
   return running.get(jobId) ?? Promise.resolve();
@@ -156,6 +206,8 @@ function view(row: JobRow): JobView {
 export function getJob(db: Db, id: number): JobView | null {
   const row = db.select().from(jobs).where(eq(jobs.id, id)).get();
   if (!row) return null;
+  const now = live.get(id);
+  if (now && row.status === "running") return view({ ...row, progress: now.progress, message: now.message ?? row.message });
   if ((row.status === "queued" || row.status === "running") && !running.has(id)) {
     const message = `Interrupted by a server restart after ${row.progress} of ${row.total}; start it again to finish.`;
     db.update(jobs).set({ status: "failed", message, finishedAt: new Date() }).where(eq(jobs.id, id)).run();

@@ -29,7 +29,19 @@ const tasks = {
     const batch = getBatchById(db, p.batchId);
     if (!batch) throw new Error("The upload is gone.");
     progress(0, "Checking the rows again");
-    const result = commitUpload(db, batch, p.mode, { userId: p.userId }, { ip: p.ip });
+    const result = commitUpload(
+      db,
+      batch,
+      p.mode,
+      { userId: p.userId },
+      {
+        ip: p.ip,
+        afterRow: (i) => {
+          if ((i + 1) % 100 === 0) progress(i + 1, "Writing rows");
+        },
+        onPhase: (message, done) => progress(done, message),
+      },
+    );
     return result;
   },
   /** Rows sent as JSON to the API: validated, then written in one transaction or not at all. */

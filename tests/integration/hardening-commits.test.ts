@@ -3,10 +3,12 @@ import { getDb } from "#app/db/client.server.ts";
 import { createToken } from "#app/models/accounts/tokens.server.ts";
 import * as uploadsApi from "#app/routes/api/v1/uploads.ts";
 import * as commitApi from "#app/routes/api/v1/uploads.commit.ts";
+import * as uploadPage from "#app/routes/contribute/upload.tsx";
+import * as jobsResource from "#app/routes/resources/jobs.ts";
 import { hit } from "#app/utils/rate-limit.server.ts";
 import { closeWorkers } from "#app/workers/pool.server.ts";
 import { createTestUser } from "#tests/factories.ts";
-import { args, ORIGIN, run } from "#tests/support/auth.ts";
+import { args, get, ORIGIN, personWithSession, post, run } from "#tests/support/auth.ts";
 import { toCsvText, uploadRows } from "#tests/support/upload-files.ts";
 
 /*
@@ -70,4 +72,57 @@ describe("commits while the server's thread writes", () => {
     expect(count()).toBe(before + 1500);
     expect(writes).toBeGreaterThan(0);
   });
+});
+
+describe("a commit's progress", () => {
+  it(
+    "the upload page's commit writes a job row whose progress the page can follow while it waits",
+    { timeout: 240_000 },
+    async () => {
+      const p = await personWithSession(["contributor"]);
+      const token = createToken(getDb(), p.id, "test", { actorId: p.id }).token;
+      const publicId = await uploaded(1500, "ZC2Q", token);
+      const ticket = "t-0f1e2d";
+      const seen: { status: string; progress: number; total: number; message: string | null }[] = [];
+      let waiting = true;
+      const follow = (async () => {
+        while (waiting) {
+          const res = await run(() =>
+            jobsResource.loader(
+              args(get(`/api/jobs/ticket?kind=upload-commit&ticket=${ticket}`, { cookie: p.cookie }), { id: "ticket" }),
+            ),
+          );
+          if (res.status === 200) seen.push(res.data as (typeof seen)[number]);
+          await new Promise((r) => setTimeout(r, 25));
+        }
+      })();
+      const committed = await run(() =>
+        uploadPage.action(
+          args(post(`/uploads/${publicId}`, { intent: "commit-valid", ticket }, { cookie: p.cookie }), { publicId }),
+        ),
+      ).finally(() => (waiting = false));
+      await follow;
+      expect(committed.status).toBe(302);
+      // While it ran: the job was there, running, with rows written counted before the end.
+      const during = seen.filter((j) => j.status === "running");
+      expect(during.length).toBeGreaterThan(0);
+      expect(during.some((j) => j.progress > 0 && j.progress < 1500 && j.message === "Writing rows")).toBe(true);
+      expect(during.every((j) => j.total === 1500)).toBe(true);
+      // At the end the row says what was done.
+      const done = await run(() =>
+        jobsResource.loader(
+          args(get(`/api/jobs/ticket?kind=upload-commit&ticket=${ticket}`, { cookie: p.cookie }), { id: "ticket" }),
+        ),
+      );
+      expect(done.data).toMatchObject({ status: "done", progress: 1500, message: "Committed 1500 determinations." });
+      // Another person cannot follow it by its ticket.
+      const other = await personWithSession(["contributor"]);
+      const theirs = await run(() =>
+        jobsResource.loader(
+          args(get(`/api/jobs/ticket?kind=upload-commit&ticket=${ticket}`, { cookie: other.cookie }), { id: "ticket" }),
+        ),
+      );
+      expect(theirs.status).toBe(404);
+    },
+  );
 });

@@ -1,4 +1,5 @@
-import { Form, Link, useNavigation } from "react-router";
+import { useEffect } from "react";
+import { Form, Link, useFetcher, useNavigation } from "react-router";
 import type { Route } from "./+types/upload";
 import { clientAddress, requireRole } from "#app/auth/session.server.ts";
 import { ErrorView } from "#app/components/error-view.tsx";
@@ -6,7 +7,8 @@ import { getDb } from "#app/db/client.server.ts";
 import { sendEmail } from "#app/mail/send.server.ts";
 import { uploadReceiptMessage } from "#app/mail/upload-receipt.server.ts";
 import { CommitRefused } from "#app/models/submission/uploads/commit.server.ts";
-import { commitUploadOffThread } from "#app/models/submission/uploads/off-thread.server.ts";
+import { COMMIT_JOB, commitUploadOffThread } from "#app/models/submission/uploads/off-thread.server.ts";
+import type { JobView } from "#app/models/jobs.server.ts";
 import { batchDeterminations, getBatchForUser, remapUpload, sheetOf } from "#app/models/submission/uploads/batches.server.ts";
 import type { ColumnMapping } from "#app/models/submission/uploads/mapping.server.ts";
 import { COLUMNS } from "#app/utils/determination-input/columns.ts";
@@ -55,6 +57,9 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     warningCount: warnings.length,
     columns: COLUMNS.map((c) => ({ name: c.name, label: c.label, unit: c.unit })),
     created: batch.status === "committed" ? batchDeterminations(getDb(), batch.id, SHOWN_CREATED) : null,
+    // Sent with a commit, so the page can follow that commit's job while it waits for the answer.
+    ticket: crypto.randomUUID(),
+    commitJob: COMMIT_JOB,
   };
 }
 
@@ -83,7 +88,8 @@ export async function action({ request, params }: Route.ActionArgs) {
       case "commit-all":
       case "commit-valid": {
         const mode = intent === "commit-all" ? "all" : "valid_only";
-        const result = await commitUploadOffThread(db, batch, mode, { userId: user.id }, { ip: clientAddress(request) });
+        const ticket = String(form.get("ticket") ?? "").slice(0, 64) || undefined;
+        const result = await commitUploadOffThread(db, batch, mode, { userId: user.id }, { ip: clientAddress(request), ticket });
         const base = env().APP_URL ?? new URL(request.url).origin;
         let mailNote = " A receipt is on its way by e-mail.";
         try {
@@ -122,6 +128,7 @@ export default function Upload({ loaderData }: Route.ComponentProps) {
     loaderData;
   const navigation = useNavigation();
   const busy = navigation.state === "submitting";
+  const committing = busy && String(navigation.formData?.get("intent") ?? "").startsWith("commit");
   const parsed = batch.status === "parsed";
   const invalidRows = batch.rowCount - batch.validCount;
   return (
@@ -169,6 +176,7 @@ export default function Upload({ loaderData }: Route.ComponentProps) {
             Counts for the valid rows; every determination is calibrated during the commit.
           </p>
           <Form method="post" className="mt-6 flex flex-wrap items-start gap-4">
+            <input type="hidden" name="ticket" value={loaderData.ticket} />
             <div>
               <button
                 type="submit"
@@ -197,6 +205,7 @@ export default function Upload({ loaderData }: Route.ComponentProps) {
               Commit the {batch.validCount.toLocaleString("en")} valid rows only
             </button>
           </Form>
+          {committing ? <CommitProgress ticket={loaderData.ticket} kind={loaderData.commitJob} /> : null}
         </section>
       ) : null}
 
@@ -379,4 +388,43 @@ function ErrorMessage({ text }: { text: string }) {
 
 export function ErrorBoundary({ error }: Route.ErrorBoundaryProps) {
   return <ErrorView error={error} />;
+}
+
+/**
+ * While a commit runs (the form's request waits for it), its job's progress: rows written, then
+ * calibration and checks. Polls the job the commit's ticket names once a second.
+ */
+function CommitProgress({ ticket, kind }: { ticket: string; kind: string }) {
+  const fetcher = useFetcher<JobView>();
+  useEffect(() => {
+    const url = `/api/jobs/ticket?kind=${encodeURIComponent(kind)}&ticket=${encodeURIComponent(ticket)}`;
+    const timer = setInterval(() => {
+      if (fetcher.state === "idle") void fetcher.load(url);
+    }, 1000);
+    return () => clearInterval(timer);
+    // The ticket is fixed for the page's life; polling restarts only with it.
+    // eslint-disable-next-line react-hooks/exhaustive-deps
+  }, [ticket, kind]);
+  const job = fetcher.data && "status" in fetcher.data ? fetcher.data : null;
+  const pct = job && job.total ? Math.round((job.progress / job.total) * 100) : 0;
+  const text = !job
+    ? "Starting the commit…"
+    : `${job.message ?? "Writing rows"}: ${formatCount(job.progress)} of ${formatCount(job.total)} rows (${pct} %)`;
+  return (
+    <div className="card mt-4 max-w-3xl space-y-2" data-testid="commit-progress">
+      <p className="text-sm" role="status" aria-live="polite">
+        {text}
+      </p>
+      <div
+        role="progressbar"
+        aria-label={`Commit: ${pct} %`}
+        aria-valuemin={0}
+        aria-valuemax={100}
+        aria-valuenow={pct}
+        className="h-2 w-full overflow-hidden rounded bg-ice-100"
+      >
+        <div className="h-full bg-ice-600 transition-[width]" style={{ width: `${pct}%` }} />
+      </div>
+    </div>
+  );
 }

@@ -37,6 +37,8 @@ const IMMEDIATE = { behavior: "immediate" } as const;
 export type CommitOptions = {
   /** Called after each determination is written; a test throws here to prove the rollback. */
   afterRow?: (i: number) => void;
+  /** Told what the commit is doing (rows written so far): progress for a page to show. */
+  onPhase?: (message: string, done: number) => void;
   /** Filled with the milliseconds spent writing rows and calibrating, for the bench. */
   timings?: { insertMs?: number; calibrateMs?: number };
   ip?: string | null;
@@ -87,6 +89,7 @@ function writeRows(
     options.afterRow?.(i);
   });
   const t1 = performance.now();
+  options.onPhase?.(`Calibrating and checking ${ids.length} determinations`, ids.length);
   calibrateDeterminations(db, ids);
   runChecksFor(db, ids);
   const t2 = performance.now();

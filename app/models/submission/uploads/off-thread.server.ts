@@ -14,6 +14,7 @@ import {
   submitJsonRows,
 } from "#app/models/submission/uploads/commit.server.ts";
 import { UploadError } from "#app/models/submission/uploads/read-sheet.server.ts";
+import { runTrackedJob } from "#app/models/jobs.server.ts";
 import { databaseFileOf, runInWorker, TaskStopped, WorkerError } from "#app/workers/pool.server.ts";
 
 /** How long reading and checking one uploaded file may take before it is refused. */
@@ -65,26 +66,46 @@ export async function createUploadOffThread(
   }
 }
 
-/** Commits a batch (see commitUpload) in the writer thread: one transaction, nothing half-written. */
+/** The kind of the job row a commit writes (its progress is shown on the upload's page). */
+export const COMMIT_JOB = "upload-commit";
+
+/**
+ * Commits a batch (see commitUpload) in the writer thread: one transaction, nothing half-written.
+ * A job row records it, with its progress while it runs (rows written, then calibration and
+ * checks); `ticket`, chosen by the page, lets the page find that job while it waits.
+ */
 export async function commitUploadOffThread(
   db: Db,
   batch: BatchRow,
   mode: CommitMode,
   actor: { userId: number },
-  options: { ip?: string | null } = {},
+  options: { ip?: string | null; ticket?: string } = {},
 ): Promise<CommitResult> {
   const file = databaseFileOf(db);
   if (!file) return commitUpload(db, batch, mode, actor, options);
-  try {
-    return await runInWorker("writer", "commitUpload", file, {
-      batchId: batch.id,
-      mode,
-      userId: actor.userId,
-      ip: options.ip ?? null,
-    });
-  } catch (error) {
-    rethrow(error);
-  }
+  return runTrackedJob(
+    db,
+    {
+      kind: COMMIT_JOB,
+      total: batch.validCount,
+      params: { upload: batch.publicId, mode, ...(options.ticket ? { ticket: options.ticket } : {}) },
+      actorId: actor.userId,
+    },
+    async (report) => {
+      try {
+        return await runInWorker(
+          "writer",
+          "commitUpload",
+          file,
+          { batchId: batch.id, mode, userId: actor.userId, ip: options.ip ?? null },
+          { onProgress: report },
+        );
+      } catch (error) {
+        rethrow(error);
+      }
+    },
+    (r) => `Committed ${r.committed} determination${r.committed === 1 ? "" : "s"}.`,
+  );
 }
 
 /** Validates and writes the API's JSON rows (see submitJsonRows) in the writer thread. */
