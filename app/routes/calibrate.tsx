@@ -146,7 +146,7 @@ export default function CalibratePage({ loaderData, actionData }: Route.Componen
             ).map(([mode, text]) => (
               <label
                 key={mode}
-                className="flex cursor-pointer items-center gap-2 px-4 py-1.5 has-[:checked]:bg-ice-700 has-[:checked]:text-white has-[:focus-visible]:outline-3 has-[:focus-visible]:outline-ice-400"
+                className="flex cursor-pointer items-center gap-2 px-4 py-1.5 has-[:checked]:bg-ice-700 has-[:checked]:text-white has-[:focus-visible]:ring-3 has-[:focus-visible]:ring-ice-400 has-[:focus-visible]:ring-inset"
               >
                 <input
                   type="radio"

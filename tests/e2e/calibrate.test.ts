@@ -114,3 +114,24 @@ test("without script the form posts and the page answers with the results", asyn
   expect(await page.locator('[data-testid="calibration-plot"]').count()).toBe(1);
   await context.close();
 });
+
+test("the keyboard alone switches between one age and a sheet, and Enter calibrates without leaving the page", async () => {
+  const page = await e2e.browser.newPage();
+  await page.goto(`${inject("baseUrl")}/calibrate`);
+  await waitForHydration(page);
+  await page.focus("#mode-one");
+  await page.keyboard.press("ArrowRight");
+  expect(await page.isChecked("#mode-sheet")).toBe(true);
+  await page.locator("#sheet").waitFor({ state: "visible" });
+  await page.keyboard.press("ArrowLeft");
+  expect(await page.isChecked("#mode-one")).toBe(true);
+  await page.keyboard.press("Tab");
+  expect(await page.evaluate(() => document.activeElement?.id)).toBe("age");
+  await page.keyboard.type("8120");
+  await page.keyboard.press("Tab");
+  await page.keyboard.type("35");
+  await page.keyboard.press("Enter");
+  await page.waitForSelector('[data-testid="median"]');
+  expect(new URL(page.url()).pathname).toBe("/calibrate");
+  await page.close();
+});
