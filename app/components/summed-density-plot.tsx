@@ -50,7 +50,7 @@ export function SummedDensityPlot({
         viewBox={`0 0 ${width} ${height}`}
         className="w-full"
         role="img"
-        aria-label={`Summed calendar density of ${density.count} determinations by grade`}
+        aria-label={`Summed calendar density of ${density.count.toLocaleString("en")} determination${density.count === 1 ? "" : "s"} by grade`}
       >
         {layers.map((layer) => (
           <path

@@ -49,6 +49,14 @@ export const CHECK_LABELS: Record<string, string> = {
   duplicates: "Duplicates",
 };
 
+/** Check severities, least to most serious. */
+export const CHECK_SEVERITY_LABELS: Record<string, string> = {
+  pass: "passed",
+  note: "a note",
+  warning: "a warning",
+  conflict: "a conflict",
+};
+
 /** Ice-scale fill for a grade: deep = secure, pale = rejected (a single hue, never a traffic light). */
 export const GRADE_FILL: Record<number, string> = {
   3: "#173a56",

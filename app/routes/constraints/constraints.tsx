@@ -1,8 +1,11 @@
 import { lazy, Suspense, useCallback, useEffect, useRef, useState } from "react";
-import { Form, Link, useFetcher } from "react-router";
+import { getFormProps, getInputProps, getTextareaProps, useForm, type SubmissionResult } from "@conform-to/react";
+import { parseWithZod } from "@conform-to/zod/v4";
+import { data, Form, Link, useFetcher, useNavigation } from "react-router";
 import type { Route } from "./+types/constraints";
 import { requireRole, requireUser } from "#app/auth/session.server.ts";
 import { ErrorView } from "#app/components/error-view.tsx";
+import { FieldErrors } from "#app/components/ui/field-errors.tsx";
 import { SummedDensityPlot } from "#app/components/summed-density-plot.tsx";
 import { getDb } from "#app/db/client.server.ts";
 import { deleteSet, savedSets, saveSet } from "#app/models/releases/constraint-sets.server.ts";
@@ -20,8 +23,9 @@ import {
   parseConstraintFilterLenient,
   parseRegionGeoJson,
 } from "#app/utils/constraint-filter.ts";
+import { PublishSchema, SaveSetSchema } from "#app/utils/constraint-forms.ts";
 import { redirectWithFlash } from "#app/utils/flash.server.ts";
-import { CONSTRAINT_KIND_LABELS, FLAG_LABELS, GRADE_WORDS } from "#app/utils/labels.ts";
+import { CHECK_SEVERITY_LABELS, CONSTRAINT_KIND_LABELS, FLAG_LABELS, GRADE_WORDS, METHOD_LABELS } from "#app/utils/labels.ts";
 import { useHydrated } from "#app/utils/use-hydrated.ts";
 
 const RegionMap = lazy(() => import("#app/components/map/region-map.client.tsx"));
@@ -51,30 +55,29 @@ export async function loader({ request }: Route.LoaderArgs) {
   };
 }
 
-type ActionErrors = { intent: string; errors: Record<string, string> };
+type ActionResult = { intent: "save" | "publish"; result: SubmissionResult<string[]> };
 
 export async function action({ request }: Route.ActionArgs) {
   const user = await requireUser(request);
   const form = await request.formData();
   const intent = String(form.get("intent") ?? "");
   const db = getDb();
-  const query = String(form.get("filter") ?? "");
-  const parsed = parseConstraintFilter(new URLSearchParams(query));
-  const fail = (errors: Record<string, string>) => Response.json({ intent, errors } satisfies ActionErrors, { status: 400 });
   switch (intent) {
     case "save": {
       await requireRole(request, "modeller");
-      const name = String(form.get("name") ?? "").trim();
-      if (!name || name.length > 120) return fail({ name: "Give the set a name of up to 120 characters." });
-      if (!parsed.ok) return fail({ filter: parsed.errors.join("; ") });
-      saveSet(db, user.id, name, filterToParams(parsed.filter).toString());
-      return redirectWithFlash(`/constraints?${query}`, { kind: "success", message: `Saved the set “${name}”.` });
+      const submission = parseWithZod(form, { schema: SaveSetSchema });
+      if (submission.status !== "success")
+        return data({ intent, result: submission.reply() } satisfies ActionResult, { status: 400 });
+      const { name, filter } = submission.value;
+      const parsed = parseConstraintFilter(new URLSearchParams(filter));
+      saveSet(db, user.id, name, parsed.ok ? filterToParams(parsed.filter).toString() : "");
+      return redirectWithFlash(`/constraints?${filter}`, { kind: "success", message: `Saved the set “${name}”.` });
     }
     case "delete": {
       await requireRole(request, "modeller");
       const ok = deleteSet(db, user.id, Number(form.get("id")));
       return redirectWithFlash(
-        `/constraints?${query}`,
+        `/constraints?${String(form.get("filter") ?? "")}`,
         ok
           ? { kind: "info", message: "Deleted the saved set." }
           : { kind: "error", message: "That set is not yours or is gone." },
@@ -82,19 +85,23 @@ export async function action({ request }: Route.ActionArgs) {
     }
     case "publish": {
       await requireRole(request, "editor");
-      const name = String(form.get("name") ?? "").trim();
-      const errors: Record<string, string> = {};
-      if (!name || name.length > 200) errors.name = "Give the release a name of up to 200 characters.";
-      if (!parsed.ok) errors.filter = parsed.errors.join("; ");
-      else if (parsed.filter.curve && knownCurveError(db, parsed.filter.curve))
-        errors.filter = knownCurveError(db, parsed.filter.curve)!;
-      if (Object.keys(errors).length || !parsed.ok) return fail(errors);
+      const submission = parseWithZod(form, { schema: PublishSchema });
+      if (submission.status !== "success")
+        return data({ intent, result: submission.reply() } satisfies ActionResult, { status: 400 });
+      const { name, version, description, filter: query } = submission.value;
+      const parsed = parseConstraintFilter(new URLSearchParams(query));
+      if (!parsed.ok) throw new Error("unreachable: the schema checked the filter");
+      const refuse = (field: string, message: string) =>
+        data({ intent, result: submission.reply({ fieldErrors: { [field]: [message] } }) } satisfies ActionResult, {
+          status: 400,
+        });
+      const curveError = parsed.filter.curve ? knownCurveError(db, parsed.filter.curve) : null;
+      if (curveError) return refuse("filter", `The filter cannot be used: ${curveError}.`);
       try {
-        const version = String(form.get("version") ?? "").trim() || nextVersion(db, name);
         const r = publishRelease(db, {
           name,
-          version,
-          description: String(form.get("description") ?? ""),
+          version: version || nextVersion(db, name),
+          description: description ?? null,
           filter: parsed.filter,
           userId: user.id,
           baseUrl: `${new URL(request.url).origin}/releases/`,
@@ -104,12 +111,12 @@ export async function action({ request }: Route.ActionArgs) {
           message: `Published ${r.count.toLocaleString("en")} constraints.`,
         });
       } catch (e) {
-        if (e instanceof PublishRefused) return fail({ [e.field]: e.message });
+        if (e instanceof PublishRefused) return refuse(e.field, e.message);
         throw e;
       }
     }
     default:
-      return fail({ intent: "Unknown action." });
+      return data({ intent, error: "Unknown action." }, { status: 400 });
   }
 }
 
@@ -129,7 +136,10 @@ export default function Constraints({ loaderData, actionData }: Route.ComponentP
   const hydrated = useHydrated();
   const summary = summaryFetcher.data && "count" in summaryFetcher.data ? summaryFetcher.data : loaderData.summary;
   const loading = summaryFetcher.state !== "idle";
-  const actionErrors = (actionData as ActionErrors | undefined)?.errors ?? {};
+  const lastResult = (intent: ActionResult["intent"]) => {
+    const a = actionData as Partial<ActionResult> | undefined;
+    return a?.intent === intent ? a.result : undefined;
+  };
 
   const refresh = useCallback(() => {
     if (!formRef.current) return;
@@ -206,7 +216,12 @@ export default function Constraints({ loaderData, actionData }: Route.ComponentP
             <legend className="label px-1">Region</legend>
             <label className="block">
               Bounding box W,S,E,N (degrees)
-              <input name="bbox" defaultValue={bbox?.join(",") ?? ""} placeholder="-66,57,-60,60" className="mt-1 w-full" />
+              <input
+                name="bbox"
+                defaultValue={bbox?.join(",") ?? ""}
+                placeholder="e.g. -66,57,-60,60"
+                className="input mt-1 w-full"
+              />
             </label>
             <input type="hidden" name="polygon" value={polygonText} readOnly />
             <p className="text-sm text-muted" aria-live="polite">
@@ -253,7 +268,7 @@ export default function Constraints({ loaderData, actionData }: Route.ComponentP
                   type="number"
                   inputMode="numeric"
                   defaultValue={filter.from_cal_bp ?? ""}
-                  className="mt-1 w-full"
+                  className="input mt-1 w-full"
                 />
               </label>
               <label className="flex-1">
@@ -263,7 +278,7 @@ export default function Constraints({ loaderData, actionData }: Route.ComponentP
                   type="number"
                   inputMode="numeric"
                   defaultValue={filter.to_cal_bp ?? ""}
-                  className="mt-1 w-full"
+                  className="input mt-1 w-full"
                 />
               </label>
             </div>
@@ -281,7 +296,7 @@ export default function Constraints({ loaderData, actionData }: Route.ComponentP
             <legend className="label px-1">Quality</legend>
             <label className="block">
               Minimum grade
-              <select name="min_grade" defaultValue={filter.min_grade ?? ""} className="mt-1 w-full">
+              <select name="min_grade" defaultValue={filter.min_grade ?? ""} className="input mt-1 w-full">
                 <option value="">any, including ungraded</option>
                 {[3, 2, 1, 0].map((g) => (
                   <option key={g} value={g}>
@@ -293,11 +308,11 @@ export default function Constraints({ loaderData, actionData }: Route.ComponentP
             </label>
             <label className="block">
               Worst check allowed
-              <select name="worst_check" defaultValue={filter.worst_check ?? ""} className="mt-1 w-full">
+              <select name="worst_check" defaultValue={filter.worst_check ?? ""} className="input mt-1 w-full">
                 <option value="">any</option>
                 {CHECK_ORDER.map((c) => (
                   <option key={c} value={c}>
-                    {c}
+                    {c === "pass" ? "passed every check" : `${CHECK_SEVERITY_LABELS[c]} at worst`}
                   </option>
                 ))}
               </select>
@@ -319,7 +334,7 @@ export default function Constraints({ loaderData, actionData }: Route.ComponentP
               {FILTER_METHODS.map((m) => (
                 <label key={m} className="flex items-center gap-2">
                   <input type="checkbox" name="methods" value={m} defaultChecked={filter.methods?.includes(m)} />
-                  {m}
+                  {METHOD_LABELS[m] ?? m}
                 </label>
               ))}
             </div>
@@ -342,7 +357,7 @@ export default function Constraints({ loaderData, actionData }: Route.ComponentP
             </details>
             <label className="block">
               Curve
-              <select name="curve" defaultValue={filter.curve ?? ""} className="mt-1 w-full">
+              <select name="curve" defaultValue={filter.curve ?? ""} className="input mt-1 w-full">
                 <option value="">any (luminescence has none)</option>
                 {curves.map((c) => (
                   <option key={c} value={c}>
@@ -424,40 +439,35 @@ export default function Constraints({ loaderData, actionData }: Route.ComponentP
             </p>
           </div>
 
-          <SavedSets
-            sets={sets}
-            canSave={canSave}
-            query={query}
-            error={(actionData as ActionErrors | undefined)?.intent === "save" ? actionErrors.name : undefined}
-          />
-          {canPublish ? (
-            <PublishForm
-              query={query}
-              count={summary.count}
-              errors={(actionData as ActionErrors | undefined)?.intent === "publish" ? actionErrors : {}}
-            />
-          ) : null}
+          <SavedSets sets={sets} canSave={canSave} query={query} lastResult={lastResult("save")} />
+          {canPublish ? <PublishForm query={query} count={summary.count} lastResult={lastResult("publish")} /> : null}
         </section>
       </div>
     </div>
   );
 }
 
+type LastResult = SubmissionResult<string[]> | undefined;
+
 function SavedSets({
   sets,
   canSave,
   query,
-  error,
+  lastResult,
 }: {
   sets: { id: number; name: string; filter: string }[];
   canSave: boolean;
   query: string;
-  error?: string;
+  lastResult: LastResult;
 }) {
   return (
     <div className="card">
       <h2>Saved sets</h2>
-      {sets.length === 0 ? <p className="text-muted">No saved sets yet.</p> : null}
+      {sets.length === 0 ? (
+        <p className="text-muted">
+          {canSave ? "No saved sets yet: name the filter below to come back to it." : "No saved sets yet."}
+        </p>
+      ) : null}
       <ul className="mt-2 space-y-1">
         {sets.map((s) => (
           <li key={s.id} className="flex items-center gap-3">
@@ -476,18 +486,7 @@ function SavedSets({
         ))}
       </ul>
       {canSave ? (
-        <Form method="post" className="mt-3 flex flex-wrap items-end gap-2">
-          <input type="hidden" name="intent" value="save" />
-          <input type="hidden" name="filter" value={query} />
-          <label>
-            Save this filter as
-            <input name="name" required maxLength={120} className="mt-1 block" aria-invalid={error ? true : undefined} />
-          </label>
-          <button type="submit" className="btn">
-            Save set
-          </button>
-          {error ? <p role="alert">{error}</p> : null}
-        </Form>
+        <SaveForm query={query} lastResult={lastResult} />
       ) : (
         <p className="mt-2 text-sm text-muted">Modellers can save filters here to return to.</p>
       )}
@@ -495,33 +494,80 @@ function SavedSets({
   );
 }
 
-function PublishForm({ query, count, errors }: { query: string; count: number; errors: Record<string, string> }) {
+function SaveForm({ query, lastResult }: { query: string; lastResult: LastResult }) {
+  const [form, fields] = useForm({
+    id: "save-set",
+    lastResult,
+    shouldValidate: "onBlur",
+    shouldRevalidate: "onInput",
+    onValidate: ({ formData }) => parseWithZod(formData, { schema: SaveSetSchema }),
+  });
+  const busy = useBusy("save");
   return (
-    <Form method="post" className="card space-y-2" data-testid="publish-form">
+    <Form method="post" {...getFormProps(form)} className="mt-3 space-y-2">
+      <input type="hidden" name="intent" value="save" />
+      <input type="hidden" name={fields.filter.name} value={query} />
+      <div className="flex flex-wrap items-end gap-2">
+        <div className="field">
+          <label htmlFor={fields.name.id}>Save this filter as</label>
+          <input {...getInputProps(fields.name, { type: "text" })} maxLength={120} className="input" autoComplete="off" />
+        </div>
+        <button type="submit" className="btn" disabled={busy}>
+          {busy ? "Saving…" : "Save set"}
+        </button>
+      </div>
+      <FieldErrors id={fields.name.errorId} errors={fields.name.errors} />
+      <FieldErrors id={fields.filter.errorId} errors={fields.filter.errors} />
+    </Form>
+  );
+}
+
+/** Whether this page's form with this intent is being sent. */
+function useBusy(intent: string): boolean {
+  const navigation = useNavigation();
+  return navigation.state !== "idle" && navigation.formData?.get("intent") === intent;
+}
+
+function PublishForm({ query, count, lastResult }: { query: string; count: number; lastResult: LastResult }) {
+  const [form, fields] = useForm({
+    id: "publish-release",
+    lastResult,
+    shouldValidate: "onBlur",
+    shouldRevalidate: "onInput",
+    onValidate: ({ formData }) => parseWithZod(formData, { schema: PublishSchema }),
+  });
+  const busy = useBusy("publish");
+  return (
+    <Form method="post" {...getFormProps(form)} className="card space-y-3" data-testid="publish-form">
       <h2>Publish as a release</h2>
       <p className="text-sm text-muted">
-        Freezes the {count.toLocaleString("en")} selected determinations as they are now, with a checksum and a citation. A
-        release never changes afterwards.
+        Freezes the {count.toLocaleString("en")} selected determination{count === 1 ? "" : "s"} as they are now, with a checksum
+        and a citation. A release never changes afterwards.
       </p>
       <input type="hidden" name="intent" value="publish" />
-      <input type="hidden" name="filter" value={query} />
-      <label className="block">
-        Name
-        <input name="name" required maxLength={200} className="mt-1 w-full" aria-invalid={errors.name ? true : undefined} />
-      </label>
-      {errors.name ? <p role="alert">{errors.name}</p> : null}
-      <label className="block">
-        Version <span className="text-muted">(left empty: the next number for this name)</span>
-        <input name="version" maxLength={40} className="mt-1 w-full" aria-invalid={errors.version ? true : undefined} />
-      </label>
-      {errors.version ? <p role="alert">{errors.version}</p> : null}
-      <label className="block">
-        Description
-        <textarea name="description" rows={3} maxLength={2000} className="mt-1 w-full" />
-      </label>
-      {errors.filter ? <p role="alert">{errors.filter}</p> : null}
-      <button type="submit" className="btn" disabled={count === 0}>
-        Publish release
+      <input type="hidden" name={fields.filter.name} value={query} />
+      <div className="field">
+        <label htmlFor={fields.name.id}>Name</label>
+        <input {...getInputProps(fields.name, { type: "text" })} maxLength={200} className="input w-full" autoComplete="off" />
+        <FieldErrors id={fields.name.errorId} errors={fields.name.errors} />
+      </div>
+      <div className="field">
+        <label htmlFor={fields.version.id}>
+          Version <span className="text-muted">(left empty: the next number for this name)</span>
+        </label>
+        <input {...getInputProps(fields.version, { type: "text" })} maxLength={40} className="input w-full" autoComplete="off" />
+        <FieldErrors id={fields.version.errorId} errors={fields.version.errors} />
+      </div>
+      <div className="field">
+        <label htmlFor={fields.description.id}>Description</label>
+        <textarea {...getTextareaProps(fields.description)} rows={3} maxLength={2000} className="input w-full" />
+        <FieldErrors id={fields.description.errorId} errors={fields.description.errors} />
+      </div>
+      <FieldErrors id={fields.filter.errorId} errors={fields.filter.errors} />
+      <FieldErrors id={form.errorId} errors={form.errors} />
+      {count === 0 ? <p className="text-sm">The filter selects nothing; a release cannot be empty.</p> : null}
+      <button type="submit" className="btn" disabled={count === 0 || busy}>
+        {busy ? "Publishing…" : "Publish release"}
       </button>
     </Form>
   );

@@ -7,7 +7,7 @@ import { releaseDiff, type ReleaseDiff } from "#app/models/releases/release-diff
 import { releaseById, releaseBySlug, releaseItems } from "#app/models/releases/releases.server.ts";
 import { formatYears } from "#app/utils/age-format.ts";
 import { notFound } from "#app/utils/http.server.ts";
-import { gradeWord } from "#app/utils/labels.ts";
+import { CHECK_SEVERITY_LABELS, CONSTRAINT_KIND_LABELS, FLAG_LABELS, gradeWord, METHOD_LABELS } from "#app/utils/labels.ts";
 import type { MapSite } from "#app/utils/map-site.ts";
 import { useHydrated } from "#app/utils/use-hydrated.ts";
 
@@ -147,8 +147,8 @@ export default function ReleasePage({ loaderData }: Route.ComponentProps) {
           ) : null}
           {Object.entries(release.filter).map(([k, v]) => (
             <div key={k} className="contents">
-              <dt className="font-semibold">{k}</dt>
-              <dd className="break-all">{typeof v === "string" ? v : JSON.stringify(v)}</dd>
+              <dt className="font-semibold">{FILTER_WORDS[k] ?? k}</dt>
+              <dd className="break-all">{filterValueWords(k, v)}</dd>
             </div>
           ))}
         </dl>
@@ -290,4 +290,51 @@ function ReleaseMap({ sites }: { sites: MapSite[] }) {
 
 export function ErrorBoundary({ error }: Route.ErrorBoundaryProps) {
   return <ErrorView error={error} />;
+}
+
+/** The filter's parameters in words (the API names stay in the downloads' metadata). */
+const FILTER_WORDS: Record<string, string> = {
+  bbox: "Region (W,S,E,N degrees)",
+  polygon: "Region (polygon)",
+  geometry: "Region (uploaded polygon)",
+  from_cal_bp: "Time window from",
+  to_cal_bp: "Time window to",
+  time_mode: "Time window rule",
+  methods: "Methods",
+  materials: "Materials",
+  kinds: "Constraint kinds",
+  min_grade: "Minimum grade",
+  exclude_flags: "Flags excluded",
+  worst_check: "Worst check allowed",
+  curve: "Curve",
+};
+
+function filterValueWords(key: string, value: unknown): string {
+  if (typeof value !== "string") return JSON.stringify(value);
+  const list = (labels: Record<string, string>) =>
+    value
+      .split(",")
+      .map((v) => labels[v] ?? v)
+      .join(", ");
+  switch (key) {
+    case "from_cal_bp":
+    case "to_cal_bp":
+      return `${Number(value).toLocaleString("en")} cal BP`;
+    case "time_mode":
+      return value === "median" ? "the median lies in the window" : "the 95.4 % range overlaps the window";
+    case "min_grade":
+      return `${value} (${gradeWord(Number(value))}) or better`;
+    case "methods":
+      return list(METHOD_LABELS);
+    case "kinds":
+      return list(CONSTRAINT_KIND_LABELS);
+    case "exclude_flags":
+      return list(FLAG_LABELS);
+    case "worst_check":
+      return value === "pass" ? "passed every check" : `${CHECK_SEVERITY_LABELS[value] ?? value} at worst`;
+    case "polygon":
+      return `${value.split(";").length} points: ${value}`;
+    default:
+      return value;
+  }
 }
