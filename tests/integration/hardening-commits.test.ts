@@ -114,7 +114,7 @@ describe("a commit's progress", () => {
           args(get(`/api/jobs/ticket?kind=upload-commit&ticket=${ticket}`, { cookie: p.cookie }), { id: "ticket" }),
         ),
       );
-      expect(done.data).toMatchObject({ status: "done", progress: 1500, message: "Committed 1500 determinations." });
+      expect(done.data).toMatchObject({ status: "done", progress: 1500, message: "Committed 1,500 determinations." });
       // Another person cannot follow it by its ticket.
       const other = await personWithSession(["contributor"]);
       const theirs = await run(() =>

@@ -111,7 +111,7 @@ export async function action({ request, params }: Route.ActionArgs) {
         }
         return redirectWithFlash(here, {
           kind: "success",
-          message: `Committed ${result.committed} determination${result.committed === 1 ? "" : "s"}; they are calibrated and waiting for review.${mailNote}`,
+          message: `Committed ${formatCount(result.committed)} determination${result.committed === 1 ? "" : "s"}; they are calibrated and waiting for review.${mailNote}`,
         });
       }
       default:

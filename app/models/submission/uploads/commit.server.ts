@@ -7,6 +7,7 @@ import { runChecksFor } from "#app/models/review/check-run.server.ts";
 import type { Db } from "#app/db/client.server.ts";
 import { labs, uploadBatches, type UploadRowError } from "#app/db/schema.ts";
 import { audit } from "#app/models/audit.server.ts";
+import { groupThousands } from "#app/science/calendar.ts";
 import { calibrateDeterminations } from "#app/models/calibration/calibrations.server.ts";
 import { determinationValues, insertDetermination } from "#app/models/submission/determinations.server.ts";
 import { COLUMNS, columnSpec } from "#app/utils/determination-input/columns.ts";
@@ -89,7 +90,7 @@ function writeRows(
     options.afterRow?.(i);
   });
   const t1 = performance.now();
-  options.onPhase?.(`Calibrating and checking ${ids.length} determinations`, ids.length);
+  options.onPhase?.(`Calibrating and checking ${groupThousands(ids.length)} determinations`, ids.length);
   calibrateDeterminations(db, ids);
   runChecksFor(db, ids);
   const t2 = performance.now();

@@ -15,6 +15,7 @@ import {
 } from "#app/models/submission/uploads/commit.server.ts";
 import { UploadError } from "#app/models/submission/uploads/read-sheet.server.ts";
 import { runTrackedJob } from "#app/models/jobs.server.ts";
+import { groupThousands } from "#app/science/calendar.ts";
 import { databaseFileOf, runInWorker, TaskStopped, WorkerError } from "#app/workers/pool.server.ts";
 
 /** How long reading and checking one uploaded file may take before it is refused. */
@@ -104,7 +105,7 @@ export async function commitUploadOffThread(
         rethrow(error);
       }
     },
-    (r) => `Committed ${r.committed} determination${r.committed === 1 ? "" : "s"}.`,
+    (r) => `Committed ${groupThousands(r.committed)} determination${r.committed === 1 ? "" : "s"}.`,
   );
 }
 
