@@ -6,11 +6,10 @@ import fs from "node:fs";
 import path from "node:path";
 import type { Db } from "#app/db/client.server.ts";
 import { loadConstraints } from "#app/models/model-runs/constraints.server.ts";
-import { writeNetcdf4 } from "#app/models/model-runs/netcdf-writer.server.ts";
 import { closeRunFile, openRunFile } from "#app/models/model-runs/run-file.server.ts";
 import { scoreRun } from "#app/models/model-runs/score-run.server.ts";
 import { runThicknessM } from "#seed/ensemble.ts";
-import { demoGrid } from "#seed/ensemble-files.server.ts";
+import { demoGrid, writeGridRun } from "#seed/ensemble-files.server.ts";
 import { marginsWithBias, retreatParams } from "#seed/retreat.ts";
 import { DEFAULT_SEED } from "#seed/scenario.ts";
 
@@ -26,28 +25,11 @@ export async function writeBenchGrid(file: string): Promise<void> {
   const p = retreatParams(DEFAULT_SEED);
   const grid = demoGrid(p, GRID_HALF_CELLS, GRID_CELL_M);
   const ages = Array.from({ length: SLICES }, (_, k) => 18000 - k * 120);
-  await writeNetcdf4(file, {
-    time: { name: "time", values: ages, attrs: { standard_name: "time", units: "years BP", axis: "T" } },
-    y: { name: "y", values: grid.ys, attrs: { standard_name: "projection_y_coordinate", units: "m" } },
-    x: { name: "x", values: grid.xs, attrs: { standard_name: "projection_x_coordinate", units: "m" } },
-    gridMapping: {
-      name: "polar_stereographic",
-      attrs: {
-        grid_mapping_name: "polar_stereographic",
-        latitude_of_projection_origin: 90,
-        straight_vertical_longitude_from_pole: -45,
-        standard_parallel: 70,
-        false_easting: 0,
-        false_northing: 0,
-        semi_major_axis: 6378137,
-        inverse_flattening: 298.257223563,
-      },
-    },
-    ice: {
-      name: "thk",
-      attrs: { standard_name: "land_ice_thickness", units: "m", grid_mapping: "polar_stereographic" },
-      slice: (k) => Float32Array.from(grid.cells, (g) => runThicknessM(p, { b1: 0, b2: 0 }, g, ages[k])),
-    },
+  await writeGridRun(file, {
+    grid,
+    time: { values: ages, attrs: { units: "years BP" } },
+    withoutAxisAttributes: true,
+    thicknessM: (k, g) => runThicknessM(p, { b1: 0, b2: 0 }, g, ages[k]),
   });
 }
 

@@ -46,45 +46,64 @@ export function demoGrid(p: RetreatParams, halfCells = HALF_CELLS, cellM = CELL_
   return { xs, ys, cells };
 }
 
+/** The demo grid's polar stereographic mapping, as CF attributes. */
+const GRID_MAPPING = {
+  grid_mapping_name: "polar_stereographic",
+  latitude_of_projection_origin: 90,
+  straight_vertical_longitude_from_pole: -45,
+  standard_parallel: 70,
+  false_easting: 0,
+  false_northing: 0,
+  semi_major_axis: 6378137,
+  inverse_flattening: 298.257223563,
+};
+
+export interface GridRunSpec {
+  grid: DemoGrid;
+  /** The time coordinate as written, and its CF attributes (units say how it maps to cal BP). */
+  time: { values: number[]; attrs: Record<string, string> };
+  /** Ice thickness (m) of one cell at time slice k. */
+  thicknessM: (k: number, cell: PointGeometry) => number;
+  globalAttrs?: Record<string, string | number>;
+  /** Leave out the x/y `axis` attributes, as many real CF files do (the bench's grid does). */
+  withoutAxisAttributes?: boolean;
+}
+
+/** Writes a NetCDF-4 run on the demo's polar stereographic grid (shared by the seed and the bench). */
+export async function writeGridRun(path: string, spec: GridRunSpec): Promise<void> {
+  const { grid } = spec;
+  const axis = (a: "X" | "Y"): Record<string, string> => (spec.withoutAxisAttributes ? {} : { axis: a });
+  await writeNetcdf4(path, {
+    globalAttrs: spec.globalAttrs,
+    time: { name: "time", values: spec.time.values, attrs: { standard_name: "time", axis: "T", ...spec.time.attrs } },
+    y: { name: "y", values: grid.ys, attrs: { standard_name: "projection_y_coordinate", units: "m", ...axis("Y") } },
+    x: { name: "x", values: grid.xs, attrs: { standard_name: "projection_x_coordinate", units: "m", ...axis("X") } },
+    gridMapping: { name: "polar_stereographic", attrs: GRID_MAPPING },
+    ice: {
+      name: "thk",
+      attrs: { standard_name: "land_ice_thickness", units: "m", grid_mapping: "polar_stereographic", _FillValue: -9999 },
+      slice: (k) => {
+        const out = new Float32Array(grid.cells.length);
+        grid.cells.forEach((g, i) => (out[i] = spec.thicknessM(k, g)));
+        return out;
+      },
+    },
+  });
+}
+
 export async function writeMemberFile(path: string, p: RetreatParams, grid: DemoGrid, m: EnsembleMember): Promise<void> {
   const ages = ensembleAges();
   const bias = memberBias(m);
-  await writeNetcdf4(path, {
+  await writeGridRun(path, {
+    grid,
     globalAttrs: {
       title: `${m.name}: synthetic demo run (invented)`,
       comment: `${m.description} Synthetic data for the Thawline demo, not a real model.`,
       sliding_factor: m.parameters.sliding_factor,
       ocean_melt_factor: m.parameters.ocean_melt_factor,
     },
-    time: {
-      name: "time",
-      values: ages.map((a) => -a),
-      attrs: { standard_name: "time", units: "years since 1950-01-01", calendar: "365_day", axis: "T" },
-    },
-    y: { name: "y", values: grid.ys, attrs: { standard_name: "projection_y_coordinate", units: "m", axis: "Y" } },
-    x: { name: "x", values: grid.xs, attrs: { standard_name: "projection_x_coordinate", units: "m", axis: "X" } },
-    gridMapping: {
-      name: "polar_stereographic",
-      attrs: {
-        grid_mapping_name: "polar_stereographic",
-        latitude_of_projection_origin: 90,
-        straight_vertical_longitude_from_pole: -45,
-        standard_parallel: 70,
-        false_easting: 0,
-        false_northing: 0,
-        semi_major_axis: 6378137,
-        inverse_flattening: 298.257223563,
-      },
-    },
-    ice: {
-      name: "thk",
-      attrs: { standard_name: "land_ice_thickness", units: "m", grid_mapping: "polar_stereographic", _FillValue: -9999 },
-      slice: (k) => {
-        const out = new Float32Array(grid.cells.length);
-        grid.cells.forEach((g, i) => (out[i] = runThicknessM(p, bias, g, ages[k])));
-        return out;
-      },
-    },
+    time: { values: ages.map((a) => -a), attrs: { units: "years since 1950-01-01", calendar: "365_day" } },
+    thicknessM: (k, g) => runThicknessM(p, bias, g, ages[k]),
   });
 }
 

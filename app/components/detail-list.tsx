@@ -1,4 +1,4 @@
-import { formatValueError } from "#app/utils/age-format.ts";
+import { formatWithError } from "#app/utils/age-format.ts";
 
 /** A two-column definition list for a record's fields; missing values read as an em dash. */
 export function DetailList({ items }: { items: [label: React.ReactNode, value: React.ReactNode][] }) {
@@ -25,5 +25,5 @@ export function showNumber(x: number | null | undefined, unit?: string): string 
 export function showWithError(x: number | null | undefined, err: number | null | undefined, unit?: string): string | null {
   if (x === null || x === undefined) return null;
   if (err === null || err === undefined) return showNumber(x, unit);
-  return formatValueError(x, err, unit ?? "");
+  return formatWithError(x, err, unit ?? "");
 }

@@ -2,6 +2,7 @@
 // everything here rounds for reading. Client-safe (no server imports).
 
 import { groupThousands } from "#app/science/calendar.ts";
+import { formatWithError } from "#app/science/precision.ts";
 
 export type MeasuredAgeFields = {
   method: string;
@@ -39,29 +40,12 @@ export function formatCount(n: number | null | undefined): string {
   return n == null ? "" : groupThousands(Math.round(n));
 }
 
-/** Decimals that keep two significant figures of an error (never negative, at most six). */
-export function decimalsForError(error: number): number {
-  if (!(error > 0) || !Number.isFinite(error)) return 0;
-  return Math.min(6, Math.max(0, 1 - Math.floor(Math.log10(error))));
-}
-
-function fixed(x: number, decimals: number): string {
-  const s = x.toFixed(decimals);
-  if (decimals > 0) return s.replace(/^(-?)(\d+)/, (_m, sign: string, int: string) => sign + groupThousands(Number(int)));
-  return groupThousands(Number(s));
-}
-
 /**
- * A value and its 1σ at honest precision: the error to two significant figures, the value to the
- * same decimal place. "2.069 ± 0.017", "10,250 ± 45". Whole units never show decimals when the
- * error is a whole number of units or more.
+ * A value and its 1σ at honest precision — the one rule, in science/precision.ts: the error to two
+ * significant figures, the value to the same decimal place ("2.069 ± 0.017", "10,250 ± 45",
+ * "12,350 ± 570"); without a usable error, the value at three significant figures.
  */
-export function formatValueError(value: number, error: number | null | undefined, unit = ""): string {
-  const u = unit ? ` ${unit}` : "";
-  if (error == null || !(error > 0)) return `${formatPlain(value)}${u}`;
-  const d = decimalsForError(error);
-  return `${fixed(value, d)} ± ${fixed(error, d)}${u}`;
-}
+export { formatWithError } from "#app/science/precision.ts";
 
 /** A lone measured value: at most four significant figures, thousands grouped, no trailing zeros. */
 export function formatPlain(value: number | null | undefined, unit = ""): string {
@@ -103,7 +87,7 @@ export function formatMeasuredAge(d: MeasuredAgeFields): string {
     const lum = luminescenceKa(d);
     if (!lum) return "—";
     // the error to two significant figures, the age to the same place (as everywhere)
-    return formatValueError(lum.ageKa, lum.errorKa, UNITS.ka);
+    return formatWithError(lum.ageKa, lum.errorKa, UNITS.ka);
   }
   return "—";
 }

@@ -99,12 +99,6 @@ export function makeSubmissionSchema(ctx: RowContext, serverChecks?: (value: Sub
     });
 }
 
-/** A duplicate-lab-code message names the existing record's address; the form turns it into a link. */
-export function existingRecordLink(message: string): { before: string; href: string } | null {
-  const m = /^(.*?)(\/determinations\/\d+)\s*$/.exec(message);
-  return m ? { before: m[1]!, href: m[2]! } : null;
-}
-
 /** Measurement columns whose problems the live preview reports (the rest are the form's business). */
 export const PREVIEW_COLUMNS = [
   "method",

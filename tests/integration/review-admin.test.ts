@@ -171,7 +171,7 @@ describe("margin reconstructions (editors)", () => {
       { text: new Uint8Array(max + 1), name: "big.geojson" },
     );
     expect([400, 413]).toContain(out.status); // 413 when the browser declares the length up front
-    expect(fileErrors(out).file![0]).toMatch(/larger than 8 MB/);
+    expect(fileErrors(out).file![0]).toMatch(/larger than 8\.0 MB/);
     expect(bodyLimitFor("/checks", { uploadMaxBytes: 10 * 1024 * 1024 })).toBeGreaterThan(max);
   });
 

@@ -1,8 +1,7 @@
 import { getInputProps, type FieldMetadata } from "@conform-to/react";
-import { Link } from "react-router";
 import { FieldErrors } from "#app/components/ui/field-errors.tsx";
+import { RecordLinkText } from "#app/components/ui/record-link-text.tsx";
 import { columnSpec } from "#app/utils/determination-input/columns.ts";
-import { existingRecordLink } from "#app/utils/submission-form.ts";
 import { FieldWarning } from "./field-warnings.tsx";
 
 /* The determination form's field pieces: labels, units and help come from the upload template's column catalogue. */
@@ -88,22 +87,5 @@ export function TextField({
 
 /** The field's message; a duplicate lab code links to the record already in the registry. */
 export function FieldError({ field }: { field: Field }) {
-  return (
-    <FieldErrors
-      id={field.errorId}
-      errors={field.errors}
-      render={(message) => {
-        const link = existingRecordLink(message);
-        if (!link) return message;
-        return (
-          <>
-            {link.before}
-            <Link to={link.href} data-testid="existing-record-link">
-              {link.href}
-            </Link>
-          </>
-        );
-      }}
-    />
-  );
+  return <FieldErrors id={field.errorId} errors={field.errors} render={(message) => <RecordLinkText text={message} />} />;
 }

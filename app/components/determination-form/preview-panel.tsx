@@ -1,4 +1,4 @@
-import { formatCal, formatCalRange, formatProbability, formatValueError, UNITS } from "#app/utils/age-format.ts";
+import { formatCal, formatCalRange, formatProbability, formatWithError, UNITS } from "#app/utils/age-format.ts";
 import { calendarModelWords } from "#app/utils/labels.ts";
 import type { PreviewResult } from "#app/utils/submission-form.ts";
 
@@ -51,8 +51,8 @@ function PreviewAge({ state }: { state: Extract<PreviewResult, { state: "ok" }> 
       </div>
       {state.luminescence ? (
         <p className="text-sm" data-testid="preview-luminescence">
-          {formatValueError(state.luminescence.ageKa, state.luminescence.errorKa, UNITS.ka)} before measurement; dose rate{" "}
-          {formatValueError(state.luminescence.doseRate, state.luminescence.doseRateError, UNITS.gyPerKa)}
+          {formatWithError(state.luminescence.ageKa, state.luminescence.errorKa, UNITS.ka)} before measurement; dose rate{" "}
+          {formatWithError(state.luminescence.doseRate, state.luminescence.doseRateError, UNITS.gyPerKa)}
           {state.luminescence.computed ? " (computed from the inputs with every term and error)" : " (the lab's value)"}
         </p>
       ) : null}

@@ -20,6 +20,7 @@ import { Readable } from "node:stream";
 import { pipeline } from "node:stream/promises";
 import busboy from "busboy";
 import { type FileKind, type Sniffed, sniffFile } from "#app/models/files/sniff.server.ts";
+import { formatBytes } from "#app/utils/format-bytes.ts";
 
 export class FileIntakeError extends Error {
   constructor(
@@ -73,16 +74,10 @@ export type Received = {
 
 const KiB = 1024;
 
-export function formatBytes(n: number): string {
-  if (n >= 1024 * 1024) return `${(n / 1024 / 1024).toFixed(1)} MB`;
-  if (n >= 1024) return `${Math.round(n / 1024)} KB`;
-  return `${n} bytes`;
-}
-
 /** The sender's file name without folders or control characters. */
 export function cleanFileName(name: string | undefined, fallback: string): string {
   const base = (name ?? "").split(/[/\\]/).pop() ?? "";
-  // eslint-disable-next-line no-control-regex
+  // eslint-disable-next-line no-control-regex -- control characters are exactly what a file name must lose
   const clean = base.replace(/[\u0000-\u001f\u007f]/g, "").trim();
   return clean.slice(0, 200) || fallback;
 }

@@ -7,7 +7,8 @@
 import { readFile } from "node:fs/promises";
 import Papa from "papaparse";
 import type { Db } from "#app/db/client.server.ts";
-import { FileIntakeError, formatBytes, withReceivedFiles, type ReceivedFile } from "#app/models/files/intake.server.ts";
+import { FileIntakeError, withReceivedFiles, type ReceivedFile } from "#app/models/files/intake.server.ts";
+import { formatBytes } from "#app/utils/format-bytes.ts";
 import type { FileKind } from "#app/models/files/sniff.server.ts";
 import { env } from "#app/utils/env.server.ts";
 import { ModelRunFileError } from "./errors.ts";

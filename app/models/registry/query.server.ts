@@ -2,6 +2,7 @@ import { z } from "zod";
 import type { Db } from "#app/db/client.server.ts";
 import { Conditions, CURRENT_CALIBRATION_JOIN, NOT_WITHDRAWN_SQL } from "#app/models/registry/conditions.server.ts";
 import { CHECK_SEVERITIES, CONSTRAINT_KINDS, METHODS, STATUSES, type CheckSeverity } from "#app/db/schema.ts";
+import { escapeLike } from "#app/utils/sql-like.ts";
 import {
   defaultDirection,
   EXPLORE_PAGE_SIZE,
@@ -193,10 +194,6 @@ function narrowFrom(f: ExploreFilters, forSort: boolean): string {
   ]
     .filter(Boolean)
     .join("\n  ");
-}
-
-function escapeLike(s: string): string {
-  return s.replace(/[\\%_]/g, (m) => `\\${m}`);
 }
 
 const C14_AGE_SQL = "coalesce(d.c14_age_yr, case when d.f14c > 0 then -8033.0 * ln(d.f14c) end)";

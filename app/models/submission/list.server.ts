@@ -4,6 +4,7 @@ import type { Db } from "#app/db/client.server.ts";
 import type { Method, Status } from "#app/db/schema.ts";
 import { editableStatus } from "#app/models/submission/form/write.server.ts";
 import { LISTED_MEASUREMENT_SQL, type ListedMeasurement } from "#app/models/registry/query.server.ts";
+import { escapeLike } from "#app/utils/sql-like.ts";
 
 export const SUBMISSIONS_PAGE_SIZE = 50;
 
@@ -27,10 +28,6 @@ export type SubmissionListRow = {
     createdAt: number;
     updatedAt: number;
   };
-
-function escapeLike(s: string): string {
-  return s.replace(/[\\%_]/g, (m) => `\\${m}`);
-}
 
 /** One page of the contributor's own determinations, newest first, with counts per status (three statements). */
 export function listSubmissions(db: Db, userId: number, filters: SubmissionFilters) {

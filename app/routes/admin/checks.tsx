@@ -18,12 +18,10 @@ import { formatYears } from "#app/utils/age-format.ts";
 import { env } from "#app/utils/env.server.ts";
 import { redirectWithFlash } from "#app/utils/flash.server.ts";
 import { badRequest, notFound } from "#app/utils/http.server.ts";
+import { formatDay } from "#app/utils/time-format.ts";
+import { formatBytes } from "#app/utils/format-bytes.ts";
 
 export const meta: Route.MetaFunction = () => [{ title: "Checks and reconstructions · Thawline" }];
-
-function formatBytes(n: number): string {
-  return n >= 1024 * 1024 ? `${(n / 1024 / 1024).toFixed(n % (1024 * 1024) ? 1 : 0)} MB` : `${Math.round(n / 1024)} kB`;
-}
 
 /** The one schema of the "add a reconstruction" form, shared by the browser and the server. */
 function reconstructionSchema(maxBytes: number) {
@@ -217,7 +215,7 @@ export default function ChecksPage({ loaderData, actionData }: Route.ComponentPr
                       {r.uncertaintyYr != null ? `± ${formatYears(r.uncertaintyYr)} yr` : "—"}
                     </td>
                     <td className="text-sm">
-                      {new Date(r.createdAt).toISOString().slice(0, 10)}
+                      {formatDay(r.createdAt)}
                       {r.createdByName ? <br /> : null}
                       {r.createdByName}
                     </td>

@@ -17,6 +17,7 @@ import { env } from "#app/utils/env.server.ts";
 import { redirectWithFlash } from "#app/utils/flash.server.ts";
 import { badRequest, notFound } from "#app/utils/http.server.ts";
 import { ActionButton } from "#app/components/ui/action-button.tsx";
+import { formatBytes } from "#app/utils/format-bytes.ts";
 
 export const meta: Route.MetaFunction = () => [{ title: "Curves — Thawline" }];
 
@@ -53,10 +54,6 @@ function curveUploadSchema(maxBytes: number) {
       .positive("The step must be at least 1 year.")
       .max(1000, "At most 1,000 years."),
   });
-}
-
-function formatBytes(n: number): string {
-  return n >= 1024 * 1024 ? `${(n / 1024 / 1024).toFixed(n % (1024 * 1024) ? 1 : 0)} MB` : `${Math.round(n / 1024)} kB`;
 }
 
 export async function loader({ request }: Route.LoaderArgs) {

@@ -1,5 +1,5 @@
 import { parseWithZod } from "@conform-to/zod/v4";
-import { data, Link, type ShouldRevalidateFunctionArgs } from "react-router";
+import { data, Link } from "react-router";
 import type { Route } from "./+types/submission-edit";
 import { clientAddress, forbidden, requireRole } from "#app/auth/session.server.ts";
 import { DeterminationForm } from "#app/components/determination-form/determination-form.tsx";
@@ -17,6 +17,7 @@ import { redirectWithFlash } from "#app/utils/flash.server.ts";
 import { notFound } from "#app/utils/http.server.ts";
 import { STATUS_LABELS } from "#app/utils/labels.ts";
 import { ActionButton } from "#app/components/ui/action-button.tsx";
+import { revalidateUnlessApiCall } from "#app/utils/revalidate.ts";
 
 export const meta: Route.MetaFunction = ({ data }) => [
   { title: data ? `Edit ${data.determination.labCode} · Thawline` : "Edit a determination · Thawline" },
@@ -105,11 +106,8 @@ export async function action({ request, params }: Route.ActionArgs) {
   }
 }
 
-export function shouldRevalidate({ formAction, defaultShouldRevalidate }: ShouldRevalidateFunctionArgs) {
-  // The live preview posts to a resource route; it changes nothing this page loaded.
-  if (formAction?.startsWith("/api/")) return false;
-  return defaultShouldRevalidate;
-}
+// The live preview posts to a resource route under /api/; it changes nothing this page loaded.
+export const shouldRevalidate = revalidateUnlessApiCall;
 
 export default function EditSubmission({ loaderData, actionData }: Route.ComponentProps) {
   const { determination: d } = loaderData;

@@ -1,5 +1,5 @@
 import { parseWithZod } from "@conform-to/zod/v4";
-import { data, Link, type ShouldRevalidateFunctionArgs } from "react-router";
+import { data, Link } from "react-router";
 import type { Route } from "./+types/submit";
 import { clientAddress, requireRole } from "#app/auth/session.server.ts";
 import { DeterminationForm } from "#app/components/determination-form/determination-form.tsx";
@@ -14,6 +14,7 @@ import {
   SubmissionRefused,
 } from "#app/models/submission/form/schema.server.ts";
 import { redirectWithFlash } from "#app/utils/flash.server.ts";
+import { revalidateUnlessApiCall } from "#app/utils/revalidate.ts";
 
 export const meta: Route.MetaFunction = () => [{ title: "Submit a determination · Thawline" }];
 
@@ -62,11 +63,8 @@ export async function action({ request }: Route.ActionArgs) {
   }
 }
 
-export function shouldRevalidate({ formAction, defaultShouldRevalidate }: ShouldRevalidateFunctionArgs) {
-  // The live preview posts to a resource route; it changes nothing this page loaded.
-  if (formAction?.startsWith("/api/")) return false;
-  return defaultShouldRevalidate;
-}
+// The live preview posts to a resource route under /api/; it changes nothing this page loaded.
+export const shouldRevalidate = revalidateUnlessApiCall;
 
 export default function Submit({ loaderData, actionData }: Route.ComponentProps) {
   return (

@@ -19,6 +19,7 @@ import { describeRows, groupCautions } from "#app/utils/caution-groups.ts";
 import { env } from "#app/utils/env.server.ts";
 import { redirectWithFlash } from "#app/utils/flash.server.ts";
 import { badRequest, notFound } from "#app/utils/http.server.ts";
+import { RecordLinkText } from "#app/components/ui/record-link-text.tsx";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data?.batch.fileName ?? "Upload"} · Thawline` }];
 
@@ -242,7 +243,7 @@ export default function Upload({ loaderData }: Route.ComponentProps) {
                       <code>{e.column}</code>
                     </td>
                     <td>
-                      <ErrorMessage text={e.message} />
+                      <RecordLinkText text={e.message} />
                     </td>
                   </tr>
                 ))}
@@ -369,20 +370,6 @@ function Stat({ label, value, note }: { label: string; value: number; note?: str
       <dd className="text-2xl tabular-nums">{value.toLocaleString("en")}</dd>
       {note ? <dd className="text-sm text-muted">{note}</dd> : null}
     </div>
-  );
-}
-
-/** Turns "/determinations/123" in a message into a link to the existing record. */
-function ErrorMessage({ text }: { text: string }) {
-  const m = /(\/determinations\/\d+)/.exec(text);
-  if (!m) return <>{text}</>;
-  const [before, after] = [text.slice(0, m.index), text.slice(m.index + m[1]!.length)];
-  return (
-    <>
-      {before}
-      <Link to={m[1]!}>{m[1]}</Link>
-      {after}
-    </>
   );
 }
 

@@ -11,6 +11,7 @@ import { env } from "#app/utils/env.server.ts";
 import { redirectWithFlash } from "#app/utils/flash.server.ts";
 import { badRequest, notFound } from "#app/utils/http.server.ts";
 import { ActionButton } from "#app/components/ui/action-button.tsx";
+import { formatTimestamp } from "#app/utils/time-format.ts";
 
 export const meta: Route.MetaFunction = () => [{ title: "Upload determinations · Thawline" }];
 
@@ -50,11 +51,6 @@ const STATUS_WORDS: Record<string, string> = {
   undone: "undone",
   discarded: "discarded",
 };
-
-function formatWhen(d: Date | string | null): string {
-  if (!d) return "";
-  return new Date(d).toLocaleString("en-GB", { dateStyle: "medium", timeStyle: "short", timeZone: "UTC" }) + " UTC";
-}
 
 export default function Uploads({ loaderData }: Route.ComponentProps) {
   const { batches, maxBytes } = loaderData;
@@ -113,7 +109,7 @@ export default function Uploads({ loaderData }: Route.ComponentProps) {
                   <tr key={b.id}>
                     <td>{b.fileKind === "json" ? b.fileName : <Link to={`/uploads/${b.publicId}`}>{b.fileName}</Link>}</td>
                     <td>{b.userName}</td>
-                    <td>{formatWhen(b.createdAt)}</td>
+                    <td>{formatTimestamp(b.createdAt)}</td>
                     <td className="text-right tabular-nums">{b.rowCount.toLocaleString("en")}</td>
                     <td className="text-right tabular-nums">{b.validCount.toLocaleString("en")}</td>
                     <td className="text-right tabular-nums">{b.committedCount.toLocaleString("en")}</td>

@@ -29,6 +29,7 @@ import {
   STATUS_LABELS,
 } from "#app/utils/labels.ts";
 import { storyFromChanges } from "#app/utils/audit-sentences.ts";
+import { formatTimestamp } from "#app/utils/time-format.ts";
 
 export const meta: Route.MetaFunction = ({ data }) => [
   { title: data ? `${data.detail.determination.labCode} · Thawline` : "Determination · Thawline" },
@@ -147,8 +148,8 @@ export default function DeterminationPage({ loaderData, actionData }: Route.Comp
                 ["Publication", detail.publication ? <PublicationCitation publication={detail.publication} /> : null],
                 ["Contributor", detail.contributor?.name],
                 ["Upload", detail.upload ? `${detail.upload.fileName}` : null],
-                ["Added", formatTime(d.createdAt)],
-                ["Last changed", `${formatTime(d.updatedAt)} (version ${d.version})`],
+                ["Added", formatTimestamp(d.createdAt) ?? ""],
+                ["Last changed", `${formatTimestamp(d.updatedAt) ?? ""} (version ${d.version})`],
                 ["Notes", d.notes],
               ]}
             />
@@ -288,7 +289,7 @@ function CalibrationSection({ detail, plot }: { detail: Detail; plot: Route.Comp
                     </ul>
                   ) : null,
                 ],
-                ["Calculated", formatTime(cal.createdAt)],
+                ["Calculated", formatTimestamp(cal.createdAt) ?? ""],
               ]}
             />
           )
@@ -326,7 +327,7 @@ function CalibrationSection({ detail, plot }: { detail: Detail; plot: Route.Comp
               {detail.earlierCalibrations.map((c) => (
                 <li key={c.id}>
                   {calendarModelWords(c.curveLabel)}: {c.medianCalBp != null ? `${formatCal(c.medianCalBp)} cal BP` : "no result"}{" "}
-                  <span className="text-muted">({formatTime(c.createdAt)})</span>
+                  <span className="text-muted">({formatTimestamp(c.createdAt) ?? ""})</span>
                 </li>
               ))}
             </ul>
@@ -364,7 +365,7 @@ function ReviewSection({ detail, canReopen, error }: { detail: Detail; canReopen
                 ],
                 ["Comment", r.comment],
                 ["Reviewer", r.reviewerName],
-                ["When", formatTime(r.createdAt)],
+                ["When", formatTimestamp(r.createdAt) ?? ""],
               ]}
             />
             {detail.reviewCount > 1 ? (
@@ -511,7 +512,7 @@ function HistorySection({ history }: { history: DeterminationDetail["history"] }
               <li key={h.id} className="border-l-2 border-ice-300 pl-4">
                 <p>
                   <span className="font-semibold">{story.headline}</span>{" "}
-                  <span className="text-muted">on {formatTime(h.at)}</span>
+                  <span className="text-muted">on {formatTimestamp(h.at) ?? ""}</span>
                 </p>
                 {story.details.length > 0 ? (
                   <ul className="mt-1 list-disc pl-5 text-sm">
@@ -529,12 +530,6 @@ function HistorySection({ history }: { history: DeterminationDetail["history"] }
       )}
     </section>
   );
-}
-
-function formatTime(t: Date | string | number | null | undefined): string {
-  if (t === null || t === undefined) return "";
-  const date = new Date(t);
-  return `${date.toISOString().slice(0, 16).replace("T", " ")} UTC`;
 }
 
 export function ErrorBoundary({ error }: Route.ErrorBoundaryProps) {

@@ -17,6 +17,7 @@ import {
 import { formatCal, formatCalRange, formatMeasuredAge } from "#app/utils/age-format.ts";
 import { defaultDirection, exploreSearch, type ExploreSort } from "#app/utils/explore-filters.ts";
 import { CONSTRAINT_KIND_LABELS, methodWords, SIGNAL_LABELS, STATUS_LABELS } from "#app/utils/labels.ts";
+import { formatDay } from "#app/utils/time-format.ts";
 
 export const meta: Route.MetaFunction = () => [{ title: "Explore determinations · Thawline" }];
 
@@ -186,7 +187,7 @@ function ResultRow({ row }: { row: ExploreRow }) {
         <CheckBadge severity={row.worstCheck} />
       </td>
       <td className="whitespace-nowrap">{STATUS_LABELS[row.status]}</td>
-      <td className="whitespace-nowrap text-muted">{new Date(row.createdAt).toISOString().slice(0, 10)}</td>
+      <td className="whitespace-nowrap text-muted">{formatDay(row.createdAt)}</td>
     </tr>
   );
 }

@@ -1,5 +1,6 @@
 import { describe, expect, it } from "vitest";
-import { clientRowContext, existingRecordLink, makeSubmissionSchema, type FormOptions } from "#app/utils/submission-form.ts";
+import { clientRowContext, makeSubmissionSchema, type FormOptions } from "#app/utils/submission-form.ts";
+import { recordLink } from "#app/utils/record-link.ts";
 
 const OPTIONS: Pick<FormOptions, "materials" | "curves"> = {
   materials: [
@@ -74,12 +75,18 @@ describe("the form's schema", () => {
   });
 });
 
-describe("existingRecordLink", () => {
-  it("finds the existing record's address at the end of a duplicate message", () => {
-    expect(existingRecordLink("Lab code X-1 is already in the registry: /determinations/42")).toEqual({
+describe("recordLink", () => {
+  it("finds the existing record's address in a duplicate message, with the text either side", () => {
+    expect(recordLink("Lab code X-1 is already in the registry: /determinations/42")).toEqual({
       before: "Lab code X-1 is already in the registry: ",
       href: "/determinations/42",
+      after: "",
     });
-    expect(existingRecordLink("Give the lab code.")).toBeNull();
+    expect(recordLink("Row 3: X-1 is /determinations/7 already.")).toEqual({
+      before: "Row 3: X-1 is ",
+      href: "/determinations/7",
+      after: " already.",
+    });
+    expect(recordLink("Give the lab code.")).toBeNull();
   });
 });

@@ -4,10 +4,10 @@
 import { env } from "#app/utils/env.server.ts";
 import type { Db } from "#app/db/client.server.ts";
 import { labs, materials } from "#app/db/schema.ts";
-import { calendarOutcome, interpretMeasurement } from "#app/models/calibration/calibrations.server.ts";
+import { calendarProblem } from "#app/models/submission/calendar-problem.server.ts";
 import { listCurves } from "#app/models/calibration/curves.server.ts";
-import { measurementFields, type DeterminationRow as StoredDetermination } from "#app/models/submission/determinations.server.ts";
-import type { DeterminationRow, RowContext, RowIssue } from "#app/utils/determination-input/row.ts";
+import type { DeterminationRow as StoredDetermination } from "#app/models/submission/determinations.server.ts";
+import type { RowContext, RowIssue } from "#app/utils/determination-input/row.ts";
 import { clientRowContext, makeSubmissionSchema, type FormOptions, type SubmissionValue } from "#app/utils/submission-form.ts";
 import { Placement } from "#app/models/submission/placement.server.ts";
 
@@ -74,18 +74,6 @@ export function serverRowContext(
  * Limits and post-bomb ages are accepted and stored without a calendar age; anything else that
  * cannot be given one (above all an age beyond the curve) is refused at the field it concerns.
  */
-function calendarProblem(db: Db, row: DeterminationRow): RowIssue | null {
-  const column = row.method === "radiocarbon" ? (row.c14_age != null ? "c14_age" : "f14c") : "de_gy";
-  const fields = measurementFields(row);
-  if (row.method === "radiocarbon") {
-    const interpreted = interpretMeasurement(fields);
-    if (interpreted.kind === "invalid") return { column, message: interpreted.message };
-    if (interpreted.kind !== "age") return null;
-  }
-  const outcome = calendarOutcome(db, fields);
-  return outcome.ok ? null : { column, message: outcome.error };
-}
-
 /** Where the form's row belongs, planned by the one placement rule the upload and the API use too. */
 export function planFormRow(db: Db, value: SubmissionValue, editing: StoredDetermination | null, userId: number) {
   const placement = new Placement(db, { userId, userLabId: null, mayRegisterLabs: false, editing, oneRecord: true });

@@ -8,6 +8,7 @@ import type { UploadRowError } from "#app/db/schema.ts";
 import { env } from "#app/utils/env.server.ts";
 import { checkWorkbook, WorkbookTooLarge } from "#app/models/submission/uploads/workbook-guard.server.ts";
 import type { UploadPreview } from "#app/models/submission/uploads/validate.server.ts";
+import { formatBytes } from "#app/utils/format-bytes.ts";
 
 /** A problem with the file itself (size, kind, unreadable); `status` is the HTTP answer. */
 export class UploadError extends Error {
@@ -31,12 +32,6 @@ export type PayloadHead = StoredRow & { notices: string[]; warnings?: UploadRowE
 export type ParsedSheet = { kind: "csv" | "xlsx"; headers: string[]; headerRow: number; rows: StoredRow[]; notices: string[] };
 
 export const MAX_ROWS = 50_000;
-
-export function formatBytes(n: number): string {
-  if (n >= 1024 * 1024) return `${(n / 1024 / 1024).toFixed(1)} MB`;
-  if (n >= 1024) return `${Math.round(n / 1024)} KB`;
-  return `${n} bytes`;
-}
 
 export function checkFileSize(size: number, max = env().UPLOAD_MAX_BYTES): void {
   if (size > max) {

@@ -5,11 +5,8 @@ import { inArray, sql } from "drizzle-orm";
 import { env } from "#app/utils/env.server.ts";
 import type { Db } from "#app/db/client.server.ts";
 import { determinations, materials, type UploadRowError } from "#app/db/schema.ts";
-import { calibrationInputFor, interpretMeasurement } from "#app/models/calibration/calibrations.server.ts";
-import { activeCurve, listCurves, preparedCurve, type CurveRow } from "#app/models/calibration/curves.server.ts";
-import { beyondCurve } from "#app/science/calibration.ts";
-import { measurementFields } from "#app/models/submission/determinations.server.ts";
-import { luminescenceAge } from "#app/science/luminescence.ts";
+import { activeCurve, listCurves, type CurveRow } from "#app/models/calibration/curves.server.ts";
+import { calendarProblem } from "#app/models/submission/calendar-problem.server.ts";
 import { checkRow } from "#app/utils/determination-input/check-row.ts";
 import { columnSpec } from "#app/utils/determination-input/columns.ts";
 import type { DeterminationRow, RowContext, RowIssue } from "#app/utils/determination-input/row.ts";
@@ -88,31 +85,6 @@ function loadRegistry(db: Db, labCodes: string[]): Registry {
  * (beyondCurve, with the same input calibrate gets) and luminescence rows the age formula, without building a calendar
  * density (calendarOutcome would, and that dominated the time of a 5,500-row file).
  */
-function calendarProblem(db: Db, row: DeterminationRow, curveFor: (n: string) => CurveRow | undefined): RowIssue | null {
-  const fields = measurementFields(row);
-  if (row.method === "radiocarbon") {
-    const ageColumn = row.c14_age != null ? "c14_age" : "f14c";
-    const interpreted = interpretMeasurement(fields);
-    if (interpreted.kind === "invalid") return { column: ageColumn, message: interpreted.message };
-    if (interpreted.kind !== "age") return null;
-    const curve = curveFor(fields.curveName ?? "intcal20");
-    if (!curve) return { column: "curve", message: `No active curve named "${fields.curveName}".` };
-    const refusal = beyondCurve(preparedCurve(db, curve.id), calibrationInputFor(curve, fields, interpreted));
-    if (refusal) return { column: ageColumn, message: refusal };
-    return null;
-  }
-  if (fields.deGy == null || fields.doseRateGyPerKa == null) return null;
-  try {
-    luminescenceAge(
-      { value: fields.deGy, error: fields.deErrorGy ?? 0 },
-      { value: fields.doseRateGyPerKa, error: fields.doseRateErrorGyPerKa ?? 0 },
-    );
-  } catch (e) {
-    return { column: "de_gy", message: e instanceof Error ? e.message : String(e) };
-  }
-  return null;
-}
-
 function cellFor(c: StoredCell | undefined): unknown {
   if (c && typeof c === "object") {
     if ("date" in c) return new Date(c.date);
