@@ -49,8 +49,7 @@ export function SiteCombobox({
     if (query === null) return;
     const timer = setTimeout(() => void fetcher.load(`/api/site-search?q=${encodeURIComponent(query)}`), DEBOUNCE_MS);
     return () => clearTimeout(timer);
-    // fetcher.load is stable enough; only a new query starts a search.
-    // eslint-disable-next-line react-hooks/exhaustive-deps
+    // eslint-disable-next-line react-hooks/exhaustive-deps -- only a new query starts a search; `fetcher` changes identity while it loads
   }, [query]);
   const searchNear = (point: string) => {
     setText(point);

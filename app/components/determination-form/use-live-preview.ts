@@ -34,7 +34,7 @@ export function useLivePreview(
   useEffect(() => {
     schedulePreview();
     return () => clearTimeout(timer.current);
-    // eslint-disable-next-line react-hooks/exhaustive-deps
+    // eslint-disable-next-line react-hooks/exhaustive-deps -- the caller names what should refresh the preview (the fields' values); schedulePreview is new each render by design
   }, deps);
   return schedulePreview;
 }

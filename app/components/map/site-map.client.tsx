@@ -157,8 +157,7 @@ function SiteMarkers({
       group.remove();
       markersRef.current = [];
     };
-    // onReady is a notification; a new callback identity must not rebuild thousands of markers.
-    // eslint-disable-next-line react-hooks/exhaustive-deps
+    // eslint-disable-next-line react-hooks/exhaustive-deps -- onReady is a notification; a new callback identity must not rebuild thousands of markers
   }, [map, sites, linkSites]);
 
   useEffect(() => {

@@ -17,8 +17,7 @@ export function RunMapSection({ runId, sites }: { runId: number; sites: RunMapSi
   const fetcher = useFetcher<{ slices: MarginSlice[] }>();
   useEffect(() => {
     if (hydrated && fetcher.state === "idle" && !fetcher.data) void fetcher.load(`/runs/${runId}/margins.json`);
-    // Loads once per run.
-    // eslint-disable-next-line react-hooks/exhaustive-deps
+    // eslint-disable-next-line react-hooks/exhaustive-deps -- loads once per run; `fetcher` changes identity while it loads
   }, [hydrated, runId]);
   const slices = useMemo(() => fetcher.data?.slices ?? [], [fetcher.data]);
   const [index, setIndex] = useState<number | null>(null);

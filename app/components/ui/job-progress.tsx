@@ -19,15 +19,14 @@ export function JobProgress({ job, unit, label }: { job: JobView; unit: string; 
       if (fetcher.state === "idle") void fetcher.load(`/api/jobs/${job.id}`);
     }, 1000);
     return () => clearInterval(timer);
-    // Polling restarts only when the job or its finished state changes, not on every fetch.
-    // eslint-disable-next-line react-hooks/exhaustive-deps
+    // eslint-disable-next-line react-hooks/exhaustive-deps -- polling restarts only when the job or its finished state changes; `fetcher` changes on every poll
   }, [finished, job.id]);
   useEffect(() => {
     const polled = fetcher.data;
     if (polled?.id === job.id && (polled.status === "done" || polled.status === "failed") && job.status !== polled.status) {
       void revalidator.revalidate();
     }
-    // eslint-disable-next-line react-hooks/exhaustive-deps
+    // eslint-disable-next-line react-hooks/exhaustive-deps -- revalidate once when the polled status changes, not whenever the revalidator or the job prop does
   }, [fetcher.data?.status]);
   const title = label ?? (typeof current.params?.reason === "string" ? current.params.reason : current.kind);
   const pct = current.total ? Math.round((current.progress / current.total) * 100) : 100;
