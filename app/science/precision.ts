@@ -27,11 +27,17 @@ function show(x: number, decimals: number): string {
   return `${r < 0 ? "−" : ""}${groupThousands(Math.abs(r))}`;
 }
 
-/** "2.07 ± 0.11 Gy/ka"; with no usable error, the value at three significant digits. */
+/**
+ * "2.07 ± 0.11 Gy/ka"; with no usable error, the value at three significant digits at most, whole
+ * units kept and no zeros added after the point ("2.07", "12,346", "−50", "0"): digits nobody stated
+ * are not invented.
+ */
 export function formatWithError(value: number, error: number | null | undefined, unit?: string): string {
   const suffix = unit ? ` ${unit}` : "";
   if (error == null || !(error > 0) || !Number.isFinite(error)) {
-    return `${show(value, Math.max(0, 2 - Math.floor(Math.log10(Math.abs(value) || 1))))}${suffix}`;
+    const shown = show(value, Math.max(0, 2 - Math.floor(Math.log10(Math.abs(value) || 1))));
+    const trimmed = shown.includes(".") ? shown.replace(/\.?0+$/, "") : shown;
+    return `${trimmed === "−0" ? "0" : trimmed}${suffix}`;
   }
   const d = decimalsForError(error);
   return `${show(value, d)} ± ${show(error, d)}${suffix}`;

@@ -7,7 +7,7 @@ import Papa from "papaparse";
 import { groupThousands } from "#app/science/calendar.ts";
 import { interpretRadiocarbon } from "#app/science/radiocarbon.ts";
 import { MAX_SIGMA_YR } from "#app/utils/calibrate-limits.ts";
-import { formatValueError } from "#app/utils/age-format.ts";
+import { formatWithError } from "#app/utils/age-format.ts";
 import type { CalibrationItem } from "#app/utils/calibrate-input.ts";
 import { isBlankCell, readChoice, readIdentifier, readNumber, readYesNo } from "#app/utils/determination-input/cells.ts";
 import { COLUMNS, columnSpec, type ColumnSpec } from "#app/utils/determination-input/columns.ts";
@@ -294,7 +294,7 @@ function readRow(n: number, raw: Partial<Record<SheetColumn, SheetCell>>, ctx: R
   if (marine && rowDeltaR !== undefined) item.delta_r = rowDeltaR;
   if (marine && rowDeltaRError !== undefined) item.delta_r_error = rowDeltaRError;
   const note = !hasAge
-    ? `From F¹⁴C ${formatValueError(f14c!, f14cError)}.`
+    ? `From F¹⁴C ${formatWithError(f14c!, f14cError)}.`
     : interpreted.normalisedHere
       ? `Normalised to δ¹³C −25 ‰ (${interpreted.correctionYears >= 0 ? "+" : "−"}${Math.abs(Math.round(interpreted.correctionYears))} ¹⁴C yr).`
       : undefined;

@@ -1,6 +1,6 @@
 import { formatCalAge } from "#app/components/calibration-plot.tsx";
 import { CELL, RangeList, curveText } from "#app/components/calibrate/results-table.tsx";
-import { formatValueError, UNITS } from "#app/utils/age-format.ts";
+import { formatWithError, UNITS } from "#app/utils/age-format.ts";
 import type { CalendarScale, ResultRow } from "#app/utils/calibrate-results.ts";
 
 /** The one typed age's summary: the same median and ranges the plot's legend shows. */
@@ -22,7 +22,7 @@ export function OneAgeSummary({ row, scale }: { row: ResultRow; scale: CalendarS
         <tbody className="max-sm:block">
           <tr className="max-sm:block">
             <td className={`whitespace-nowrap tabular-nums ${CELL}`} data-label="Age">
-              {formatValueError(row.item.c14_age, row.item.c14_error)}
+              {formatWithError(row.item.c14_age, row.item.c14_error)}
             </td>
             <td className={`whitespace-nowrap ${CELL}`} data-label="Curve">
               {curveText(row)}

@@ -2,7 +2,7 @@ import { useState } from "react";
 import { formatCalAge, formatRange } from "#app/components/calibration-plot.tsx";
 import { withCodes } from "#app/components/api-docs/with-codes.tsx";
 import { Sparkline } from "#app/components/calibrate/sparkline.tsx";
-import { formatCount, formatProbability, formatValueError, UNITS } from "#app/utils/age-format.ts";
+import { formatCount, formatProbability, formatWithError, UNITS } from "#app/utils/age-format.ts";
 import type { ApiRange } from "#app/utils/calibrate-input.ts";
 import type { CalendarScale, ResultRow } from "#app/utils/calibrate-results.ts";
 import { curveWords } from "#app/utils/labels.ts";
@@ -33,7 +33,7 @@ export function curveText(row: ResultRow): string {
   if (!row.item) return "";
   const curve = curveWords(row.item.curve);
   if (row.item.delta_r == null && row.item.delta_r_error == null) return curve;
-  return `${curve}, ΔR ${formatValueError(row.item.delta_r ?? 0, row.item.delta_r_error ?? null)}`;
+  return `${curve}, ΔR ${formatWithError(row.item.delta_r ?? 0, row.item.delta_r_error ?? null)}`;
 }
 
 /**
@@ -138,7 +138,7 @@ function ResultLine({
       ) : (
         <>
           <td className={`whitespace-nowrap tabular-nums ${CELL}`} data-label="Age">
-            {row.item ? formatValueError(row.item.c14_age, row.item.c14_error) : "—"}
+            {row.item ? formatWithError(row.item.c14_age, row.item.c14_error) : "—"}
             {row.note ? <span className="block text-sm text-muted">{row.note}</span> : null}
           </td>
           <td className={`whitespace-nowrap ${CELL}`} data-label="Curve">

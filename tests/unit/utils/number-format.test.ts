@@ -13,9 +13,13 @@ describe("honest precision", () => {
     expect(formatWithError(12345.6, 567.8, "yr")).toBe("12,350 ± 570 yr");
   });
 
-  it("falls back to three significant figures without an error", () => {
+  it("falls back to three significant figures without an error, adding no zeros", () => {
     expect(formatWithError(2.06931, null)).toBe("2.07");
     expect(formatWithError(2.06931, 0)).toBe("2.07");
+    expect(formatWithError(12345.6, null)).toBe("12,346");
+    expect(formatWithError(-50, null)).toBe("−50");
+    expect(formatWithError(2.5, null)).toBe("2.5");
+    expect(formatWithError(0, null)).toBe("0");
   });
 
   it("writes lone values at four significant figures and counts with separators", () => {
