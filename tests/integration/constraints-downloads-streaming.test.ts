@@ -3,7 +3,7 @@ import { describe, expect, it } from "vitest";
 import { seedForFile } from "#tests/support/test-db.ts";
 import { getDb } from "#app/db/client.server.ts";
 import { selectionIds } from "#app/models/registry/constraints.server.ts";
-import { clearDensityTexts, densityTextHeld } from "#app/models/releases/density-text.server.ts";
+import { clearDensityTexts, densityTextHeld, warmDensityTexts } from "#app/models/releases/density-text.server.ts";
 import { usageOf } from "#app/models/releases/downloads.server.ts";
 import { releaseResponse } from "#app/models/releases/release-download.server.ts";
 import { publishRelease, releaseById } from "#app/models/releases/releases.server.ts";
@@ -98,6 +98,26 @@ describe("constraint downloads read as they are written", () => {
       expect(c.density!.start_cal_bp).toBe(row.start);
       expect(c.density!.p).toEqual(Array.from(stored, (v) => Number(v.toPrecision(6))));
     }
+  });
+
+  it("the start-up warm-up holds every current density, yields between slices, and downloads stay byte for byte", async () => {
+    const db = getDb();
+    const f = filter("");
+    clearDensityTexts();
+    const cold = await bytes(selectionResponse(db, selectConstraints(db, f, new Date(0)), "json", { densities: true }));
+    clearDensityTexts();
+    let pauses = 0;
+    const held = await warmDensityTexts(db, { slice: 50, pause: async () => void pauses++ });
+    const current = db.$client
+      .prepare("select count(distinct density_sha256) from calibrations where is_current = 1 and density is not null")
+      .pluck()
+      .get() as number;
+    expect(held.entries).toBe(current);
+    expect(pauses).toBeGreaterThanOrEqual(Math.floor(current / 50));
+    const warm = await bytes(selectionResponse(db, selectConstraints(db, f, new Date(0)), "json", { densities: true }));
+    expect(Buffer.compare(cold, warm)).toBe(0);
+    // Nothing new was written for the warm download: every density came from the warm-up.
+    expect(densityTextHeld().entries).toBe(current);
   });
 
   it("a release's JSON with densities is the same whether its densities are held or read", async () => {

@@ -4,6 +4,8 @@
 // density always writes the same text. Downloads with densities ask here first and read and write
 // only the densities not held; the first full download fills the cache, later ones skip both the
 // blob reads and the formatting. Bounded by DENSITY_TEXT_CACHE_MB (least recently used out first).
+import type { Db } from "#app/db/client.server.ts";
+import { decodeDensity } from "#app/models/calibration/calibrations.server.ts";
 import { env } from "#app/utils/env.server.ts";
 import { probabilityArrayBytes } from "#app/utils/probability-text.ts";
 
@@ -45,4 +47,39 @@ export function densityTextHeld(): { entries: number; bytes: number } {
 export function clearDensityTexts(): void {
   held.clear();
   heldBytes = 0;
+}
+
+/**
+ * Writes the current calibrations' densities into the cache in the background after a start, a
+ * slice at a time with a turn of the event loop between slices, so requests keep being answered
+ * and the first download with densities after a restart costs what a later one does. Stops when
+ * the bound is reached (the cache would only evict what it just wrote). Resolves with what it held.
+ */
+export async function warmDensityTexts(
+  db: Db,
+  options: { slice?: number; pause?: () => Promise<void> } = {},
+): Promise<{ entries: number; bytes: number }> {
+  const slice = options.slice ?? 250;
+  const pause = options.pause ?? (() => new Promise<void>((resolve) => setImmediate(resolve)));
+  const ids = db.$client
+    .prepare(
+      "select id from calibrations where is_current = 1 and density is not null and density_sha256 is not null order by id",
+    )
+    .pluck()
+    .all() as number[];
+  const read = db.$client.prepare(
+    "select density_sha256 as sha, density as blob, density_start_cal_bp as start from calibrations where id = ?",
+  );
+  for (let i = 0; i < ids.length; i += slice) {
+    for (const id of ids.slice(i, i + slice)) {
+      const row = read.get(id) as { sha: string; blob: Buffer | null; start: number | null } | undefined;
+      if (!row?.blob || row.start === null || held.has(row.sha)) continue;
+      const before = held.size;
+      densityText(row.sha, decodeDensity(row.blob, row.start).values);
+      // At the bound a new text pushes out one just written (or is not kept): stop there.
+      if (held.size <= before) return densityTextHeld();
+    }
+    await pause();
+  }
+  return densityTextHeld();
 }
