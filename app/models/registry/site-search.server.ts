@@ -3,16 +3,13 @@
 // from the case-insensitive name index; words inside names and points near a position fill the
 // rest with bounded scans; every answer is capped.
 import type { Db } from "#app/db/client.server.ts";
+import { escapeLike } from "#app/utils/sql-like.ts";
 
 export const SITE_SEARCH_LIMIT = 20;
 
 export type SiteHit = { id: number; name: string; latitude: number; longitude: number; distanceKm: number | null };
 
 export type SiteQuery = { q?: string; near?: { latitude: number; longitude: number }; limit?: number };
-
-function escapeLike(s: string): string {
-  return s.replace(/[\\%_]/g, (m) => `\\${m}`);
-}
 
 /** Great-circle distance, km (spherical Earth, mean radius 6,371 km). */
 function distanceKm(a: { latitude: number; longitude: number }, b: { latitude: number; longitude: number }): number {

@@ -158,7 +158,7 @@ export default function Constraints({ loaderData, actionData }: Route.ComponentP
       return;
     }
     if (polygon.length === 0 || polygon.length >= 3) refresh();
-    // eslint-disable-next-line react-hooks/exhaustive-deps
+    // eslint-disable-next-line react-hooks/exhaustive-deps -- only a changed polygon refreshes; `refresh` and `polygon` change identity on every load of the summary
   }, [polygonText]);
 
   const addVertex = useCallback((p: [number, number]) => setPolygon((prev) => [...prev, p]), []);

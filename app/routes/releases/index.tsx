@@ -3,6 +3,7 @@ import type { Route } from "./+types/index";
 import { ErrorView } from "#app/components/error-view.tsx";
 import { getDb } from "#app/db/client.server.ts";
 import { listReleases } from "#app/models/releases/releases.server.ts";
+import { formatDay } from "#app/utils/time-format.ts";
 
 export const meta: Route.MetaFunction = () => [{ title: "Releases · Thawline" }];
 
@@ -54,7 +55,7 @@ export default function Releases({ loaderData }: Route.ComponentProps) {
                 </td>
                 <td>{r.version}</td>
                 <td className="text-right tabular-nums">{r.count.toLocaleString("en")}</td>
-                <td>{new Date(r.publishedAt).toISOString().slice(0, 10)}</td>
+                <td>{formatDay(r.publishedAt)}</td>
                 <td className="font-mono text-sm">{r.checksum.slice(0, 12)}…</td>
               </tr>
             ))}

@@ -10,6 +10,7 @@ import { notFound } from "#app/utils/http.server.ts";
 import { CHECK_SEVERITY_LABELS, CONSTRAINT_KIND_LABELS, FLAG_LABELS, gradeWord, METHOD_LABELS } from "#app/utils/labels.ts";
 import type { MapSite } from "#app/utils/map-site.ts";
 import { useHydrated } from "#app/utils/use-hydrated.ts";
+import { formatDay } from "#app/utils/time-format.ts";
 
 const SiteMap = lazy(() => import("#app/components/map/site-map.client.tsx"));
 
@@ -76,8 +77,8 @@ export default function ReleasePage({ loaderData }: Route.ComponentProps) {
         </h1>
         {release.description ? <p className="mt-1 max-w-3xl">{release.description}</p> : null}
         <p className="mt-1 text-muted">
-          {release.itemCount.toLocaleString("en")} constraints · published{" "}
-          {new Date(release.publishedAt).toISOString().slice(0, 10)} by {release.publishedBy}
+          {release.itemCount.toLocaleString("en")} constraints · published {formatDay(release.publishedAt)} by{" "}
+          {release.publishedBy}
         </p>
       </header>
 
@@ -241,7 +242,7 @@ function ReleaseMap({ sites }: { sites: MapSite[] }) {
             Math.ceil(ages[Math.floor(ages.length * 0.98)]! / 50) * 50,
           ]
         : [0, 15000],
-    // eslint-disable-next-line react-hooks/exhaustive-deps
+    // eslint-disable-next-line react-hooks/exhaustive-deps -- `ages` is derived from `sites` on every render; the domain changes only with the sites
     [sites],
   );
   const [time, setTime] = useState(domain[1]);
