@@ -5,9 +5,16 @@
 export function PublicationCitation({
   publication,
 }: {
-  publication: { citation: string; doi: string | null; title: string | null };
+  publication: { citation: string; doi: string | null; title?: string | null };
 }) {
   const { doi } = publication;
+  // A stored one-line citation may already end with its DOI (a release's frozen "untitled — doi:…"):
+  // the DOI is then written once, as the link.
+  const suffix = doi ? `doi:${doi}` : null;
+  const text =
+    suffix && publication.citation.endsWith(suffix)
+      ? publication.citation.slice(0, -suffix.length).trimEnd()
+      : publication.citation;
   const link = doi ? (
     <a href={`https://doi.org/${doi}`} rel="noopener noreferrer">
       doi:{doi}
@@ -16,7 +23,7 @@ export function PublicationCitation({
   if (publication.title === null && doi) return <span>untitled — {link}</span>;
   return (
     <span>
-      {publication.citation}
+      {text}
       {link ? <> {link}</> : null}
     </span>
   );

@@ -11,6 +11,7 @@ import { CHECK_SEVERITY_LABELS, CONSTRAINT_KIND_LABELS, FLAG_LABELS, gradeWord, 
 import type { MapSite } from "#app/utils/map-site.ts";
 import { useHydrated } from "#app/utils/use-hydrated.ts";
 import { formatDay } from "#app/utils/time-format.ts";
+import { PublicationCitation } from "#app/components/publication-citation.tsx";
 
 const SiteMap = lazy(() => import("#app/components/map/site-map.client.tsx"));
 
@@ -166,8 +167,7 @@ export default function ReleasePage({ loaderData }: Route.ComponentProps) {
         <ul className="text-sm">
           {publications.map((p) => (
             <li key={p.citation}>
-              {p.citation}
-              {p.doi ? ` doi:${p.doi}` : ""} ({p.count})
+              <PublicationCitation publication={p} /> ({p.count.toLocaleString("en")})
             </li>
           ))}
         </ul>
