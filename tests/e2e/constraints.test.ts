@@ -148,4 +148,59 @@ describe("constraint sets and releases", () => {
     expect(releaseRows.map((r) => r.id)).toEqual(parsed.data.map((r) => r.id));
     await visitor.close();
   });
+
+  test("a modeller draws a region on the map by clicking its corners; the count is the sites inside it", async () => {
+    const db = e2e.db;
+    const context = await e2e.browser.newContext();
+    const page = await context.newPage();
+    await signInAs(page, "modeller@example.org");
+    await page.goto(`${baseUrl}/constraints`);
+    await waitForHydration(page);
+    const all = await countOf(page);
+    const map = page.locator(".leaflet-container");
+    await map.waitFor();
+    const box = (await map.boundingBox())!;
+    // Four corners around the middle of the map, clockwise on screen.
+    const corners = [
+      [0.3, 0.3],
+      [0.7, 0.3],
+      [0.7, 0.7],
+      [0.3, 0.7],
+    ] as const;
+    for (const [fx, fy] of corners) await page.mouse.click(box.x + fx * box.width, box.y + fy * box.height);
+    await page.getByText("Polygon: 4 points.").waitFor();
+    const ring = (await page.locator('input[name="polygon"]').inputValue())
+      .split(";")
+      .map((p) => p.split(",").map(Number) as [number, number]);
+    expect(ring).toHaveLength(4);
+
+    // Independent count: every counted determination whose site lies inside the ring (ray casting).
+    const inside = ([x, y]: [number, number]) => {
+      let hit = false;
+      for (let i = 0, j = ring.length - 1; i < ring.length; j = i++) {
+        const [xi, yi] = ring[i]!;
+        const [xj, yj] = ring[j]!;
+        if (yi > y !== yj > y && x < ((xj - xi) * (y - yi)) / (yj - yi) + xi) hit = !hit;
+      }
+      return hit;
+    };
+    const rows = db
+      .prepare(
+        `select t.longitude lon, t.latitude lat from determinations d join samples sa on sa.id = d.sample_id
+         join sites t on t.id = sa.site_id join calibrations c on c.determination_id = d.id and c.is_current = 1
+         where d.status <> 'withdrawn' and c.median_cal_bp is not null`,
+      )
+      .all() as { lon: number; lat: number }[];
+    expect(rows.length).toBe(all);
+    const expected = rows.filter((r) => inside([r.lon, r.lat])).length;
+    expect(expected).toBeGreaterThan(0);
+    expect(expected).toBeLessThan(all);
+    await expect.poll(() => countOf(page), { timeout: 15_000 }).toBe(expected);
+    expect(new URL(page.url()).searchParams.get("polygon")).toBeTruthy();
+
+    // Clearing the region gives the whole registry back.
+    await page.getByRole("button", { name: "Clear region" }).click();
+    await expect.poll(() => countOf(page), { timeout: 15_000 }).toBe(all);
+    await context.close();
+  });
 });
