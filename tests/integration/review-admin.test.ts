@@ -194,7 +194,8 @@ describe("margin reconstructions (editors)", () => {
     expect(count("select count(*) from reconstructions where used_for_checks = 1")).toBe(0);
     expect((await send(editor.cookie, { intent: "use", id: "999999" })).status).toBe(404);
     expect((await send(editor.cookie, { intent: "dance" })).status).toBe(400);
-  });
+    // Two check runs start in the writer thread meanwhile; on a loaded machine this takes 15–35 s.
+  }, 90_000);
 });
 
 describe("the whole-registry check run from the page, and who follows jobs", () => {
