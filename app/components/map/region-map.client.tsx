@@ -67,6 +67,7 @@ export default function RegionMap(props: Props) {
       style={{ height: 420, background: SEA_COLOUR, cursor: "crosshair" }}
       className="rounded border border-ice-200"
       data-testid="region-map"
+      attributionControl={false}
     >
       <Basemap />
       <Layers {...props} />

@@ -71,6 +71,7 @@ export default function RunMap({ sites, ice, iceLabel }: Props) {
       style={{ height: 460, background: SEA_COLOUR }}
       className="rounded border border-ice-200"
       data-testid="run-map"
+      attributionControl={false}
     >
       <Basemap />
       <Ice ice={ice} iceLabel={iceLabel} />
