@@ -11,7 +11,7 @@ import net from "node:net";
 import os from "node:os";
 import path from "node:path";
 import autocannon from "autocannon";
-import type { BenchSection } from "./support.ts";
+import { radiocarbonSheetRows, SHEET_HEADERS, type BenchSection } from "./support.ts";
 
 export type LoadRow = {
   target: string;
@@ -87,44 +87,16 @@ async function waitUp(base: string) {
 
 /** A 5,000-row CSV of plausible radiocarbon rows, unique per call so commits never collide. */
 function commitSheet(tag: string, labPrefix: string, labName: string): string {
-  const headers = [
-    "site_name",
-    "latitude",
-    "longitude",
-    "sample_code",
-    "material",
-    "method",
-    "lab_code",
-    "lab_name",
-    "c14_age",
-    "c14_error",
-    "curve",
-    "delta_r",
-    "delta_r_error",
-    "delta_r_curve",
-    "constraint_kind",
-  ];
-  const rows = Array.from({ length: 5000 }, (_, i) => {
-    const marine = i % 3 === 0;
-    return [
-      `Load Cove ${tag} ${i % 300}`,
-      57 + (i % 300) / 150,
-      -64 - (i % 97) / 50,
-      `LD-${tag}-${i}`,
-      marine ? "marine shell" : "plant macrofossil",
-      "radiocarbon",
-      `${labPrefix}-L${tag}${i}`,
-      labName,
-      8000 + (i % 3000),
-      30 + (i % 50),
-      marine ? "marine20" : "intcal20",
-      marine ? 50 : "",
-      marine ? 40 : "",
-      marine ? "marine20" : "",
-      "minimum",
-    ].join(",");
+  const rows = radiocarbonSheetRows({
+    count: 5000,
+    tag,
+    place: "Load Cove",
+    sites: 300,
+    samplePrefix: "LD",
+    labCodePrefix: `${labPrefix}-L`,
+    labName,
   });
-  return [headers.join(","), ...rows].join("\n");
+  return [SHEET_HEADERS.join(","), ...rows.map((r) => r.join(","))].join("\n");
 }
 
 /** Uploads and commits 5,000-row sheets one after another until told to stop. */

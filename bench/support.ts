@@ -66,3 +66,57 @@ export async function timeLoader(
   await mod.loader({ request, params, context: {} } as never);
   return performance.now() - start;
 }
+
+/** The upload template's columns the benches' invented radiocarbon sheets fill. */
+export const SHEET_HEADERS = [
+  "site_name",
+  "latitude",
+  "longitude",
+  "sample_code",
+  "material",
+  "method",
+  "lab_code",
+  "lab_name",
+  "c14_age",
+  "c14_error",
+  "curve",
+  "delta_r",
+  "delta_r_error",
+  "delta_r_curve",
+  "constraint_kind",
+];
+
+/**
+ * Invented radiocarbon rows in SHEET_HEADERS' order, a third of them marine shells on Marine20
+ * with a ΔR, spread over `sites` places; codes carry `tag`, so sheets of different tags never collide.
+ */
+export function radiocarbonSheetRows(o: {
+  count: number;
+  tag: string;
+  place: string;
+  sites: number;
+  samplePrefix: string;
+  labCodePrefix: string;
+  labName: string;
+}): (string | number)[][] {
+  return Array.from({ length: o.count }, (_, i) => {
+    const marine = i % 3 === 0;
+    return [
+      `${o.place} ${o.tag} ${i % o.sites}`,
+      57 + (i % o.sites) / (o.sites / 2),
+      -64 - (i % 97) / 50,
+      `${o.samplePrefix}-${o.tag}-${i}`,
+      marine ? "marine shell" : "plant macrofossil",
+      "radiocarbon",
+      `${o.labCodePrefix}${o.tag}${i}`,
+      o.labName,
+      8000 + (i % 3000),
+      30 + (i % 50),
+      marine ? "marine20" : "intcal20",
+      marine ? 50 : "",
+      marine ? 40 : "",
+      marine ? "marine20" : "",
+      "minimum",
+    ];
+  });
+}

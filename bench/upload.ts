@@ -8,7 +8,7 @@ import { commitUpload } from "#app/models/submission/uploads/commit.server.ts";
 import { guessMapping } from "#app/models/submission/uploads/mapping.server.ts";
 import { readUpload } from "#app/models/submission/uploads/read-sheet.server.ts";
 import { validateRows } from "#app/models/submission/uploads/validate.server.ts";
-import { seconds, type BenchSection } from "./support.ts";
+import { radiocarbonSheetRows, seconds, SHEET_HEADERS, type BenchSection } from "./support.ts";
 
 export type UploadBench = {
   rows: number;
@@ -64,45 +64,16 @@ async function benchUpload(db: Db, file: Buffer, kind: "csv" | "xlsx", userId: n
   };
 }
 
-const HEADERS = [
-  "site_name",
-  "latitude",
-  "longitude",
-  "sample_code",
-  "material",
-  "method",
-  "lab_code",
-  "lab_name",
-  "c14_age",
-  "c14_error",
-  "curve",
-  "delta_r",
-  "delta_r_error",
-  "delta_r_curve",
-  "constraint_kind",
-];
-
 /** 5,500 invented radiocarbon rows, a third of them marine, at one demo lab. */
 function sheetRows(tag: string, lab: { name: string; code_prefix: string }) {
-  return Array.from({ length: 5500 }, (_, i) => {
-    const marineRow = i % 3 === 0;
-    return [
-      `Bench Cove ${tag} ${i % 400}`,
-      57 + (i % 400) / 200,
-      -64 - (i % 97) / 50,
-      `BN-${tag}-${i}`,
-      marineRow ? "marine shell" : "plant macrofossil",
-      "radiocarbon",
-      `${lab.code_prefix}-B${tag}${i}`,
-      lab.name,
-      8000 + (i % 3000),
-      30 + (i % 50),
-      marineRow ? "marine20" : "intcal20",
-      marineRow ? 50 : "",
-      marineRow ? 40 : "",
-      marineRow ? "marine20" : "",
-      "minimum",
-    ];
+  return radiocarbonSheetRows({
+    count: 5500,
+    tag,
+    place: "Bench Cove",
+    sites: 400,
+    samplePrefix: "BN",
+    labCodePrefix: `${lab.code_prefix}-B`,
+    labName: lab.name,
   });
 }
 
@@ -114,10 +85,10 @@ export const bench: BenchSection = {
     const lab = db.$client.prepare("select name, code_prefix from labs limit 1").get() as { name: string; code_prefix: string };
     const wb = new ExcelJS.Workbook();
     const ws = wb.addWorksheet("determinations");
-    ws.addRow(HEADERS);
+    ws.addRow(SHEET_HEADERS);
     for (const r of sheetRows("X", lab)) ws.addRow(r);
     const xlsx = Buffer.from(await wb.xlsx.writeBuffer());
-    const csv = Buffer.from([HEADERS.join(","), ...sheetRows("C", lab).map((r) => r.join(","))].join("\n"));
+    const csv = Buffer.from([SHEET_HEADERS.join(","), ...sheetRows("C", lab).map((r) => r.join(","))].join("\n"));
     const contributor = userId("contributor@example.org");
     for (const [kind, file] of [
       ["xlsx", xlsx],
