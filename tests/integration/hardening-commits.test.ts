@@ -1,15 +1,13 @@
 import { afterAll, describe, expect, it } from "vitest";
 import { getDb } from "#app/db/client.server.ts";
 import { createToken } from "#app/models/accounts/tokens.server.ts";
-import * as uploadsApi from "#app/routes/api/v1/uploads.ts";
 import * as commitApi from "#app/routes/api/v1/uploads.commit.ts";
 import * as uploadPage from "#app/routes/contribute/upload.tsx";
 import * as jobsResource from "#app/routes/resources/jobs.ts";
 import { hit } from "#app/utils/rate-limit.server.ts";
 import { closeWorkers } from "#app/workers/pool.server.ts";
-import { createTestUser } from "#tests/factories.ts";
 import { args, get, ORIGIN, personWithSession, post, run } from "#tests/support/auth.ts";
-import { toCsvText, uploadRows } from "#tests/support/upload-files.ts";
+import { contributorWithToken, determinationCount, uploadedSheet } from "#tests/support/api-uploads.ts";
 
 /*
  * Issue 14: commits in the writer thread while the server's own thread writes. A commit read the
@@ -20,30 +18,11 @@ import { toCsvText, uploadRows } from "#tests/support/upload-files.ts";
 
 afterAll(() => closeWorkers());
 
-const count = () => getDb().$client.prepare("select count(*) from determinations").pluck().get() as number;
-
-function contributor() {
-  const user = createTestUser(getDb(), ["contributor"]);
-  return { ...user, token: createToken(getDb(), user.id, "test", { actorId: user.id }).token };
-}
-
-async function uploaded(rows: number, prefix: string, token: string): Promise<string> {
-  const body = new FormData();
-  body.append("file", new Blob([toCsvText(uploadRows(rows, { prefix }))]), `${prefix}.csv`);
-  const res = await run(() =>
-    uploadsApi.action(
-      args(new Request(`${ORIGIN}/api/v1/uploads`, { method: "POST", body, headers: { Authorization: `Bearer ${token}` } })),
-    ),
-  );
-  expect(res.status).toBe(200);
-  return (res.data as { upload_id: string }).upload_id;
-}
-
 describe("commits while the server's thread writes", () => {
   it("a commit succeeds although this thread keeps writing while it is checked and written", { timeout: 240_000 }, async () => {
-    const person = contributor();
-    const id = await uploaded(1500, "ZC1Q", person.token);
-    const before = count();
+    const person = contributorWithToken();
+    const id = await uploadedSheet(1500, "ZC1Q", person.token);
+    const before = determinationCount();
     let committing = true;
     let writes = 0;
     // Small writes on this thread, as sign-ins and rate limits make them, all through the commit.
@@ -69,7 +48,7 @@ describe("commits while the server's thread writes", () => {
     await writer;
     expect(result.status).toBe(200);
     expect((result.data as { committed: number }).committed).toBe(1500);
-    expect(count()).toBe(before + 1500);
+    expect(determinationCount()).toBe(before + 1500);
     expect(writes).toBeGreaterThan(0);
   });
 });
@@ -81,7 +60,7 @@ describe("a commit's progress", () => {
     async () => {
       const p = await personWithSession(["contributor"]);
       const token = createToken(getDb(), p.id, "test", { actorId: p.id }).token;
-      const publicId = await uploaded(1500, "ZC2Q", token);
+      const publicId = await uploadedSheet(1500, "ZC2Q", token);
       const ticket = "t-0f1e2d";
       const seen: { status: string; progress: number; total: number; message: string | null }[] = [];
       let waiting = true;

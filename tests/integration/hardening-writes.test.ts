@@ -1,14 +1,12 @@
 import { afterAll, describe, expect, it } from "vitest";
 import { getDb } from "#app/db/client.server.ts";
-import { createToken } from "#app/models/accounts/tokens.server.ts";
 import { getBatchForUser } from "#app/models/submission/uploads/batches.server.ts";
-import * as uploadsApi from "#app/routes/api/v1/uploads.ts";
 import * as commitApi from "#app/routes/api/v1/uploads.commit.ts";
 import * as determinationsApi from "#app/routes/api/v1/determinations.ts";
 import { closeWorkers, databaseFileOf, runInWorker, TaskStopped } from "#app/workers/pool.server.ts";
-import { createTestUser } from "#tests/factories.ts";
 import { args, get, ORIGIN, run } from "#tests/support/auth.ts";
-import { toCsvText, uploadRows } from "#tests/support/upload-files.ts";
+import { uploadRows } from "#tests/support/upload-files.ts";
+import { contributorWithToken, determinationCount, uploadedSheet } from "#tests/support/api-uploads.ts";
 
 /*
  * Issue 14, item 11: long writes no longer block readers. A 5,000-row commit blocked every request
@@ -18,26 +16,6 @@ import { toCsvText, uploadRows } from "#tests/support/upload-files.ts";
  */
 
 afterAll(() => closeWorkers());
-
-const count = () => getDb().$client.prepare("select count(*) from determinations").pluck().get() as number;
-
-function contributor() {
-  const user = createTestUser(getDb(), ["contributor"]);
-  return { ...user, token: createToken(getDb(), user.id, "test", { actorId: user.id }).token };
-}
-
-async function uploaded(rows: number, prefix: string, token: string): Promise<string> {
-  const body = new FormData();
-  body.append("file", new Blob([toCsvText(uploadRows(rows, { prefix }))]), `${prefix}.csv`);
-  const res = await run(() =>
-    uploadsApi.action(
-      args(new Request(`${ORIGIN}/api/v1/uploads`, { method: "POST", body, headers: { Authorization: `Bearer ${token}` } })),
-    ),
-  );
-  expect(res.status).toBe(200);
-  expect((res.data as { valid: number }).valid).toBe(rows);
-  return (res.data as { upload_id: string }).upload_id;
-}
 
 /** Runs `work` while timing the longest pause of this thread's event loop and answering GETs. */
 async function whileReading<T>(work: () => Promise<T>, token: string) {
@@ -74,9 +52,9 @@ async function whileReading<T>(work: () => Promise<T>, token: string) {
 
 describe("case 11: commits run off the request thread, all or nothing", () => {
   it("a 5,000-row commit: this thread keeps answering GETs while it is written", { timeout: 240_000 }, async () => {
-    const person = contributor();
-    const id = await uploaded(5000, "ZW1Q", person.token);
-    const before = count();
+    const person = contributorWithToken();
+    const id = await uploadedSheet(5000, "ZW1Q", person.token);
+    const before = determinationCount();
     const commit = new Request(`${ORIGIN}/api/v1/uploads/${id}/commit`, {
       method: "POST",
       body: JSON.stringify({ mode: "all" }),
@@ -88,7 +66,7 @@ describe("case 11: commits run off the request thread, all or nothing", () => {
     );
     expect(result.status).toBe(200);
     expect((result.data as { committed: number }).committed).toBe(5000);
-    expect(count()).toBe(before + 5000);
+    expect(determinationCount()).toBe(before + 5000);
     // Before, the thread stopped for the whole commit (≈ 4 s) and no GET was answered meanwhile.
     expect(reads).toBeGreaterThan(1);
     expect(pauseMs).toBeLessThan(1500);
@@ -98,12 +76,12 @@ describe("case 11: commits run off the request thread, all or nothing", () => {
     "a commit stopped at any point leaves the registry as it was (one transaction per commit)",
     { timeout: 240_000 },
     async () => {
-      const person = contributor();
+      const person = contributorWithToken();
       const file = databaseFileOf(getDb())!;
       for (const [i, stopAfterMs] of [50, 400, 1200].entries()) {
-        const id = await uploaded(600, `ZW${i + 2}Q`, person.token);
+        const id = await uploadedSheet(600, `ZW${i + 2}Q`, person.token);
         const batch = getBatchForUser(getDb(), id, person.id)!;
-        const before = count();
+        const before = determinationCount();
         const outcome = await runInWorker(
           "writer",
           "commitUpload",
@@ -114,7 +92,7 @@ describe("case 11: commits run off the request thread, all or nothing", () => {
           () => "committed",
           (e: unknown) => (e instanceof TaskStopped ? "stopped" : e),
         );
-        const after = count();
+        const after = determinationCount();
         const status = getBatchForUser(getDb(), id, person.id)!.status;
         if (outcome === "stopped") expect([after, status]).toEqual([before, "parsed"]);
         else expect([outcome, after, status]).toEqual(["committed", before + 600, "committed"]);
@@ -123,9 +101,9 @@ describe("case 11: commits run off the request thread, all or nothing", () => {
   );
 
   it("a 2,000-row JSON submission is written off the thread too, in the order sent", { timeout: 240_000 }, async () => {
-    const person = contributor();
+    const person = contributorWithToken();
     const rows = uploadRows(2000, { prefix: "ZW9Q" });
-    const before = count();
+    const before = determinationCount();
     const request = new Request(`${ORIGIN}/api/v1/determinations`, {
       method: "POST",
       body: JSON.stringify(rows),
@@ -136,7 +114,7 @@ describe("case 11: commits run off the request thread, all or nothing", () => {
     const ids = (result.data as { determination_ids: number[] }).determination_ids;
     expect(ids).toHaveLength(2000);
     expect([...ids].sort((a, b) => a - b)).toEqual(ids);
-    expect(count()).toBe(before + 2000);
+    expect(determinationCount()).toBe(before + 2000);
     expect(pauseMs).toBeLessThan(1500);
   });
 });
