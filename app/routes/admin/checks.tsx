@@ -20,6 +20,7 @@ import { redirectWithFlash } from "#app/utils/flash.server.ts";
 import { badRequest, notFound } from "#app/utils/http.server.ts";
 import { formatDay } from "#app/utils/time-format.ts";
 import { formatBytes } from "#app/utils/format-bytes.ts";
+import { LabelledField } from "#app/components/ui/labelled-field.tsx";
 
 export const meta: Route.MetaFunction = () => [{ title: "Checks and reconstructions · Thawline" }];
 
@@ -261,34 +262,34 @@ export default function ChecksPage({ loaderData, actionData }: Route.ComponentPr
         </p>
         <Form method="post" encType="multipart/form-data" className="card space-y-4" {...getFormProps(form)}>
           <input type="hidden" name="intent" value="upload" />
-          <Field label="GeoJSON file" id={fields.file.id} errors={fields.file.errors} errorId={fields.file.errorId}>
+          <LabelledField label="GeoJSON file" id={fields.file.id} errors={fields.file.errors} errorId={fields.file.errorId}>
             <input
               {...getInputProps(fields.file, { type: "file" })}
               accept=".geojson,.json,application/geo+json"
               className="input"
             />
-          </Field>
+          </LabelledField>
           <div className="grid gap-4 sm:grid-cols-2">
-            <Field label="Name" id={fields.name.id} errors={fields.name.errors} errorId={fields.name.errorId}>
+            <LabelledField label="Name" id={fields.name.id} errors={fields.name.errors} errorId={fields.name.errorId}>
               <input {...getInputProps(fields.name, { type: "text" })} className="input" autoComplete="off" />
-            </Field>
-            <Field
+            </LabelledField>
+            <LabelledField
               label="Uncertainty of the ages, years (1σ)"
               id={fields.uncertaintyYr.id}
               errors={fields.uncertaintyYr.errors}
               errorId={fields.uncertaintyYr.errorId}
             >
               <input {...getInputProps(fields.uncertaintyYr, { type: "number" })} className="input" placeholder="from the file" />
-            </Field>
+            </LabelledField>
           </div>
-          <Field
+          <LabelledField
             label="Description and source"
             id={fields.description.id}
             errors={fields.description.errors}
             errorId={fields.description.errorId}
           >
             <textarea {...getTextareaProps(fields.description)} rows={2} className="input" />
-          </Field>
+          </LabelledField>
           <label className="flex items-center gap-2">
             <input {...getInputProps(fields.useNow, { type: "checkbox" })} /> Use it for the reconstruction check at once (reruns
             every check)
@@ -298,22 +299,6 @@ export default function ChecksPage({ loaderData, actionData }: Route.ComponentPr
           </button>
         </Form>
       </section>
-    </div>
-  );
-}
-
-function Field(props: { label: string; id: string; errors: string[] | undefined; errorId: string; children: React.ReactNode }) {
-  return (
-    <div className="field">
-      <label htmlFor={props.id}>{props.label}</label>
-      {props.children}
-      {props.errors?.length ? (
-        <ul id={props.errorId} className="field-error list-disc pl-5" role="alert">
-          {props.errors.map((e) => (
-            <li key={e}>{e}</li>
-          ))}
-        </ul>
-      ) : null}
     </div>
   );
 }

@@ -18,6 +18,7 @@ import { redirectWithFlash } from "#app/utils/flash.server.ts";
 import { badRequest, notFound } from "#app/utils/http.server.ts";
 import { ActionButton } from "#app/components/ui/action-button.tsx";
 import { formatBytes } from "#app/utils/format-bytes.ts";
+import { LabelledField } from "#app/components/ui/labelled-field.tsx";
 
 export const meta: Route.MetaFunction = () => [{ title: "Curves — Thawline" }];
 
@@ -302,11 +303,11 @@ export default function CurvesPage({ loaderData, actionData }: Route.ComponentPr
               {form.errors.join(" ")}
             </p>
           ) : null}
-          <Field label="Curve file (CSV)" id={fields.file.id} errors={fields.file.errors} errorId={fields.file.errorId}>
+          <LabelledField label="Curve file (CSV)" id={fields.file.id} errors={fields.file.errors} errorId={fields.file.errorId}>
             <input {...getInputProps(fields.file, { type: "file" })} accept=".csv,text/csv" className="input" />
-          </Field>
+          </LabelledField>
           <div className="grid gap-4 sm:grid-cols-2">
-            <Field
+            <LabelledField
               label="Short name (used in uploads and the API)"
               id={fields.name.id}
               errors={fields.name.errors}
@@ -318,8 +319,8 @@ export default function CurvesPage({ loaderData, actionData }: Route.ComponentPr
                 placeholder="shcal20"
                 autoComplete="off"
               />
-            </Field>
-            <Field
+            </LabelledField>
+            <LabelledField
               label="Display name"
               id={fields.displayName.id}
               errors={fields.displayName.errors}
@@ -331,74 +332,51 @@ export default function CurvesPage({ loaderData, actionData }: Route.ComponentPr
                 placeholder="SHCal20"
                 autoComplete="off"
               />
-            </Field>
-            <Field label="Kind" id={fields.kind.id} errors={fields.kind.errors} errorId={fields.kind.errorId}>
+            </LabelledField>
+            <LabelledField label="Kind" id={fields.kind.id} errors={fields.kind.errors} errorId={fields.kind.errorId}>
               <select {...getSelectProps(fields.kind)} className="input">
                 <option value="atmospheric">atmospheric</option>
                 <option value="marine">marine</option>
               </select>
-            </Field>
-            <Field label="Version" id={fields.version.id} errors={fields.version.errors} errorId={fields.version.errorId}>
+            </LabelledField>
+            <LabelledField label="Version" id={fields.version.id} errors={fields.version.errors} errorId={fields.version.errorId}>
               <input
                 {...getInputProps(fields.version, { type: "text" })}
                 className="input"
                 placeholder="2020"
                 autoComplete="off"
               />
-            </Field>
-            <Field
+            </LabelledField>
+            <LabelledField
               label="Largest step between rows, years"
               id={fields.maxStep.id}
               errors={fields.maxStep.errors}
               errorId={fields.maxStep.errorId}
             >
               <input {...getInputProps(fields.maxStep, { type: "number" })} className="input" />
-            </Field>
-            <Field label="DOI (optional)" id={fields.doi.id} errors={fields.doi.errors} errorId={fields.doi.errorId}>
+            </LabelledField>
+            <LabelledField label="DOI (optional)" id={fields.doi.id} errors={fields.doi.errors} errorId={fields.doi.errorId}>
               <input
                 {...getInputProps(fields.doi, { type: "text" })}
                 className="input"
                 placeholder="10.99999/curve.1"
                 autoComplete="off"
               />
-            </Field>
+            </LabelledField>
           </div>
-          <Field label="Citation" id={fields.citation.id} errors={fields.citation.errors} errorId={fields.citation.errorId}>
+          <LabelledField
+            label="Citation"
+            id={fields.citation.id}
+            errors={fields.citation.errors}
+            errorId={fields.citation.errorId}
+          >
             <textarea {...getTextareaProps(fields.citation)} rows={2} className="input" />
-          </Field>
+          </LabelledField>
           <button type="submit" className="btn" disabled={busy}>
             {busy ? "Checking the file…" : "Add curve"}
           </button>
         </Form>
       </section>
-    </div>
-  );
-}
-
-function Field({
-  label,
-  id,
-  errors,
-  errorId,
-  children,
-}: {
-  label: string;
-  id: string;
-  errors: string[] | undefined;
-  errorId: string;
-  children: React.ReactNode;
-}) {
-  return (
-    <div className="field">
-      <label htmlFor={id}>{label}</label>
-      {children}
-      {errors?.length ? (
-        <ul id={errorId} className="field-error list-none" role="alert">
-          {errors.map((e) => (
-            <li key={e}>{e}</li>
-          ))}
-        </ul>
-      ) : null}
     </div>
   );
 }
