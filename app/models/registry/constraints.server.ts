@@ -82,3 +82,11 @@ export function selectionCount(db: Db, f: ConstraintFilter): number {
   const w = constraintConditions(f);
   return (db.$client.prepare(`select count(*) as n ${SELECTION_FROM} ${w.where}`).get(...w.params) as { n: number }).n;
 }
+
+/** The choices the filter form offers: every material and every curve name in the registry. */
+export function constraintFilterChoices(db: Db): { materials: string[]; curves: string[] } {
+  return {
+    materials: db.$client.prepare("select distinct material from samples order by material").pluck().all() as string[],
+    curves: db.$client.prepare("select distinct name from curves order by name").pluck().all() as string[],
+  };
+}

@@ -150,3 +150,14 @@ export function nextInQueue(db: Db, afterId: number, reviewerId: number): number
     .pluck()
     .get(...w.params, afterId, Date.now(), reviewerId) ?? null) as number | null;
 }
+
+/** Who holds this determination's lease now, if anyone. */
+export function currentLease(db: Db, id: number): { name: string; reviewerId: number; expiresAt: number } | null {
+  return (
+    (db.$client
+      .prepare(
+        "select u.name, l.reviewer_id as reviewerId, l.expires_at as expiresAt from review_leases l join users u on u.id = l.reviewer_id where l.determination_id = ? and l.expires_at > ?",
+      )
+      .get(id, Date.now()) as { name: string; reviewerId: number; expiresAt: number } | undefined) ?? null
+  );
+}

@@ -249,3 +249,15 @@ export function reviewMessages(db: Db, id: number) {
     )
     .all(id) as { id: number; body: string; createdAt: number; authorName: string; authorId: number }[];
 }
+
+/** A determination as its contributor's answer page needs it, or null when there is none with this id. */
+export function determinationForAnswer(
+  db: Db,
+  id: number,
+): { id: number; labCode: string; status: string; contributorId: number | null } | null {
+  return (
+    (db.$client
+      .prepare("select id, lab_code as labCode, status, contributor_id as contributorId from determinations where id = ?")
+      .get(id) as { id: number; labCode: string; status: string; contributorId: number | null } | undefined) ?? null
+  );
+}

@@ -8,6 +8,7 @@ import { ErrorView } from "#app/components/error-view.tsx";
 import { FieldErrors } from "#app/components/ui/field-errors.tsx";
 import { SummedDensityPlot } from "#app/components/summed-density-plot.tsx";
 import { getDb } from "#app/db/client.server.ts";
+import { constraintFilterChoices } from "#app/models/registry/constraints.server.ts";
 import { deleteSet, savedSets, saveSet } from "#app/models/releases/constraint-sets.server.ts";
 import { nextVersion, publishRelease, PublishRefused } from "#app/models/releases/releases.server.ts";
 import { knownCurveError } from "#app/models/releases/selection.server.ts";
@@ -36,12 +37,7 @@ export async function loader({ request }: Route.LoaderArgs) {
   const user = await requireUser(request);
   const db = getDb();
   const { filter, errors } = parseConstraintFilterLenient(normaliseFormParams(new URL(request.url).searchParams));
-  const materials = (
-    db.$client.prepare("select distinct material from samples order by material").all() as { material: string }[]
-  ).map((m) => m.material);
-  const curves = (db.$client.prepare("select distinct name from curves order by name").all() as { name: string }[]).map(
-    (c) => c.name,
-  );
+  const { materials, curves } = constraintFilterChoices(db);
   return {
     query: filterToParams(filter).toString(),
     filter,

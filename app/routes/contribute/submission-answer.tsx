@@ -4,7 +4,7 @@ import type { Route } from "./+types/submission-answer";
 import { clientAddress, requireRole } from "#app/auth/session.server.ts";
 import { ErrorView } from "#app/components/error-view.tsx";
 import { getDb } from "#app/db/client.server.ts";
-import { answerQuestion, reviewMessages, ReviewRefused } from "#app/models/review/reviews.server.ts";
+import { answerQuestion, determinationForAnswer, reviewMessages, ReviewRefused } from "#app/models/review/reviews.server.ts";
 import { answerSchema } from "#app/utils/review-forms.ts";
 import { notFound } from "#app/utils/http.server.ts";
 
@@ -12,13 +12,7 @@ export const meta: Route.MetaFunction = () => [{ title: "Answer a reviewer · Th
 
 function own(userId: number, idParam: string | undefined) {
   const id = Number(idParam);
-  const det = Number.isSafeInteger(id)
-    ? (getDb()
-        .$client.prepare(
-          "select id, lab_code as labCode, status, contributor_id as contributorId from determinations where id = ?",
-        )
-        .get(id) as { id: number; labCode: string; status: string; contributorId: number | null } | undefined)
-    : undefined;
+  const det = Number.isSafeInteger(id) ? determinationForAnswer(getDb(), id) : null;
   // Another contributor's determination looks exactly like a missing one.
   if (!det || det.contributorId !== userId) notFound("There is no such determination among your submissions.");
   return det;

@@ -18,7 +18,7 @@ import { getDb } from "#app/db/client.server.ts";
 import { CHECK_KINDS, FLAGS } from "#app/db/schema.ts";
 import { plotForDetermination } from "#app/models/calibration/calibration-plot.server.ts";
 import { determinationDetail } from "#app/models/registry/determination-page.server.ts";
-import { nextInQueue, releaseItem, takeItem } from "#app/models/review/queue.server.ts";
+import { currentLease, nextInQueue, releaseItem, takeItem } from "#app/models/review/queue.server.ts";
 import { askQuestion, recordReviews, reviewMessages, ReviewRefused } from "#app/models/review/reviews.server.ts";
 import { gradeSchema, questionSchema } from "#app/utils/review-forms.ts";
 import { FieldErrors } from "#app/components/ui/field-errors.tsx";
@@ -42,11 +42,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const db = getDb();
   const detail = determinationDetail(db, id);
   if (!detail) notFound("There is no determination with this number.");
-  const lease = db.$client
-    .prepare(
-      "select u.name, l.reviewer_id as reviewerId, l.expires_at as expiresAt from review_leases l join users u on u.id = l.reviewer_id where l.determination_id = ? and l.expires_at > ?",
-    )
-    .get(id, Date.now()) as { name: string; reviewerId: number; expiresAt: number } | undefined;
+  const lease = currentLease(db, id);
   const suggested = [
     ...new Set(
       detail.checks
