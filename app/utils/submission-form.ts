@@ -6,6 +6,7 @@
 import { z } from "zod";
 import { isBlankCell } from "#app/utils/determination-input/cells.ts";
 import { inFormWords } from "#app/utils/determination-input/form-words.ts";
+import { LUMINESCENCE_ONLY_COLUMNS, RADIOCARBON_ONLY_COLUMNS } from "#app/utils/determination-input/check-row.ts";
 import { makeRowSchema } from "#app/utils/determination-input/schema.ts";
 import type { DeterminationRow, Region, RowContext, RowIssue } from "#app/utils/determination-input/row.ts";
 
@@ -100,55 +101,15 @@ export function makeSubmissionSchema(ctx: RowContext, serverChecks?: (value: Sub
 }
 
 /** Measurement columns whose problems the live preview reports (the rest are the form's business). */
-export const PREVIEW_COLUMNS = [
+const NOT_PREVIEWED: ReadonlySet<string> = new Set(["pretreatment", "delta_r_curve", "aliquots", "age_model"]);
+export const PREVIEW_COLUMNS: readonly string[] = [
   "method",
   "material",
-  "c14_age",
-  "c14_error",
-  "f14c",
-  "f14c_error",
-  "d13c",
   "age_normalised",
   "greater_than",
-  "curve",
-  "delta_r",
-  "delta_r_error",
-  "freshwater_offset",
-  "freshwater_offset_error",
   "normalised_to_zero_permil",
-  "signal",
-  "mineral",
-  "de_gy",
-  "de_error_gy",
-  "dose_rate_gy_per_ka",
-  "dose_rate_error_gy_per_ka",
-  "k_percent",
-  "u_ppm",
-  "th_ppm",
-  "water_content",
-  "burial_depth_m",
-  "density_g_cm3",
-  "k_error_percent",
-  "u_error_ppm",
-  "th_error_ppm",
-  "rb_ppm",
-  "rb_error_ppm",
-  "water_content_error",
-  "grain_size_um",
-  "grain_use",
-  "etch_depth_um",
-  "a_value",
-  "a_value_error",
-  "internal_k_percent",
-  "internal_k_error_percent",
-  "internal_rb_ppm",
-  "internal_rb_error_ppm",
-  "burial_depth_error_m",
-  "density_error_g_cm3",
-  "lab_cosmic_gy_per_ka",
-  "lab_cosmic_error_gy_per_ka",
-  "measurement_year",
-] as const;
+  ...[...RADIOCARBON_ONLY_COLUMNS, ...LUMINESCENCE_ONLY_COLUMNS].filter((c) => !NOT_PREVIEWED.has(c)),
+];
 
 /** The live preview's answer; `warnings` are the row check's cautions, each at its field. */
 export type PreviewResult = { warnings?: RowIssue[] } & (
