@@ -1,14 +1,12 @@
+import { FieldErrors } from "#app/components/ui/field-errors.tsx";
 import type { PageCurve } from "#app/models/calibration/calibrate-page.server.ts";
 import type { OneAgeField } from "#app/utils/calibrate-sheet.ts";
 
 type Problems = Partial<Record<OneAgeField, string>>;
 
+/** A one-age field's message; it follows the typing, so it is not announced as an alert. */
 export function FieldProblem({ id, message }: { id: string; message?: string }) {
-  return message ? (
-    <p id={id} className="field-error">
-      {message}
-    </p>
-  ) : null;
+  return <FieldErrors id={id} errors={message ? [message] : null} announce={false} />;
 }
 
 /**
