@@ -36,6 +36,7 @@ const SECTIONS: BenchSection[] = [
   (await import("./runs.ts")).bench,
   (await import("./load.ts")).bench,
   (await import("./site-search.ts")).bench,
+  (await import("./writes.ts")).bench,
 ];
 const NAMES = ["seed", ...SECTIONS.map((s) => s.name)];
 

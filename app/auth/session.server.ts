@@ -2,6 +2,7 @@ import crypto from "node:crypto";
 import { createCookie, redirect } from "react-router";
 import { and, eq, gt } from "drizzle-orm";
 import { getDb } from "#app/db/client.server.ts";
+import { writeWhenFree } from "#app/db/write-when-free.server.ts";
 import { sessions, userRoles, users, type Role } from "#app/db/schema.ts";
 import { env } from "#app/utils/env.server.ts";
 
@@ -78,24 +79,30 @@ export async function requireRole(request: Request, ...allowed: Role[]): Promise
   return user;
 }
 
+/** Stores a new session. Waits for a busy write lock without holding up the thread (writeWhenFree). */
 export async function createSession(userId: number, request: Request): Promise<{ id: string; cookie: string }> {
   const id = crypto.randomBytes(32).toString("base64url");
-  getDb()
-    .insert(sessions)
-    .values({
-      id,
-      userId,
-      expiresAt: new Date(Date.now() + SESSION_TTL_MS),
-      userAgent: request.headers.get("User-Agent")?.slice(0, 300) ?? null,
-      ip: clientAddress(request),
-    })
-    .run();
+  const db = getDb();
+  await writeWhenFree(db, () =>
+    db
+      .insert(sessions)
+      .values({
+        id,
+        userId,
+        expiresAt: new Date(Date.now() + SESSION_TTL_MS),
+        userAgent: request.headers.get("User-Agent")?.slice(0, 300) ?? null,
+        ip: clientAddress(request),
+      })
+      .run(),
+  );
   return { id, cookie: await sessionCookie.serialize(id) };
 }
 
+/** Ends this browser's session (as createSession, without holding up the thread while the lock is busy). */
 export async function destroySession(request: Request): Promise<string> {
   const id = await readSessionId(request);
-  if (id) getDb().delete(sessions).where(eq(sessions.id, id)).run();
+  const db = getDb();
+  if (id) await writeWhenFree(db, () => db.delete(sessions).where(eq(sessions.id, id)).run());
   return sessionCookie.serialize("", { maxAge: 0 });
 }
 

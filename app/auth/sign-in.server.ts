@@ -8,6 +8,8 @@ import { audit } from "#app/models/audit.server.ts";
 import { findActiveUserByEmail, findUserByEmail, normalizeEmail, recordSignIn } from "#app/models/accounts/users.server.ts";
 import { sendEmail } from "#app/mail/send.server.ts";
 import { signInMessage } from "#app/mail/templates.server.ts";
+import { isCodeSpent, markCodeSpent } from "#app/auth/spent-codes.server.ts";
+import { writeWhenFree } from "#app/db/write-when-free.server.ts";
 import { exhaust, hit } from "#app/utils/rate-limit.server.ts";
 import { env } from "#app/utils/env.server.ts";
 
@@ -17,7 +19,8 @@ import { env } from "#app/utils/env.server.ts";
  * secret) and always ends `authenticate` in a redirect. Four things are added around it here:
  *  - the address in `_totp` is not authenticated by the library, so a signed cookie of ours binds
  *    the address to the encrypted secret; a sign-in whose address was swapped is refused;
- *  - the library does not count wrong typed codes, so tries per code are counted in rate_limits;
+ *  - the library does not count wrong typed codes, so tries per code are counted (in memory), and a
+ *    used code is recorded in the database (auth/spent-codes.server.ts) so it stays used after a restart;
  *  - code requests are rate-limited per address and per client address;
  *  - `verify` creates the session row, and its cookie is attached to the final redirect here.
  */
@@ -102,7 +105,9 @@ function getAuthenticator(): Authenticator<number> {
       const user = findActiveUserByEmail(db, email);
       if (!user) throw new Error(SIGN_IN_ERRORS.invalidTotp);
       const session = await createSession(user.id, request);
-      recordSignIn(db, user.id, { method: request.method === "GET" ? "link" : "code", ip: clientAddress(request) });
+      await writeWhenFree(db, () =>
+        recordSignIn(db, user.id, { method: request.method === "GET" ? "link" : "code", ip: clientAddress(request) }),
+      );
       const nonce = request.headers.get(NONCE_HEADER);
       if (nonce) createdSessions.set(nonce, session.cookie);
       return user.id;
@@ -289,14 +294,16 @@ export async function requestCode(
 async function failedAttempt(request: Request, email: string | null, reason: string) {
   const db = getDb();
   const user = email ? findUserByEmail(db, email) : null;
-  audit(db, {
-    actorId: null,
-    action: "auth.sign_in_failed",
-    entity: "user",
-    entityId: user?.id ?? null,
-    after: { email, reason },
-    ip: clientAddress(request),
-  });
+  await writeWhenFree(db, () =>
+    audit(db, {
+      actorId: null,
+      action: "auth.sign_in_failed",
+      entity: "user",
+      entityId: user?.id ?? null,
+      after: { email, reason },
+      ip: clientAddress(request),
+    }),
+  );
 }
 
 /** Step 2: the typed code, or the token from the magic link. */
@@ -316,8 +323,9 @@ export async function completeSignIn(
   }
 
   const triesKey = `sign-in:code:${pending.secretHash}`;
-  const tries = hit(triesKey, MAX_TRIES_PER_CODE, CODE_MINUTES * 60 * 1000);
-  if (!tries.allowed) {
+  const codeMs = CODE_MINUTES * 60 * 1000;
+  const tries = hit(triesKey, MAX_TRIES_PER_CODE, codeMs);
+  if (!tries.allowed || isCodeSpent(getDb(), pending.secretHash, codeMs)) {
     await failedAttempt(request, totp.email, "too many tries");
     // The code is spent: drop it from this browser and say why.
     const headers = new Headers();
@@ -347,8 +355,9 @@ export async function completeSignIn(
   }
 
   // The code is stateless in the library (its secret travels in the cookie); spend it here so a
-  // copied cookie and code cannot sign in a second time.
-  exhaust(triesKey);
+  // copied cookie and code cannot sign in a second time (also after a restart).
+  exhaust(triesKey, codeMs);
+  await markCodeSpent(getDb(), pending.secretHash);
   const headers = new Headers();
   for (const c of response.headers.getSetCookie()) headers.append("Set-Cookie", c);
   headers.append("Set-Cookie", await pendingCookie.serialize("", { maxAge: 0 }));

@@ -143,7 +143,10 @@ export const apiTokens = sqliteTable(
   (t) => [index("api_tokens_user_idx").on(t.userId)],
 );
 
-/** Fixed-window counters for sign-in code requests, code attempts and the public API. */
+/**
+ * Sign-in codes already used (key `sign-in:spent:<hash>`, window_start = when; auth/spent-codes.server.ts).
+ * It held every rate-limit counter until those moved into memory (decision 020).
+ */
 export const rateLimits = sqliteTable("rate_limits", {
   key: text("key").primaryKey(),
   windowStart: integer("window_start").notNull(),

@@ -1,6 +1,5 @@
 import { describe, expect, it } from "vitest";
-import { hit, pruneRateLimits } from "#app/utils/rate-limit.server.ts";
-import { getDb } from "#app/db/client.server.ts";
+import { exhaust, heldRateLimitKeys, hit } from "#app/utils/rate-limit.server.ts";
 
 describe("hit (fixed window)", () => {
   it("allows `limit` hits per window, then refuses with the time left, then opens a new window", () => {
@@ -17,10 +16,21 @@ describe("hit (fixed window)", () => {
     expect(hit("k:c", 1, 60_000, { now: 6 }).allowed).toBe(true);
   });
 
-  it("prunes old counters", () => {
+  it("forgets counters whose window has passed, sweeping at most once a minute", () => {
     hit("k:old", 1, 1000, { now: 0 });
-    pruneRateLimits(1000, getDb(), 10_000);
-    const left = getDb().$client.prepare("select count(*) as n from rate_limits where key = 'k:old'").get() as { n: number };
-    expect(left.n).toBe(0);
+    hit("k:live", 1, 600_000, { now: 0 });
+    expect(heldRateLimitKeys()).toBe(2);
+    // Within the minute nothing is swept; after it, only the counter whose window ended is gone.
+    hit("k:other", 1, 1000, { now: 30_000 });
+    expect(heldRateLimitKeys()).toBe(3);
+    hit("k:other", 1, 1000, { now: 61_000 });
+    expect(heldRateLimitKeys()).toBe(2);
+    expect(hit("k:live", 1, 600_000, { now: 61_000 }).allowed).toBe(false);
+  });
+
+  it("a key used up at once stays refused for as long as it is kept", () => {
+    expect(hit("k:code", 5, 600_000, { now: 0 }).allowed).toBe(true);
+    exhaust("k:code", 600_000, { now: 1000 });
+    expect(hit("k:code", 5, 600_000, { now: 2000 })).toEqual({ allowed: false, retryAfterS: 599 });
   });
 });

@@ -1,6 +1,7 @@
 import path from "node:path";
 import { afterAll, beforeEach, inject } from "vitest";
 import { freshDatabase, removeDatabases, testDatabaseFile } from "#tests/support/test-db.ts";
+import { resetRateLimits } from "#app/utils/rate-limit.server.ts";
 
 // Set before any app module reads its environment (env() is parsed once, lazily).
 process.env.DATABASE_URL = testDatabaseFile;
@@ -14,8 +15,10 @@ process.env.MODEL_RUN_MAX_BYTES = String(2 * 1024 * 1024);
 
 // Every test starts from a fresh copy of the migrated base (or of its file's seeded base, see
 // tests/support/test-db.ts seedForFile), so no test sees another's writes.
+// Rate limits are counted in memory: each test starts with none, as with its fresh database.
 beforeEach(() => {
   freshDatabase();
+  resetRateLimits();
 });
 
 afterAll(() => {

@@ -1,0 +1,61 @@
+import type { Db } from "#app/db/client.server.ts";
+
+/*
+ * Writes the server's own thread must make during a request (a session at sign-in, its end at
+ * sign-out), without freezing the thread while the writer thread holds the write lock (decision 020).
+ *
+ * better-sqlite3 waits for a busy lock synchronously (busy_timeout on the connection): while a
+ * long commit held the lock, a sign-in stopped every request of the server for up to 5 s and then
+ * failed. Here the write is tried with busy_timeout 0; when the lock is taken, the request waits
+ * asynchronously (the thread serves others meanwhile) and tries again, until `waitMs` has passed.
+ */
+
+/** How long a request waits for the write lock in all, by default. */
+export const WRITE_WAIT_MS = 30_000;
+
+/** The database was busy past the wait: the request may be refused with a 503 (`status`). */
+export class WriteLockBusy extends Error {
+  readonly status = 503;
+  constructor(waitedMs: number) {
+    super(`The registry is busy with a large write; please try again in a moment (waited ${Math.round(waitedMs / 1000)} s).`);
+  }
+}
+
+/** Whether `error` (or what it wraps) is SQLite saying another connection holds the lock. */
+export function isBusy(error: unknown): boolean {
+  for (
+    let e = error as { code?: unknown; cause?: unknown } | undefined, depth = 0;
+    e && depth < 4;
+    e = e.cause as typeof e, depth++
+  ) {
+    if (typeof e.code === "string" && (e.code.startsWith("SQLITE_BUSY") || e.code.startsWith("SQLITE_LOCKED"))) return true;
+  }
+  return false;
+}
+
+/**
+ * Runs `write` as one transaction that takes the write lock at its start (BEGIN IMMEDIATE). It never
+ * waits synchronously: while another connection holds the lock, it waits between tries (2 ms, then
+ * longer, at most 50 ms apart) without holding up the thread. `write` itself is synchronous, so
+ * nothing else on this thread runs inside the transaction.
+ */
+export async function writeWhenFree<T>(db: Db, write: () => T, options: { waitMs?: number } = {}): Promise<T> {
+  const sqlite = db.$client;
+  const started = performance.now();
+  const waitMs = options.waitMs ?? WRITE_WAIT_MS;
+  const tx = sqlite.transaction(write);
+  for (let pause = 2; ; pause = Math.min(pause * 2, 50)) {
+    const saved = sqlite.pragma("busy_timeout", { simple: true }) as number;
+    sqlite.pragma("busy_timeout = 0");
+    try {
+      return tx.immediate();
+    } catch (error) {
+      if (!isBusy(error)) throw error;
+    } finally {
+      sqlite.pragma(`busy_timeout = ${saved}`);
+    }
+    const waited = performance.now() - started;
+    if (waited >= waitMs) throw new WriteLockBusy(waited);
+    await new Promise((resolve) => setTimeout(resolve, Math.min(pause, waitMs - waited)));
+  }
+}
