@@ -1,5 +1,5 @@
-import crypto from "node:crypto";
 import type { Db } from "#app/db/client.server.ts";
+import { encodedAnswer, encodedBody } from "#app/models/registry/encoded-body.server.ts";
 
 /*
  * Registry reads that many requests repeat (the map data, Explore's default pages, the token API's
@@ -41,15 +41,13 @@ export function cachedRead<T>(db: Db, key: string, compute: () => T): T {
   return value;
 }
 
-/** A JSON answer serialised once per data version, with an ETag; 304 when the client has it. */
+/**
+ * A JSON answer serialised once per data version, with its brotli/gzip encodings made once when
+ * first asked for (encoded-body.server.ts) and an ETag; 304 when the client has it.
+ */
 export function cachedJson(db: Db, request: Request, key: string, compute: () => unknown, headers: HeadersInit = {}): Response {
-  const { body, etag } = cachedRead(db, `json:${key}`, () => {
-    const text = JSON.stringify(compute());
-    return { body: text, etag: `"${crypto.createHash("sha1").update(text).digest("base64url")}"` };
-  });
+  const body = cachedRead(db, `json:${key}`, () => encodedBody(Buffer.from(JSON.stringify(compute()))));
   const h = new Headers(headers);
-  h.set("ETag", etag);
-  if (request.headers.get("If-None-Match") === etag) return new Response(null, { status: 304, headers: h });
   h.set("Content-Type", "application/json; charset=utf-8");
-  return new Response(body, { status: 200, headers: h });
+  return encodedAnswer(request, body, h, headers);
 }

@@ -3,6 +3,7 @@ import { requireUser } from "#app/auth/session.server.ts";
 import { getDb } from "#app/db/client.server.ts";
 import { badParameters, filterFromParams, parseOutput } from "#app/models/releases/api-request.server.ts";
 import { selectConstraints, selectionResponse } from "#app/models/releases/selection-download.server.ts";
+import { cachedDownload } from "#app/models/registry/download-cache.server.ts";
 import { normaliseFormParams } from "#app/utils/constraint-filter.ts";
 
 /** GET /constraints/download?…filter…&format=csv|json|geojson|metadata[&densities=true] — the page's downloads; signed in. */
@@ -18,8 +19,10 @@ export async function loader({ request }: Route.LoaderArgs) {
   metadataUrl.searchParams.set("format", "metadata");
   metadataUrl.searchParams.delete("densities");
   const db = getDb();
-  return selectionResponse(db, selectConstraints(db, filter), output.format, {
-    densities: output.densities,
-    metadataUrl: metadataUrl.toString(),
-  });
+  return cachedDownload(db, request, `page-constraints ${output.format} ${output.densities} ${metadataUrl}`, () =>
+    selectionResponse(db, selectConstraints(db, filter), output.format, {
+      densities: output.densities,
+      metadataUrl: metadataUrl.toString(),
+    }),
+  );
 }

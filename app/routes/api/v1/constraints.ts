@@ -5,6 +5,7 @@ import { badParameters, filterFromParams, parseOutput, regionFromBody } from "#a
 import { selectConstraints, selectionResponse } from "#app/models/releases/selection-download.server.ts";
 import { knownCurveError } from "#app/models/releases/selection.server.ts";
 import { json } from "#app/utils/http.server.ts";
+import { cachedDownload } from "#app/models/registry/download-cache.server.ts";
 
 /*
  * GET /api/v1/constraints — the constraint set a filter selects, for any valid personal token.
@@ -28,10 +29,14 @@ async function answer(request: Request, withBody: boolean): Promise<Response> {
   const metadataUrl = new URL(url);
   metadataUrl.searchParams.set("format", "metadata");
   metadataUrl.searchParams.delete("densities");
-  return selectionResponse(db, selectConstraints(db, filter), output.format, {
-    densities: output.densities,
-    metadataUrl: metadataUrl.toString(),
-  });
+  const produce = () =>
+    selectionResponse(db, selectConstraints(db, filter), output.format, {
+      densities: output.densities,
+      metadataUrl: metadataUrl.toString(),
+    });
+  // A GET's answer is kept per query and data version (a region in a POST body is not part of the key).
+  if (withBody) return produce();
+  return cachedDownload(db, request, `api-constraints ${output.format} ${output.densities} ${metadataUrl}`, produce);
 }
 
 export async function loader({ request }: Route.LoaderArgs) {

@@ -4,6 +4,7 @@ import { badParameters, parseOutput } from "#app/models/releases/api-request.ser
 import { releaseResponse } from "#app/models/releases/release-download.server.ts";
 import { releaseBySlug } from "#app/models/releases/releases.server.ts";
 import { json } from "#app/utils/http.server.ts";
+import { cachedDownload } from "#app/models/registry/download-cache.server.ts";
 
 /*
  * GET /api/v1/releases/{slug}?format=json|csv|geojson|metadata&densities=true — public: the frozen
@@ -20,5 +21,14 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const db = getDb();
   const release = releaseBySlug(db, params.slug);
   if (!release) return json({ error: `No release “${params.slug.slice(0, 80)}”.` }, { status: 404 });
-  return releaseResponse(db, release, output.format, `${url.origin}/releases/${release.slug}`, output.densities);
+  // A published release never changes: its files are kept by release (id and checksum), format and origin (the
+  // page address inside them), whatever else is written meanwhile.
+  const pageUrl = `${url.origin}/releases/${release.slug}`;
+  return cachedDownload(
+    db,
+    request,
+    `release ${release.id} ${release.checksum} ${output.format} ${output.densities} ${pageUrl}`,
+    () => releaseResponse(db, release, output.format, pageUrl, output.densities),
+    { immutable: true },
+  );
 }
