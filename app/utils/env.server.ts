@@ -40,6 +40,10 @@ const schema = z.object({
     .int()
     .positive()
     .default(2 * 1024 * 1024 * 1024),
+  /** A calculation in a worker thread (the calibration API's and page's large requests) is stopped past this, ms. */
+  WORKER_TIME_LIMIT_MS: z.coerce.number().int().positive().default(60_000),
+  /** Heap of the intake thread (untrusted files, large calculations), MB: past it the task is stopped, not the server. */
+  INTAKE_HEAP_MB: z.coerce.number().int().min(16).default(768),
   /** Radius of the neighbours check, km. */
   CHECK_NEIGHBOUR_RADIUS_KM: z.coerce.number().positive().max(500).default(25),
   /** Largest accepted margin reconstruction file, bytes. */

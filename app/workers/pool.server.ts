@@ -10,6 +10,7 @@ import { MessageChannel } from "node:worker_threads";
 import path from "node:path";
 import { Piscina } from "piscina";
 import type { Db } from "#app/db/client.server.ts";
+import { env } from "#app/utils/env.server.ts";
 import type { TaskName, TaskPayload, TaskResult, TaskOutcome } from "#app/workers/tasks.server.ts";
 
 export type PoolName = "writer" | "intake";
@@ -61,7 +62,10 @@ function poolFor(name: PoolName, warm = false): Piscina {
       maxThreads: 1,
       idleTimeout: 60_000,
       // Untrusted files are read in the intake pool: a bomb runs out of this heap, not the server's.
-      resourceLimits: name === "intake" ? { maxOldGenerationSizeMb: 768, maxYoungGenerationSizeMb: 64 } : undefined,
+      resourceLimits:
+        name === "intake"
+          ? { maxOldGenerationSizeMb: env().INTAKE_HEAP_MB, maxYoungGenerationSizeMb: Math.min(64, env().INTAKE_HEAP_MB / 4) }
+          : undefined,
       env: process.env as Record<string, string>,
     });
     pools.set(name, pool);
@@ -125,7 +129,8 @@ export async function runInWorker<N extends TaskName>(
     await Promise.race([portEnded, new Promise((resolve) => setTimeout(resolve, 5_000).unref())]);
   } catch (error) {
     if (controller.signal.aborted) {
-      throw new TaskStopped(`Stopped after ${Math.round(options.timeoutMs! / 1000)} s.`, "time");
+      const ms = options.timeoutMs!;
+      throw new TaskStopped(`Stopped after ${ms >= 1000 ? `${Math.round(ms / 1000)} s` : `${ms} ms`}.`, "time");
     }
     const message = error instanceof Error ? error.message : String(error);
     if (/ERR_WORKER_OUT_OF_MEMORY|out of memory/i.test(message)) {

@@ -3,9 +3,10 @@ import { calibrateItems } from "#app/models/calibration/calibrate-items.server.t
 import { plotForItem, type CalibrationPlotData } from "#app/models/calibration/calibration-plot.server.ts";
 import { listCurves } from "#app/models/calibration/curves.server.ts";
 import { FileIntakeError, type ReceivedFile, withReceivedFiles } from "#app/models/files/intake.server.ts";
-import { planCalibration } from "#app/models/calibration/calibrate-work.server.ts";
+import { CalibrationStopped, planCalibration, stoppedCalibrationMessage } from "#app/models/calibration/calibrate-work.server.ts";
 import { groupThousands } from "#app/science/calendar.ts";
 import { CALIBRATE_WORK_BUDGET, MAX_REQUEST_WORK, OFF_THREAD_WORK } from "#app/utils/calibrate-limits.ts";
+import { env } from "#app/utils/env.server.ts";
 import { spend } from "#app/utils/rate-limit.server.ts";
 import { databaseFileOf, runInWorker, TaskStopped, WorkerError } from "#app/workers/pool.server.ts";
 import { isCalibrated, type CalibrationItem } from "#app/utils/calibrate-input.ts";
@@ -97,7 +98,12 @@ export async function calibrateForPageAnywhere(
 ): Promise<{ curves: CurvesUsed; results: PageResult[] }> {
   const dbFile = databaseFileOf(db);
   if (work <= OFF_THREAD_WORK || !dbFile) return calibrateForPage(db, items);
-  return runInWorker("intake", "calibrateForPage", dbFile, { items }, { timeoutMs: 60_000 });
+  try {
+    return await runInWorker("intake", "calibrateForPage", dbFile, { items }, { timeoutMs: env().WORKER_TIME_LIMIT_MS });
+  } catch (error) {
+    if (error instanceof TaskStopped) throw new CalibrationStopped(stoppedCalibrationMessage(error));
+    throw error;
+  }
 }
 
 /**
@@ -254,7 +260,14 @@ export async function answerPageForm(
   }
   const spent = items.length ? spendPageWork(db, items, options.address) : { work: 0 };
   if ("message" in spent) return refuse(spent.status, spent.message);
-  const { curves, results } = await calibrateForPageAnywhere(db, items, spent.work);
+  let calibrated: Awaited<ReturnType<typeof calibrateForPageAnywhere>>;
+  try {
+    calibrated = await calibrateForPageAnywhere(db, items, spent.work);
+  } catch (error) {
+    if (error instanceof CalibrationStopped) return refuse(error.status, error.message);
+    throw error;
+  }
+  const { curves, results } = calibrated;
   const rows = joinResults(reading.rows, results);
   const chosen = rows.find((r) => r.row === plotRow && r.result) ?? rows.find((r) => r.result);
   const plot = options.plot !== false && chosen?.item && chosen.result ? plotForPage(db, chosen.item, chosen.result) : null;

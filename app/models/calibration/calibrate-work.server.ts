@@ -6,6 +6,8 @@ import { groupThousands } from "#app/science/calendar.ts";
 import type { PreparedCurve } from "#app/science/curve.ts";
 import type { ApiResponse } from "#app/utils/calibrate-input.ts";
 import { DENSITY_VALUE_COST, ITEM_COST, MAX_REQUEST_WORK, MAX_SIGMA_YR } from "#app/utils/calibrate-limits.ts";
+import { env } from "#app/utils/env.server.ts";
+import type { TaskStopped } from "#app/workers/pool.server.ts";
 
 /*
  * The work of a calibration request, counted before any of it is done (the limits and what a unit
@@ -111,4 +113,22 @@ export function* responsePieces(response: ApiResponse): Generator<string> {
 /** Calibrates and writes the answer in pieces (in whichever thread calls it). */
 export function* calibrationPieces(db: Db, items: unknown[], options: { density?: boolean } = {}): Generator<string> {
   yield* responsePieces(calibrateItems(db, items, options));
+}
+
+/** A calibration stopped in its thread (time or memory limit): a 503 whose message says what to send instead. */
+export class CalibrationStopped extends Error {
+  readonly status = 503;
+}
+
+/** Why a calibration in a worker thread was stopped, and what to send instead (the API's and the page's words). */
+export function stoppedCalibrationMessage(stopped: TaskStopped): string {
+  if (stopped.reason === "time") {
+    const ms = env().WORKER_TIME_LIMIT_MS;
+    const limit = ms >= 1000 ? `${Math.round(ms / 1000)} s` : `${ms} ms`;
+    return `The calibration took longer than ${limit}, so it was stopped; send fewer dates at a time.`;
+  }
+  if (stopped.reason === "memory") {
+    return "The calibration needed more memory than one request may use, so it was stopped; send fewer dates at a time.";
+  }
+  return "The calibration could not be completed; please try again.";
 }

@@ -2,6 +2,7 @@ import type { Route } from "./+types/calibrate-batch";
 import { clientAddress } from "#app/auth/session.server.ts";
 import { getDb } from "#app/db/client.server.ts";
 import { calibrationItemSchema } from "#app/models/calibration/calibrate-items.server.ts";
+import { CalibrationStopped } from "#app/models/calibration/calibrate-work.server.ts";
 import {
   calibrateForPageAnywhere,
   PAGE_BATCH_ITEMS,
@@ -51,7 +52,13 @@ export async function action({ request }: Route.ActionArgs) {
     const headers = spent.retryAfterS ? { "Retry-After": String(spent.retryAfterS) } : undefined;
     return json({ error: spent.message }, { status: spent.status, headers });
   }
-  const answer = await calibrateForPageAnywhere(db, items, spent.work);
+  let answer: Awaited<ReturnType<typeof calibrateForPageAnywhere>>;
+  try {
+    answer = await calibrateForPageAnywhere(db, items, spent.work);
+  } catch (error) {
+    if (error instanceof CalibrationStopped) return json({ error: error.message }, { status: error.status });
+    throw error;
+  }
   if (plot === true && items.length === 1) {
     const first = answer.results[0];
     const parsed = calibrationItemSchema.safeParse(items[0]);

@@ -2,12 +2,18 @@ import type { Route } from "./+types/calibrate";
 import { clientAddress } from "#app/auth/session.server.ts";
 import { getDb } from "#app/db/client.server.ts";
 import { parseCalibrationRequest } from "#app/models/calibration/calibrate-items.server.ts";
-import { calibrationPieces, planCalibration, tooMuchWorkMessage } from "#app/models/calibration/calibrate-work.server.ts";
+import {
+  calibrationPieces,
+  planCalibration,
+  stoppedCalibrationMessage,
+  tooMuchWorkMessage,
+} from "#app/models/calibration/calibrate-work.server.ts";
 import { groupThousands } from "#app/science/calendar.ts";
 import { CALIBRATE_RATE_LIMIT, CALIBRATE_WORK_BUDGET, MAX_REQUEST_WORK, OFF_THREAD_WORK } from "#app/utils/calibrate-limits.ts";
 import { json } from "#app/utils/http.server.ts";
 import { hit, spend } from "#app/utils/rate-limit.server.ts";
-import { databaseFileOf, runInWorker } from "#app/workers/pool.server.ts";
+import { env } from "#app/utils/env.server.ts";
+import { databaseFileOf, runInWorker, TaskStopped } from "#app/workers/pool.server.ts";
 
 /*
  * POST /api/v1/calibrate — public, no sign-in. A contract outside scripts rely on: keep the
@@ -20,8 +26,6 @@ import { databaseFileOf, runInWorker } from "#app/workers/pool.server.ts";
 export { CALIBRATE_RATE_LIMIT, CALIBRATE_WORK_BUDGET };
 /** 10,000 items with long ids stay well below this. */
 const MAX_BODY_BYTES = 8 * 1024 * 1024;
-/** A calibration in a worker thread is stopped past this. */
-const WORKER_TIME_LIMIT_MS = 60_000;
 
 export async function loader(_: Route.LoaderArgs) {
   // Public endpoint; only POST calibrates.
@@ -126,18 +130,18 @@ async function calibrateOffThread(dbFile: string, items: unknown[], density: boo
     start: (c) => void (controller = c),
     cancel: () => void (open = false),
   });
-  let first!: (started: boolean) => void;
-  const started = new Promise<boolean>((resolve) => (first = resolve));
+  let first!: (failure: unknown) => void;
+  const started = new Promise<unknown>((resolve) => (first = resolve));
   const run = runInWorker(
     "intake",
     "calibrate",
     dbFile,
     { items, density },
     {
-      timeoutMs: WORKER_TIME_LIMIT_MS,
+      timeoutMs: env().WORKER_TIME_LIMIT_MS,
       onPiece: (piece) => {
         if (open) controller.enqueue(encoder.encode(piece));
-        first(true);
+        first(null);
       },
     },
   );
@@ -145,19 +149,24 @@ async function calibrateOffThread(dbFile: string, items: unknown[], density: boo
     () => {
       if (open) controller.close();
       open = false;
-      first(true);
+      first(null);
     },
     (error: unknown) => {
       console.error("POST /api/v1/calibrate: the worker failed", error);
       if (open) controller.error(error);
       open = false;
-      first(false);
+      first(error);
     },
   );
-  if (!(await started)) {
-    return json({ error: "The calibration could not be completed; please try again." }, { status: 503 });
-  }
+  const failure = await started;
+  if (failure) return json({ error: stoppedMessage(failure) }, { status: 503 });
   return new Response(stream, { status: 200, headers: HEADERS });
+}
+
+/** What a calibration stopped in its thread answers: why, and what to send instead. */
+function stoppedMessage(failure: unknown): string {
+  if (failure instanceof TaskStopped) return stoppedCalibrationMessage(failure);
+  return "The calibration could not be completed; please try again.";
 }
 
 function tooMany(message: string, retryAfterS: number) {
