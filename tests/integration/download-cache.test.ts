@@ -132,6 +132,19 @@ describe("kept downloads are the uncached answer, byte for byte, in every encodi
   });
 });
 
+describe("a client that goes away", () => {
+  it("leaves no one waiting: the next request for the same download is answered", async () => {
+    const abandoned = await constraints("format=csv", { "Accept-Encoding": "br" });
+    expect(abandoned.status).toBe(200);
+    // Its body is never read nor cancelled (as when the client closed before the answer started).
+    const next = await Promise.race([
+      constraints("format=csv").then(bytes),
+      new Promise<null>((resolve) => setTimeout(() => resolve(null), 5000)),
+    ]);
+    expect(next?.toString().startsWith("id,lab_code,")).toBe(true);
+  });
+});
+
 describe("access is checked before the cache", () => {
   it("no token, a bad token, and a signed-out page download are refused though the answer is held", async () => {
     await bytes(await constraints("format=csv"));

@@ -6,11 +6,9 @@ import { dataVersion } from "#app/models/registry/read-cache.server.ts";
  * Finished downloads (a constraint selection's CSV or JSON, a release's files) kept in memory with
  * their encodings, so a download many people repeat is built once per registry version, not per
  * request. A key is the route and the query as asked; an entry is served only at the data
- * version it was made at (a release, which never changes, at any version). The first answer
- * streams to its client as it always did and is kept on the side when it ends; requests for the
- * same key meanwhile wait for it instead of building it again. Bounded by total bytes (least
- * recently used go first); an answer larger than the per-entry limit is never kept. Callers do
- * their access check before asking.
+ * version it was made at (a release, which never changes, at any version). Bounded by total
+ * bytes (least recently used go first); an answer larger than the per-entry limit is never kept
+ * and streams as it always did. Callers do their access check before asking.
  */
 
 type Entry = { version: string; body: EncodedBody; headers: [string, string][]; bytes: number };
@@ -30,6 +28,7 @@ export function setDownloadCacheLimits(next: Partial<typeof limits>) {
 /** Drops every kept download. */
 export function clearDownloadCache() {
   entries.clear();
+  oversized.clear();
   held = 0;
 }
 
@@ -74,58 +73,52 @@ function fresh(key: string, version: string): Entry | undefined {
 const answerFrom = (request: Request, key: string, entry: Entry) =>
   encodedAnswerAsync(request, entry.body, entry.headers, (bytes) => grew(key, entry, bytes));
 
+type Collected = { whole: Buffer } | { head: Uint8Array[]; rest: ReadableStreamDefaultReader<Uint8Array> };
+
 /**
- * Passes a produced body through to its client, keeping a copy; when it ends whole and within the
- * per-entry limit, the copy becomes the entry for `key` at `version`.
+ * Reads a produced body here, not at the client's pace (a client that goes away cannot leave the
+ * others waiting): whole when it ends within the per-entry limit, else what was read so far and
+ * the reader of the rest.
  */
-function kept(source: ReadableStream<Uint8Array>, key: string, version: string, headers: Headers): ReadableStream<Uint8Array> {
+async function collect(source: ReadableStream<Uint8Array>): Promise<Collected> {
   const reader = source.getReader();
-  const id = `${version}\n${key}`;
-  let settle!: (entry: Entry | null) => void;
-  const promise = new Promise<Entry | null>((resolve) => (settle = resolve));
-  inflight.set(id, promise);
-  let chunks: Uint8Array[] | null = [];
+  const chunks: Uint8Array[] = [];
   let size = 0;
-  const finish = (entry: Entry | null) => {
-    chunks = null;
-    if (inflight.get(id) === promise) inflight.delete(id);
-    settle(entry);
-  };
+  for (;;) {
+    const next = await reader.read();
+    if (next.done) return { whole: Buffer.concat(chunks, size) };
+    chunks.push(next.value);
+    size += next.value.byteLength;
+    if (size > limits.maxEntryBytes) return { head: chunks, rest: reader };
+  }
+}
+
+/** The chunks already read, then the rest of the body as the client reads it. */
+function continued(head: Uint8Array[], rest: ReadableStreamDefaultReader<Uint8Array>): ReadableStream<Uint8Array> {
   return new ReadableStream<Uint8Array>({
     async pull(controller) {
-      let next: ReadableStreamReadResult<Uint8Array>;
-      try {
-        next = await reader.read();
-      } catch (error) {
-        finish(null);
-        throw error;
-      }
-      if (next.done) {
-        controller.close();
-        if (!chunks) return;
-        const body = encodedBody(Buffer.concat(chunks, size));
-        const entry: Entry = { version, body, bytes: heldBytes(body), headers: [...headers.entries()] };
-        store(key, entry);
-        finish(entry);
-        return;
-      }
-      if (chunks) {
-        size += next.value.byteLength;
-        if (size > limits.maxEntryBytes) finish(null);
-        else chunks.push(next.value);
-      }
-      controller.enqueue(next.value);
+      const chunk = head.shift();
+      if (chunk) return controller.enqueue(chunk);
+      const next = await rest.read();
+      if (next.done) controller.close();
+      else controller.enqueue(next.value);
     },
-    cancel(reason) {
-      finish(null);
-      return reader.cancel(reason);
-    },
+    cancel: (reason) => rest.cancel(reason),
   });
+}
+
+/** Keys found too large to keep at a version (they stream without being read twice); a few hundred at most. */
+const oversized = new Set<string>();
+function markOversized(id: string) {
+  if (oversized.size >= 256) oversized.clear();
+  oversized.add(id);
 }
 
 /**
  * The download `key` (route and query as asked; the same key must always mean the same bytes and
- * headers at one data version): from memory when held at the current version, else `produce`d.
+ * headers at one data version): from memory when held at the current version, else `produce`d,
+ * read whole and kept. Requests for the same key meanwhile wait for it instead of producing it
+ * again. An answer larger than the per-entry limit streams to its client as it is read.
  * `immutable`: the answer never changes (a published release), so any version will do.
  */
 export async function cachedDownload(
@@ -136,12 +129,36 @@ export async function cachedDownload(
   options: { immutable?: boolean } = {},
 ): Promise<Response> {
   const version = options.immutable ? "immutable" : dataVersion(db);
-  const found = fresh(key, version) ?? (await inflight.get(`${version}\n${key}`));
+  const id = `${version}\n${key}`;
+  const found = fresh(key, version) ?? (await inflight.get(id));
   if (found) return answerFrom(request, key, found);
-  const response = await produce();
-  if (response.status !== 200 || !response.body || response.headers.has("Content-Encoding")) return response;
-  return new Response(kept(response.body, key, version, response.headers), {
-    status: response.status,
-    headers: response.headers,
-  });
+  if (oversized.has(id)) return produce();
+  let settle!: (entry: Entry | null) => void;
+  const promise = new Promise<Entry | null>((resolve) => (settle = resolve));
+  inflight.set(id, promise);
+  try {
+    const response = await produce();
+    if (response.status !== 200 || !response.body || response.headers.has("Content-Encoding")) {
+      settle(null);
+      return response;
+    }
+    const collected = await collect(response.body);
+    if ("head" in collected) {
+      markOversized(id);
+      settle(null);
+      const { status, headers } = response;
+      return new Response(continued(collected.head, collected.rest), { status, headers });
+    }
+    const body = encodedBody(collected.whole);
+    const headers = [...response.headers.entries()].filter(([name]) => name !== "content-length");
+    const entry: Entry = { version, body, bytes: heldBytes(body), headers };
+    store(key, entry);
+    settle(entry);
+    return answerFrom(request, key, entry);
+  } catch (error) {
+    settle(null);
+    throw error;
+  } finally {
+    if (inflight.get(id) === promise) inflight.delete(id);
+  }
 }
