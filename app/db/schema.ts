@@ -748,6 +748,33 @@ export const jobs = sqliteTable("jobs", {
   finishedAt: integer("finished_at", { mode: "timestamp_ms" }),
 });
 
+/**
+ * One row whose counter moves with every write to the registry's own tables (triggers from
+ * migration 0015; the tables left out are REGISTRY_VERSION_EXEMPT). Cached registry reads are
+ * kept per value of `n`, so sessions, jobs' progress, rate limits and token use never empty them.
+ */
+export const registryVersion = sqliteTable("registry_version", {
+  id: integer("id").primaryKey(),
+  n: integer("n").notNull().default(0),
+});
+
+/** Tables whose writes do not change what the registry says (bookkeeping, sign-in, model runs). */
+export const REGISTRY_VERSION_EXEMPT = [
+  "__drizzle_migrations",
+  "sqlite_sequence",
+  "registry_version",
+  "api_tokens",
+  "audit_log",
+  "jobs",
+  "rate_limits",
+  "review_leases",
+  "sessions",
+  "model_runs",
+  "model_run_margins",
+  "model_run_scores",
+  "reconstructions",
+] as const;
+
 export const auditLog = sqliteTable(
   "audit_log",
   {

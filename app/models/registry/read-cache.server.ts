@@ -3,27 +3,31 @@ import { encodedAnswer, encodedBody } from "#app/models/registry/encoded-body.se
 
 /*
  * Registry reads that many requests repeat (the map data, Explore's default pages, the token API's
- * pages) are kept until the database changes. "Changed" is cheap and exact enough: SQLite's
- * data_version moves when another connection commits (a worker, a second process), and
- * total_changes() counts every row this process's own connection wrote. Any write anywhere empties
- * the cache; nothing is ever served stale. Callers still do their access check first.
+ * pages) are kept until the registry changes. "Changed" is the counter in registry_version, which
+ * triggers move on every write to the registry's own tables, from any connection (the writer
+ * thread, a second process): a write there empties the cache, and nothing is ever served stale.
+ * Writes that do not change what the registry says (sessions, jobs' progress, rate limits, token
+ * use, model runs: REGISTRY_VERSION_EXEMPT in db/schema.ts) leave it alone, so a long commit's
+ * progress reports do not make every reader recompute. Callers still do their access check first.
  */
 
 const MAX_ENTRIES = 64;
 type Entry = { version: string; value: unknown };
 const cache = new Map<string, Entry>();
 
-const connectionIds = new WeakMap<object, number>();
+/** Per connection: a number of its own (two databases open in one process never share entries) and the prepared query. */
+const versionQueries = new WeakMap<object, { connection: number; query: { get(): unknown } }>();
 let nextConnection = 1;
 
-/** A string that differs whenever anything has been written to the database since. */
+/** A string that differs whenever anything has been written to the registry's tables since. */
 export function dataVersion(db: Db): string {
   const sqlite = db.$client;
-  let connection = connectionIds.get(sqlite);
-  if (!connection) connectionIds.set(sqlite, (connection = nextConnection++));
-  const other = sqlite.pragma("data_version", { simple: true }) as number;
-  const own = (sqlite.prepare("select total_changes() as n").get() as { n: number }).n;
-  return `${connection}:${other}:${own}`;
+  let known = versionQueries.get(sqlite);
+  if (!known) {
+    known = { connection: nextConnection++, query: sqlite.prepare("select n from registry_version where id = 1").pluck() };
+    versionQueries.set(sqlite, known);
+  }
+  return `${known.connection}:${known.query.get() as number}`;
 }
 
 /** The value computed for `key` at this data version, computed at most once per version. */
