@@ -1,9 +1,10 @@
 import crypto from "node:crypto";
 import { createCookie, redirect } from "react-router";
-import { and, eq, gt } from "drizzle-orm";
+import { eq } from "drizzle-orm";
+import type BetterSqlite3 from "better-sqlite3";
 import { getDb } from "#app/db/client.server.ts";
 import { writeWhenFree } from "#app/db/write-when-free.server.ts";
-import { sessions, userRoles, users, type Role } from "#app/db/schema.ts";
+import { sessions, type Role } from "#app/db/schema.ts";
 import { env } from "#app/utils/env.server.ts";
 
 export const SESSION_TTL_MS = 30 * 24 * 60 * 60 * 1000;
@@ -33,26 +34,55 @@ export async function readSessionId(request: Request): Promise<string | null> {
   return typeof value === "string" && value.length > 0 ? value : null;
 }
 
-export function rolesOf(userId: number): Role[] {
-  return getDb()
-    .select({ role: userRoles.role })
-    .from(userRoles)
-    .where(eq(userRoles.userId, userId))
-    .all()
-    .map((r) => r.role);
+/** The two lookups every signed-in request makes, prepared once per connection (no query building per request). */
+const statements = new WeakMap<object, { user: Statement; roles: Statement }>();
+type Statement = BetterSqlite3.Statement<unknown[], unknown>;
+
+function sessionStatements() {
+  const sqlite = getDb().$client;
+  let prepared = statements.get(sqlite);
+  if (!prepared) {
+    prepared = {
+      user: sqlite.prepare(
+        `select u.id, u.email, u.name, s.id as sessionId from sessions s join users u on u.id = s.user_id
+         where s.id = ? and s.expires_at > ? and u.active = 1`,
+      ),
+      roles: sqlite.prepare("select role from user_roles where user_id = ?").pluck(),
+    };
+    statements.set(sqlite, prepared);
+  }
+  return prepared;
 }
 
-export async function getOptionalUser(request: Request): Promise<SessionUser | null> {
+export function rolesOf(userId: number): Role[] {
+  return sessionStatements().roles.all(userId) as Role[];
+}
+
+async function lookUpUser(request: Request): Promise<SessionUser | null> {
   const sessionId = await readSessionId(request);
   if (!sessionId) return null;
-  const row = getDb()
-    .select({ id: users.id, email: users.email, name: users.name, sessionId: sessions.id })
-    .from(sessions)
-    .innerJoin(users, eq(users.id, sessions.userId))
-    .where(and(eq(sessions.id, sessionId), gt(sessions.expiresAt, new Date()), eq(users.active, true)))
-    .get();
+  const row = sessionStatements().user.get(sessionId, Date.now()) as Omit<SessionUser, "roles"> | undefined;
   if (!row) return null;
   return { ...row, roles: rolesOf(row.id) };
+}
+
+/*
+ * A page's loaders (root, area layout, page) each check the session on the same request. For a
+ * read (GET or HEAD) that is one lookup, shared; a write looks again at every call, since its
+ * action may have changed the session or the person.
+ */
+const lookedUp = new WeakMap<Request, Promise<SessionUser | null>>();
+
+export async function getOptionalUser(request: Request): Promise<SessionUser | null> {
+  if (request.method !== "GET" && request.method !== "HEAD") return lookUpUser(request);
+  let user = lookedUp.get(request);
+  if (!user) {
+    user = lookUpUser(request);
+    lookedUp.set(request, user);
+  }
+  const found = await user;
+  // Each caller gets its own copy: a caller that changes what it was given changes nothing for the next.
+  return found && { ...found, roles: [...found.roles] };
 }
 
 function signInRedirect(request: Request): never {
