@@ -92,6 +92,13 @@ export type RunOptions = {
   onProgress?: (done: number, message?: string) => void;
   /** Called with each piece of an answer the task sends as it goes (in order). */
   onPiece?: (piece: string) => void;
+  /**
+   * Asked when the time limit stopped the task: was its work done all the same? A stop can land
+   * just after a transaction committed, before the thread's answer came back. Answer the task's
+   * result, read from what it left in the database, or undefined when nothing was done; only
+   * undefined is reported as a stop.
+   */
+  ifStopped?: () => Promise<unknown>;
 };
 
 /** Runs a task in a worker thread and resolves with its result; errors thrown there are re-thrown as WorkerError. */
@@ -129,6 +136,8 @@ export async function runInWorker<N extends TaskName>(
     await Promise.race([portEnded, new Promise((resolve) => setTimeout(resolve, 5_000).unref())]);
   } catch (error) {
     if (controller.signal.aborted) {
+      const done = options.ifStopped ? await options.ifStopped() : undefined;
+      if (done !== undefined) return done as TaskResult<N>;
       const ms = options.timeoutMs!;
       throw new TaskStopped(`Stopped after ${ms >= 1000 ? `${Math.round(ms / 1000)} s` : `${ms} ms`}.`, "time");
     }

@@ -22,8 +22,15 @@ const tasks = {
     await runJobHere(db, p.jobId, p.spec, handlerFor(p.spec.kind) as JobHandler<Record<string, unknown>>);
     return null;
   },
-  /** An upload's commit: one transaction, all or nothing. */
-  async commitUpload(db: Db, p: { batchId: number; mode: CommitMode; userId: number; ip: string | null }, progress: Progress) {
+  /**
+   * An upload's commit: one transaction, all or nothing. `pauseAfterCommitMs` keeps the thread busy
+   * that long after the commit (tests of a time limit that lands just after a commit).
+   */
+  async commitUpload(
+    db: Db,
+    p: { batchId: number; mode: CommitMode; userId: number; ip: string | null; pauseAfterCommitMs?: number },
+    progress: Progress,
+  ) {
     const { getBatchById } = await import("#app/models/submission/uploads/batches.server.ts");
     const { commitUpload } = await import("#app/models/submission/uploads/commit.server.ts");
     const batch = getBatchById(db, p.batchId);
@@ -42,6 +49,7 @@ const tasks = {
         onPhase: (message, done) => progress(done, message),
       },
     );
+    if (p.pauseAfterCommitMs) Atomics.wait(new Int32Array(new SharedArrayBuffer(4)), 0, 0, p.pauseAfterCommitMs);
     return result;
   },
   /** Rows sent as JSON to the API: validated, then written in one transaction or not at all. */

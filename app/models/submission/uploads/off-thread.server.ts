@@ -16,6 +16,7 @@ import {
 import { UploadError } from "#app/models/submission/uploads/read-sheet.server.ts";
 import { runTrackedJob } from "#app/models/jobs.server.ts";
 import { groupThousands } from "#app/science/calendar.ts";
+import { writeWhenFree } from "#app/db/write-when-free.server.ts";
 import { databaseFileOf, runInWorker, TaskStopped, WorkerError } from "#app/workers/pool.server.ts";
 
 /** How long reading and checking one uploaded file may take before it is refused. */
@@ -92,19 +93,7 @@ export async function commitUploadOffThread(
       params: { upload: batch.publicId, mode, ...(options.ticket ? { ticket: options.ticket } : {}) },
       actorId: actor.userId,
     },
-    async (report) => {
-      try {
-        return await runInWorker(
-          "writer",
-          "commitUpload",
-          file,
-          { batchId: batch.id, mode, userId: actor.userId, ip: options.ip ?? null },
-          { onProgress: report },
-        );
-      } catch (error) {
-        rethrow(error);
-      }
-    },
+    (report) => commitInWriter(db, batch, mode, actor, { ip: options.ip, onProgress: report }),
     (r) => `Committed ${groupThousands(r.committed)} determination${r.committed === 1 ? "" : "s"}.`,
   );
 }
@@ -123,4 +112,70 @@ export async function submitJsonRowsOffThread(
   } catch (error) {
     rethrow(error);
   }
+}
+
+/**
+ * Runs a batch's commit in the writer thread (with a time limit when given). A stop by the time
+ * limit is reported only when the commit did not happen: the stop can land just after the
+ * transaction committed, and then the rows are there and the batch says so, so the result is read
+ * back from them.
+ */
+export async function commitInWriter(
+  db: Db,
+  batch: BatchRow,
+  mode: CommitMode,
+  actor: { userId: number },
+  options: {
+    ip?: string | null;
+    onProgress?: (done: number, message?: string) => void;
+    timeoutMs?: number;
+    pauseAfterCommitMs?: number;
+  },
+): Promise<CommitResult> {
+  const file = databaseFileOf(db);
+  if (!file) return commitUpload(db, batch, mode, actor, options);
+  try {
+    return await runInWorker(
+      "writer",
+      "commitUpload",
+      file,
+      { batchId: batch.id, mode, userId: actor.userId, ip: options.ip ?? null, pauseAfterCommitMs: options.pauseAfterCommitMs },
+      {
+        onProgress: options.onProgress,
+        timeoutMs: options.timeoutMs,
+        ifStopped: async () => {
+          // Once the write lock is free, the stopped thread's transaction has ended, committed or rolled back.
+          await writeWhenFree(db, () => undefined);
+          return committedResult(db, batch.id);
+        },
+      },
+    );
+  } catch (error) {
+    rethrow(error);
+  }
+}
+
+/** What a committed batch's commit answered, read back from the rows and the commit's audit entry; undefined if not committed. */
+function committedResult(db: Db, batchId: number): CommitResult | undefined {
+  const sqlite = db.$client;
+  const batch = sqlite.prepare("select status, public_id as publicId from upload_batches where id = ?").get(batchId) as
+    { status: string; publicId: string } | undefined;
+  if (batch?.status !== "committed") return undefined;
+  const determinationIds = sqlite
+    .prepare("select id from determinations where upload_batch_id = ? order by id")
+    .pluck()
+    .all(batchId) as number[];
+  const entry = sqlite
+    .prepare(
+      "select after from audit_log where action = 'upload.commit' and entity = 'upload_batch' and entity_id = ? order by id desc",
+    )
+    .pluck()
+    .get(batch.publicId) as string | undefined;
+  const after = (entry ? JSON.parse(entry) : {}) as { createdSiteIds?: number[]; createdSampleIds?: number[] };
+  return {
+    committed: determinationIds.length,
+    determinationIds,
+    createdSiteIds: after.createdSiteIds ?? [],
+    createdSampleIds: after.createdSampleIds ?? [],
+  };
 }
