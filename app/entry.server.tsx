@@ -7,6 +7,7 @@ import { renderToPipeableStream, type RenderToPipeableStreamOptions } from "reac
 import { NonceContext } from "#app/utils/nonce.ts";
 import { logError } from "#app/http/request-log.js";
 import { warmWorkers } from "#app/workers/pool.server.ts";
+import { keepRender, keptRender, renderKey } from "#app/utils/page-memo.server.ts";
 
 /** Called once by server.js when the production server starts (see models/startup.server.ts). */
 export { resumeBackgroundWork as onServerStart } from "#app/models/startup.server.ts";
@@ -32,6 +33,34 @@ export default function handleRequest(
     return new Response(null, { status: responseStatusCode, headers: responseHeaders });
   }
   const nonce = (loadContext as { cspNonce?: string } | undefined)?.cspNonce ?? "";
+  const state = routerContext.staticHandlerContext;
+  const key = routerContext.isSpaMode
+    ? null
+    : renderKey({
+        url: request.url,
+        method: request.method.toUpperCase(),
+        statusCode: responseStatusCode,
+        loaderData: state.loaderData,
+        actionData: state.actionData,
+        errors: state.errors,
+        nonce,
+      });
+  if (key) {
+    // The same page from the same loader data: the kept HTML with this request's nonce (page-memo.server.ts).
+    const kept = keptRender(key, nonce);
+    responseHeaders.set("Content-Type", "text/html");
+    if (kept !== null) {
+      void routerContext.serverHandoffStream?.cancel().catch(() => {});
+      return new Response(kept, { headers: responseHeaders, status: responseStatusCode });
+    }
+    return renderWhole(routerContext, request.url, nonce).then((html) => {
+      keepRender(key, html, nonce);
+      return new Response(Buffer.from(html, "utf8") as Uint8Array<ArrayBuffer>, {
+        headers: responseHeaders,
+        status: responseStatusCode,
+      });
+    });
+  }
   return new Promise((resolve, reject) => {
     let shellRendered = false;
     const userAgent = request.headers.get("user-agent");
@@ -64,6 +93,40 @@ export default function handleRequest(
         onError(error: unknown) {
           responseStatusCode = 500;
           if (shellRendered) logError(error, { where: "render" });
+        },
+      },
+    );
+  });
+}
+
+/** The whole page as one string (every Suspense boundary resolved), for a render that will be kept. */
+function renderWhole(routerContext: EntryContext, url: string, nonce: string): Promise<string> {
+  return new Promise((resolve, reject) => {
+    const chunks: Buffer[] = [];
+    const sink = new PassThrough();
+    sink.on("data", (chunk: Buffer) => chunks.push(chunk));
+    sink.on("end", () => {
+      clearTimeout(timeoutId);
+      resolve(Buffer.concat(chunks).toString("utf8"));
+    });
+    sink.on("error", reject);
+    const timeoutId = setTimeout(() => abort(), streamTimeout + 1000);
+    const { pipe, abort } = renderToPipeableStream(
+      <NonceContext.Provider value={nonce}>
+        <ServerRouter context={routerContext} url={url} nonce={nonce} />
+      </NonceContext.Provider>,
+      {
+        nonce,
+        onAllReady() {
+          pipe(sink);
+        },
+        onShellError(error: unknown) {
+          clearTimeout(timeoutId);
+          reject(error);
+        },
+        onError(error: unknown) {
+          clearTimeout(timeoutId);
+          reject(error);
         },
       },
     );
