@@ -96,13 +96,22 @@ function answer(body: EncodedBody, coding: Coding | null, bytes: Buffer | null, 
 }
 
 /** The answer from a small body, encoding it here when first needed (a few ms for a few hundred KB). */
+/*
+ * A React Router data request (`/api/map-sites.data`, from a fetcher) reads the loader's answer
+ * itself and sends it on in its own format: that answer must be the plain body, never encoded.
+ */
+function codingFor(request: Request): Coding | null {
+  if (new URL(request.url).pathname.endsWith(".data")) return null;
+  return preferredCoding(request.headers.get("Accept-Encoding"));
+}
+
 export function encodedAnswer(
   request: Request,
   body: EncodedBody,
   headers: HeadersInit,
   notModifiedHeaders?: HeadersInit,
 ): Response {
-  const coding = preferredCoding(request.headers.get("Accept-Encoding"));
+  const coding = codingFor(request);
   if (notModified(request, body)) return answer(body, coding, null, new Headers(notModifiedHeaders ?? headers));
   return answer(body, coding, coding ? codedSync(body, coding) : body.identity, new Headers(headers));
 }
@@ -114,7 +123,7 @@ export async function encodedAnswerAsync(
   headers: HeadersInit,
   grew: (bytes: number) => void,
 ): Promise<Response> {
-  const coding = preferredCoding(request.headers.get("Accept-Encoding"));
+  const coding = codingFor(request);
   if (notModified(request, body)) return answer(body, coding, null, new Headers(headers));
   return answer(body, coding, coding ? await codedAsync(body, coding, grew) : body.identity, new Headers(headers));
 }
