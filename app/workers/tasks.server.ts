@@ -35,7 +35,6 @@ const tasks = {
     const { commitUpload } = await import("#app/models/submission/uploads/commit.server.ts");
     const batch = getBatchById(db, p.batchId);
     if (!batch) throw new Error("The upload is gone.");
-    progress(0, "Checking the rows again");
     const result = commitUpload(
       db,
       batch,

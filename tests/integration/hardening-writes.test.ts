@@ -1,5 +1,7 @@
 import { afterAll, describe, expect, it } from "vitest";
+import Database from "better-sqlite3";
 import { getDb } from "#app/db/client.server.ts";
+import { commitUpload } from "#app/models/submission/uploads/commit.server.ts";
 import { getBatchForUser } from "#app/models/submission/uploads/batches.server.ts";
 import * as commitApi from "#app/routes/api/v1/uploads.commit.ts";
 import * as determinationsApi from "#app/routes/api/v1/determinations.ts";
@@ -142,5 +144,52 @@ describe("case 11: commits run off the request thread, all or nothing", () => {
     expect([...ids].sort((a, b) => a - b)).toEqual(ids);
     expect(determinationCount()).toBe(before + 2000);
     expect(pauseMs).toBeLessThan(1500);
+  });
+});
+
+describe("a commit holds the write lock only while it writes", () => {
+  it("its rows are checked again before the lock is taken, and once more under it when the registry changed meanwhile", async () => {
+    const person = contributorWithToken();
+    const other = new Database(getDb().$client.name);
+    other.pragma("busy_timeout = 0");
+    const lockFree = () => {
+      try {
+        other.exec("begin immediate");
+        other.exec("rollback");
+        return true;
+      } catch {
+        return false;
+      }
+    };
+    try {
+      for (const [i, changeMeanwhile] of [false, true].entries()) {
+        const id = await uploadedSheet(30, `ZL${i}Q`, person.token);
+        const batch = getBatchForUser(getDb(), id, person.id)!;
+        const phases: [string, boolean][] = [];
+        const result = commitUpload(
+          getDb(),
+          batch,
+          "all",
+          { userId: person.id },
+          {
+            onPhase: (message) => {
+              phases.push([message, lockFree()]);
+              // Another connection commits while the rows are being checked the first time.
+              if (changeMeanwhile && phases.length === 1)
+                other.prepare("insert into rate_limits values (?, 1, 1)").run(`probe:${i}`);
+            },
+          },
+        );
+        expect(result.committed).toBe(30);
+        // The first check runs with the lock free; the second (only after a change) and the writing hold it.
+        expect(phases).toEqual([
+          ["Checking the rows again", true],
+          ...(changeMeanwhile ? [["Checking the rows again (the registry changed meanwhile)", false] as [string, boolean]] : []),
+          ["Calibrating and checking 30 determinations", false],
+        ]);
+      }
+    } finally {
+      other.close();
+    }
   });
 });
