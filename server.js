@@ -33,7 +33,10 @@ app.use(requestLog());
 app.use(securityHeaders({ trustProxy }));
 app.use(compression());
 app.use("/assets", express.static("build/client/assets", { immutable: true, maxAge: "1y" }));
-app.use(express.static("build/client", { maxAge: "1h" }));
+// build/client holds nothing but files with an extension (the favicon; assets/ above), so a path
+// without one (every page and API answer) skips the file look-up the static handler would make.
+const clientFiles = express.static("build/client", { maxAge: "1h" });
+app.use((req, res, next) => (/\.[^/]*$/.test(req.path) ? clientFiles(req, res, next) : next()));
 app.use(clientAddress({ trustProxy }));
 // Cross-origin writes are refused before React Router sees them (pages and resource routes alike).
 app.use(originGuard({ appUrl: process.env.APP_URL, trustProxy }));

@@ -1,5 +1,5 @@
 import crypto from "node:crypto";
-import { and, desc, eq, isNull } from "drizzle-orm";
+import { and, desc, eq, isNull, sql } from "drizzle-orm";
 import type { Db } from "#app/db/client.server.ts";
 import { apiTokens, users } from "#app/db/schema.ts";
 import { audit, type DbOrTx } from "#app/models/audit.server.ts";
@@ -114,18 +114,26 @@ function noteUse(db: Db, tokenId: number, lastUsedAt: Date | null, now: Date) {
   }
 }
 
+/** The look-up behind every API request, prepared once per connection instead of once per request. */
+function prepareTokenLookup(db: Db) {
+  return db
+    .select({ tokenId: apiTokens.id, lastUsedAt: apiTokens.lastUsedAt, id: users.id, email: users.email, name: users.name })
+    .from(apiTokens)
+    .innerJoin(users, eq(users.id, apiTokens.userId))
+    .where(and(eq(apiTokens.tokenHash, sql.placeholder("hash")), isNull(apiTokens.revokedAt), eq(users.active, true)))
+    .prepare();
+}
+const tokenLookups = new WeakMap<Db, ReturnType<typeof prepareTokenLookup>>();
+
 /**
  * The person a bearer token stands for: the token must exist, not be revoked, and belong to an
  * active person. Notes the time of use (at most once a minute, never delaying the answer).
  */
 export function userForToken(db: Db, token: string): (SessionUser & { tokenId: number }) | null {
   if (!token.startsWith(TOKEN_PREFIX) || token.length > 200) return null;
-  const row = db
-    .select({ tokenId: apiTokens.id, lastUsedAt: apiTokens.lastUsedAt, id: users.id, email: users.email, name: users.name })
-    .from(apiTokens)
-    .innerJoin(users, eq(users.id, apiTokens.userId))
-    .where(and(eq(apiTokens.tokenHash, hashToken(token)), isNull(apiTokens.revokedAt), eq(users.active, true)))
-    .get();
+  let lookup = tokenLookups.get(db);
+  if (!lookup) tokenLookups.set(db, (lookup = prepareTokenLookup(db)));
+  const row = lookup.get({ hash: hashToken(token) });
   if (!row) return null;
   noteUse(db, row.tokenId, row.lastUsedAt, new Date());
   return { id: row.id, email: row.email, name: row.name, roles: sortRoles(rolesOf(row.id)), tokenId: row.tokenId };

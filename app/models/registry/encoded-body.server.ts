@@ -92,10 +92,16 @@ function answer(body: EncodedBody, coding: Coding | null, bytes: Buffer | null, 
   if (!bytes) return new Response(null, { status: 304, headers });
   if (coding) headers.set("Content-Encoding", coding);
   headers.set("Content-Length", String(bytes.byteLength));
-  return new Response(new Uint8Array(bytes.buffer as ArrayBuffer, bytes.byteOffset, bytes.byteLength), { status: 200, headers });
+  // A stream of the held bytes themselves: a Uint8Array body would be copied for every answer.
+  const stream = new ReadableStream<Uint8Array>({
+    start(controller) {
+      controller.enqueue(bytes);
+      controller.close();
+    },
+  });
+  return new Response(stream, { status: 200, headers });
 }
 
-/** The answer from a small body, encoding it here when first needed (a few ms for a few hundred KB). */
 /*
  * A React Router data request (`/api/map-sites.data`, from a fetcher) reads the loader's answer
  * itself and sends it on in its own format: that answer must be the plain body, never encoded.
@@ -105,6 +111,7 @@ function codingFor(request: Request): Coding | null {
   return preferredCoding(request.headers.get("Accept-Encoding"));
 }
 
+/** The answer from a small body, encoding it here when first needed (a few ms for a few hundred KB). */
 export function encodedAnswer(
   request: Request,
   body: EncodedBody,
