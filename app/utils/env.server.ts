@@ -44,6 +44,8 @@ const schema = z.object({
   WORKER_TIME_LIMIT_MS: z.coerce.number().int().positive().default(60_000),
   /** Heap of the intake thread (untrusted files, large calculations), MB: past it the task is stopped, not the server. */
   INTAKE_HEAP_MB: z.coerce.number().int().min(16).default(768),
+  /** How far worker threads lower their CPU priority (Linux nice, 0–19; 0 leaves it): requests go first. */
+  WORKER_NICE: z.coerce.number().int().min(0).max(19).default(10),
   /** Radius of the neighbours check, km. */
   CHECK_NEIGHBOUR_RADIUS_KM: z.coerce.number().positive().max(500).default(25),
   /** Largest accepted margin reconstruction file, bytes. */

@@ -7,6 +7,11 @@ import type { MessagePort } from "node:worker_threads";
 import { type Db, openDatabase, setDb } from "#app/db/client.server.ts";
 import type { JobHandler, JobSpec } from "#app/models/jobs.server.ts";
 import type { CommitMode } from "#app/models/submission/uploads/commit.server.ts";
+import { env } from "#app/utils/env.server.ts";
+import { lowerThreadPriority } from "#app/workers/thread-priority.server.ts";
+
+// Background work yields the CPU to the server's thread when both want it (thread-priority.server.ts).
+lowerThreadPriority(env().WORKER_NICE);
 
 // Each task imports what it needs when it first runs, so a thread loads only its own tasks' modules.
 
