@@ -85,6 +85,15 @@ async function waitUp(base: string) {
   throw new Error(`The server at ${base} did not come up`);
 }
 
+/**
+ * Waits until the server has finished its start-up work (it fills the download cache with the
+ * calendar densities in slices between requests, and says so in its log), so the measurement is of
+ * a server in its steady state. At most 60 s.
+ */
+async function warmedUp(log: string[]) {
+  for (let i = 0; i < 600 && !log.join("").includes("Download cache:"); i++) await new Promise((r) => setTimeout(r, 100));
+}
+
 /** A 5,000-row CSV of plausible radiocarbon rows, unique per call so commits never collide. */
 function commitSheet(tag: string, labPrefix: string, labName: string): string {
   const rows = radiocarbonSheetRows({
@@ -262,6 +271,7 @@ export async function runLoadBench(options: Options): Promise<LoadRow[]> {
       const server = startServer(port, work, log, options.appDir);
       try {
         await waitUp(base);
+        await warmedUp(log);
         await hit(base, t, 2, 4); // warm caches and compiled paths
         console.log(
           `  load: ${t.name}, ${connections} connections × ${seconds} s${withCommits ? " during 5,000-row commits" : ""}…`,
