@@ -1,6 +1,7 @@
 import { desc, eq } from "drizzle-orm";
 import type { Db } from "#app/db/client.server.ts";
 import { jobs } from "#app/db/schema.ts";
+import { writeWhenFree } from "#app/db/write-when-free.server.ts";
 import { handlerFor, type JobKind } from "#app/models/job-handlers.server.ts";
 import { databaseFileOf, runInWorker } from "#app/workers/pool.server.ts";
 
@@ -143,24 +144,40 @@ export async function runTrackedJob<T>(
   work: (report: (done: number, message?: string) => void) => Promise<T>,
   describe: (result: T) => string,
 ): Promise<T> {
-  const job = db
-    .insert(jobs)
-    .values({ kind: spec.kind, status: "running", progress: 0, total: spec.total, params: spec.params, createdBy: spec.actorId })
-    .returning({ id: jobs.id })
-    .get();
+  // Its row is written by the server's thread while the writer thread may hold the lock for another
+  // commit: waited for without holding up the thread (decision 020).
+  const job = await writeWhenFree(db, () =>
+    db
+      .insert(jobs)
+      .values({
+        kind: spec.kind,
+        status: "running",
+        progress: 0,
+        total: spec.total,
+        params: spec.params,
+        createdBy: spec.actorId,
+      })
+      .returning({ id: jobs.id })
+      .get(),
+  );
   let settle!: () => void;
   running.set(job.id, new Promise<void>((resolve) => (settle = resolve)));
   live.set(job.id, { progress: 0 });
   try {
     const result = await work((done, message) => live.set(job.id, { progress: done, message }));
-    db.update(jobs)
-      .set({ status: "done", progress: spec.total, message: describe(result), finishedAt: new Date() })
-      .where(eq(jobs.id, job.id))
-      .run();
+    await writeWhenFree(db, () =>
+      db
+        .update(jobs)
+        .set({ status: "done", progress: spec.total, message: describe(result), finishedAt: new Date() })
+        .where(eq(jobs.id, job.id))
+        .run(),
+    );
     return result;
   } catch (error) {
     const message = error instanceof Error ? error.message : String(error);
-    db.update(jobs).set({ status: "failed", message, finishedAt: new Date() }).where(eq(jobs.id, job.id)).run();
+    await writeWhenFree(db, () =>
+      db.update(jobs).set({ status: "failed", message, finishedAt: new Date() }).where(eq(jobs.id, job.id)).run(),
+    );
     throw error;
   } finally {
     live.delete(job.id);
@@ -208,12 +225,31 @@ export function getJob(db: Db, id: number): JobView | null {
   if (!row) return null;
   const now = live.get(id);
   if (now && row.status === "running") return view({ ...row, progress: now.progress, message: now.message ?? row.message });
+  // A job this process does not run was cut off by a restart. Shown so here; written so at the next
+  // start (markInterruptedJobs): a GET never writes (decision 018).
   if ((row.status === "queued" || row.status === "running") && !running.has(id)) {
-    const message = `Interrupted by a server restart after ${row.progress} of ${row.total}; start it again to finish.`;
-    db.update(jobs).set({ status: "failed", message, finishedAt: new Date() }).where(eq(jobs.id, id)).run();
-    return view({ ...row, status: "failed", message, finishedAt: new Date() });
+    return view({ ...row, status: "failed", message: interruptedMessage(row), finishedAt: row.finishedAt ?? new Date() });
   }
   return view(row);
+}
+
+const interruptedMessage = (row: { progress: number; total: number }) =>
+  `Interrupted by a server restart after ${row.progress} of ${row.total}; start it again to finish.`;
+
+/** At start, before any job runs: jobs a restart cut off (still queued or running) are recorded as failed. */
+export function markInterruptedJobs(db: Db): number {
+  const cut = db.$client.prepare("select id, progress, total from jobs where status in ('queued', 'running')").all() as {
+    id: number;
+    progress: number;
+    total: number;
+  }[];
+  for (const row of cut.filter((r) => !running.has(r.id))) {
+    db.update(jobs)
+      .set({ status: "failed", message: interruptedMessage(row), finishedAt: new Date() })
+      .where(eq(jobs.id, row.id))
+      .run();
+  }
+  return cut.length;
 }
 
 export function recentJobs(db: Db, kind: string, limit = 5): JobView[] {

@@ -99,6 +99,7 @@ export type TaskOutcome =
   { ok: true; value: unknown } | { ok: false; error: { name: string; message: string; status?: number; details?: unknown } };
 
 const connections = new Map<string, { db: Db; ino: number; dev: number }>();
+const WORKER_BUSY_TIMEOUT_MS = 120_000;
 
 /** The thread's connection to `file`, opened again when the file was replaced (restored, copied over). */
 function connection(file: string): Db {
@@ -107,6 +108,9 @@ function connection(file: string): Db {
   if (!entry || entry.ino !== ino || entry.dev !== dev || !entry.db.$client.open) {
     if (entry?.db.$client.open) entry.db.$client.close();
     entry = { db: openDatabase(file), ino, dev };
+    // A worker thread may wait for the write lock as long as another thread's commit holds it (a
+    // 5,000-row commit held it ~9 s on the shared machine): waiting here holds up no request but its own.
+    entry.db.$client.pragma(`busy_timeout = ${WORKER_BUSY_TIMEOUT_MS}`);
     connections.set(file, entry);
   }
   // Code that asks getDb() in this thread gets the task's database.

@@ -11,7 +11,9 @@ import { describe, expect, it } from "vitest";
 import { seedForFile } from "#tests/support/test-db.ts";
 import type { RouteConfigEntry } from "@react-router/dev/routes";
 import routes from "#app/routes.ts";
-import { getDb } from "#app/db/client.server.ts";
+import Database from "better-sqlite3";
+import { drizzle } from "drizzle-orm/better-sqlite3";
+import { getDb, setDb, schema, type Db } from "#app/db/client.server.ts";
 import { determinations, jobs, labs, releases, samples, sites, uploadBatches, type Role } from "#app/db/schema.ts";
 import { createSession } from "#app/auth/session.server.ts";
 import { createToken } from "#app/models/accounts/tokens.server.ts";
@@ -449,6 +451,44 @@ describe("access matrix", () => {
           if (!matches(expected, outcome))
             problems.push(`${method} as ${audience}: expected ${expected}, got ${describeOutcome(outcome)}`);
         }
+      }
+      expect(problems).toEqual([]);
+    });
+  }
+});
+
+/*
+ * Issue 14, case 12: no GET writes (or waits for a writer). Every loader is run again for every
+ * audience with the app pointed at a read-only connection to its database, as with the file at
+ * mode 444: a loader that writes anything fails there instead of answering as its row says.
+ */
+describe("every GET answers the same on a read-only database", () => {
+  for (const entry of ENTRIES) {
+    const row = ACCESS[entry.id];
+    if (!row || AUDIENCES.every((a) => answerFor(row.get, a) === "none")) continue;
+    it(`${entry.id} (${entry.path})`, async () => {
+      const mod = (await import(/* @vite-ignore */ path.resolve("app", entry.file))) as { loader?: (a: unknown) => unknown };
+      if (!mod.loader) return;
+      const { params } = fill(row);
+      await freshSessions();
+      const writable = getDb();
+      const readOnly = new Database(writable.$client.name, { readonly: true, fileMustExist: true });
+      setDb(drizzle(readOnly, { schema }) as Db);
+      const problems: string[] = [];
+      try {
+        for (const audience of AUDIENCES) {
+          const expected = answerFor(row.get, audience);
+          const outcome = await run(() => mod.loader!(args(requestFor(row, audience, "GET"), params))).catch(
+            (e: unknown) => ({ status: 0, location: null, error: String(e) }) as Outcome & { error: string },
+          );
+          if (!matches(expected, outcome))
+            problems.push(
+              `GET as ${audience}: expected ${expected}, got ${"error" in outcome ? outcome.error : describeOutcome(outcome)}`,
+            );
+        }
+      } finally {
+        setDb(writable);
+        readOnly.close();
       }
       expect(problems).toEqual([]);
     });

@@ -1,5 +1,5 @@
 import { eq } from "drizzle-orm";
-import { describe, expect, it } from "vitest";
+import { afterAll, describe, expect, it } from "vitest";
 import { readOutbox } from "#seed/mail-fake.ts";
 import { getDb } from "#app/db/client.server.ts";
 import { auditLog, sessions } from "#app/db/schema.ts";
@@ -13,6 +13,10 @@ import { resetRateLimits } from "#app/utils/rate-limit.server.ts";
 import { args, CookieJar, get, post, run } from "#tests/support/auth.ts";
 import { useMailFake } from "#tests/support/mail-fake.ts";
 import { holdWriteLock, longestPause } from "#tests/support/write-lock.ts";
+import { contributorWithToken, determinationCount, uploadedSheet } from "#tests/support/api-uploads.ts";
+import * as commitApi from "#app/routes/api/v1/uploads.commit.ts";
+import { closeWorkers } from "#app/workers/pool.server.ts";
+import { ORIGIN } from "#tests/support/auth.ts";
 
 /*
  * Issue 14, items 11 and 12: the server thread's own writes while another connection (the writer
@@ -23,6 +27,7 @@ import { holdWriteLock, longestPause } from "#tests/support/write-lock.ts";
  */
 
 const fake = useMailFake("thread-writes");
+afterAll(() => closeWorkers());
 let n = 0;
 
 function person() {
@@ -131,4 +136,34 @@ describe("a used sign-in code", () => {
     expect(copy.get("thawline_session")).toBeUndefined();
     expect(getDb().select().from(sessions).where(eq(sessions.userId, p.id)).all()).toHaveLength(1);
   });
+});
+
+describe("uploads and commits while another commit holds the write lock", () => {
+  it(
+    "an upload waits for the lock in its thread (it failed past 5 s), and a commit's job row without stopping this one",
+    { timeout: 120_000 },
+    async () => {
+      const person = contributorWithToken();
+      const id = await uploadedSheet(20, "ZT1Q", person.token);
+      // Longer than the 5 s a connection waits by default; the upload's thread (started above) stores the batch meanwhile.
+      let lock = await holdWriteLock(file(), 7_000);
+      const t0 = performance.now();
+      await uploadedSheet(20, "ZT2Q", person.token);
+      expect(performance.now() - t0).toBeGreaterThan(5_000);
+      await lock.released;
+      const before = determinationCount();
+      lock = await holdWriteLock(file(), 1_500);
+      const commit = new Request(`${ORIGIN}/api/v1/uploads/${id}/commit`, {
+        method: "POST",
+        body: JSON.stringify({ mode: "all" }),
+        headers: { "Content-Type": "application/json", Authorization: `Bearer ${person.token}` },
+      });
+      const { value, pauseMs } = await longestPause(() => run(() => commitApi.action(args(commit, { uploadId: id }))));
+      await lock.released;
+      expect(value.status).toBe(200);
+      expect(determinationCount()).toBe(before + 20);
+      // The commit's job row is written by this thread: it waited without holding the thread up.
+      expect(pauseMs).toBeLessThan(300);
+    },
+  );
 });

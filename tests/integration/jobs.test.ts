@@ -1,6 +1,7 @@
 import { expect, test } from "vitest";
 import { getDb } from "#app/db/client.server.ts";
-import { getJob, jobFinished, startJob, type JobHandler } from "#app/models/jobs.server.ts";
+import { jobs } from "#app/db/schema.ts";
+import { getJob, jobFinished, markInterruptedJobs, recentJobs, startJob, type JobHandler } from "#app/models/jobs.server.ts";
 
 test("a job runs its handler in chunks in the background, records progress after each, and ends done", async () => {
   const db = getDb();
@@ -43,4 +44,17 @@ test("a handler that throws leaves the job failed with how far it got and why", 
   });
   await jobFinished(jobId);
   expect(getJob(db, jobId)).toMatchObject({ status: "failed", message: "Stopped after 4 of 6: the third chunk broke" });
+});
+
+test("a job a restart cut off reads as interrupted without a write (a GET), and is recorded so at the next start", () => {
+  const db = getDb();
+  const cut = db.insert(jobs).values({ kind: "recalibrate", status: "running", progress: 3, total: 9 }).returning().get();
+  const message = "Interrupted by a server restart after 3 of 9; start it again to finish.";
+  expect(getJob(db, cut.id)).toMatchObject({ status: "failed", message });
+  expect(recentJobs(db, "recalibrate")[0]).toMatchObject({ id: cut.id, status: "failed", message });
+  // Reading wrote nothing …
+  expect(db.$client.prepare("select status from jobs where id = ?").pluck().get(cut.id)).toBe("running");
+  // … the start records it.
+  expect(markInterruptedJobs(db)).toBe(1);
+  expect(db.$client.prepare("select status, message from jobs where id = ?").get(cut.id)).toEqual({ status: "failed", message });
 });
