@@ -7,7 +7,7 @@ import { renderToPipeableStream, type RenderToPipeableStreamOptions } from "reac
 import { NonceContext } from "#app/utils/nonce.ts";
 import { logError } from "#app/http/request-log.js";
 import { warmWorkers } from "#app/workers/pool.server.ts";
-import { keepRender, keptRender, renderKey } from "#app/utils/page-memo.server.ts";
+import { keepRender, keptRender, renderKey, settledText } from "#app/utils/page-memo.server.ts";
 
 /** Called once by server.js when the production server starts (see models/startup.server.ts). */
 export { resumeBackgroundWork as onServerStart } from "#app/models/startup.server.ts";
@@ -33,34 +33,61 @@ export default function handleRequest(
     return new Response(null, { status: responseStatusCode, headers: responseHeaders });
   }
   const nonce = (loadContext as { cspNonce?: string } | undefined)?.cspNonce ?? "";
-  const state = routerContext.staticHandlerContext;
-  const key = routerContext.isSpaMode
-    ? null
-    : renderKey({
-        url: request.url,
-        method: request.method.toUpperCase(),
-        statusCode: responseStatusCode,
-        loaderData: state.loaderData,
-        actionData: state.actionData,
-        errors: state.errors,
-        nonce,
-      });
-  if (key) {
-    // The same page from the same loader data: the kept HTML with this request's nonce (page-memo.server.ts).
-    const kept = keptRender(key, nonce);
-    responseHeaders.set("Content-Type", "text/html");
-    if (kept !== null) {
-      void routerContext.serverHandoffStream?.cancel().catch(() => {});
-      return new Response(kept, { headers: responseHeaders, status: responseStatusCode });
-    }
-    return renderWhole(routerContext, request.url, nonce).then((html) => {
-      keepRender(key, html, nonce);
-      return new Response(Buffer.from(html, "utf8") as Uint8Array<ArrayBuffer>, {
-        headers: responseHeaders,
-        status: responseStatusCode,
-      });
-    });
+  if (!routerContext.isSpaMode && nonce && routerContext.serverHandoffStream) {
+    return keptOrWhole(request, responseStatusCode, responseHeaders, routerContext, nonce).then(
+      (answer) => answer ?? streamed(request, responseStatusCode, responseHeaders, routerContext, nonce),
+    );
   }
+  return streamed(request, responseStatusCode, responseHeaders, routerContext, nonce);
+}
+
+/**
+ * The same page from the same loader data: the kept HTML with this request's nonce written in
+ * (page-memo.server.ts); a page that may be kept but is not yet is rendered whole and kept. Null
+ * when this render may not be kept (deferred data, an error, a status other than 200).
+ */
+async function keptOrWhole(
+  request: Request,
+  responseStatusCode: number,
+  responseHeaders: Headers,
+  routerContext: EntryContext,
+  nonce: string,
+): Promise<Response | null> {
+  const { text, rest } = await settledText(routerContext.serverHandoffStream!);
+  routerContext.serverHandoffStream = rest;
+  const state = routerContext.staticHandlerContext;
+  const key = renderKey({
+    url: request.url,
+    method: request.method.toUpperCase(),
+    statusCode: responseStatusCode,
+    actionData: state.actionData,
+    errors: state.errors,
+    nonce,
+    dataText: text,
+  });
+  if (!key) return null;
+  responseHeaders.set("Content-Type", "text/html");
+  const kept = keptRender(key, nonce);
+  if (kept !== null) {
+    void rest.cancel().catch(() => {});
+    return new Response(kept, { headers: responseHeaders, status: responseStatusCode });
+  }
+  const html = await renderWhole(routerContext, request.url, nonce);
+  keepRender(key, html, nonce);
+  return new Response(Buffer.from(html, "utf8") as Uint8Array<ArrayBuffer>, {
+    headers: responseHeaders,
+    status: responseStatusCode,
+  });
+}
+
+/** React Router's default streaming render. */
+function streamed(
+  request: Request,
+  responseStatusCode: number,
+  responseHeaders: Headers,
+  routerContext: EntryContext,
+  nonce: string,
+): Promise<Response> {
   return new Promise((resolve, reject) => {
     let shellRendered = false;
     const userAgent = request.headers.get("user-agent");

@@ -11,7 +11,7 @@ import crypto from "node:crypto";
  * every loader gave both the same data (the root loader's data names the person, so in practice
  * an entry is one person's). A write to the registry changes the loader data, so the next render
  * is fresh. Not kept: error renders, statuses other than 200, action answers, deferred (promise)
- * data, renders without a nonce (the development server), and anything outside a plain-data key.
+ * data, renders without a nonce (the development server).
  */
 
 const MAX_ENTRIES = 256;
@@ -22,44 +22,63 @@ type Entry = { parts: Buffer[]; bytes: number };
 const entries = new Map<string, Entry>();
 let totalBytes = 0;
 
-class NotPlainData extends Error {}
-
-/** JSON with the shapes JSON would blur kept apart (Map, Set, undefined); a promise or function is not plain data. */
-function stableText(value: unknown): string {
-  return JSON.stringify(value, (_key, v: unknown) => {
-    if (v === undefined) return "\u0000undefined";
-    if (typeof v === "function" || typeof v === "symbol") throw new NotPlainData();
-    if (typeof v === "bigint") return `\u0000bigint:${v}`;
-    if (v instanceof Map) return { "\u0000map": [...v.entries()] };
-    if (v instanceof Set) return { "\u0000set": [...v.values()] };
-    if (v && typeof v === "object" && typeof (v as { then?: unknown }).then === "function") throw new NotPlainData();
-    return v;
-  });
-}
-
 export type RenderInputs = {
   url: string;
   statusCode: number;
-  loaderData: Record<string, unknown>;
   actionData: Record<string, unknown> | null;
   errors: Record<string, unknown> | null;
   nonce: string;
   method: string;
+  /**
+   * The loaders' data exactly as React Router sends it to the browser (its hydration stream), or
+   * null when that stream is still waiting for deferred data.
+   */
+  dataText: string | null;
 };
 
 /** The key of a render that may be kept, or null when this one must not be. */
 export function renderKey(inputs: RenderInputs): string | null {
   if (inputs.method !== "GET" || inputs.statusCode !== 200 || !inputs.nonce) return null;
-  if (inputs.errors || inputs.actionData) return null;
-  let text: string;
-  try {
-    text = stableText(inputs.loaderData);
-  } catch (error) {
-    if (error instanceof NotPlainData) return null;
-    throw error;
-  }
+  if (inputs.errors || inputs.actionData || inputs.dataText === null) return null;
   const { pathname, search } = new URL(inputs.url);
-  return crypto.createHash("sha256").update(pathname).update("\n").update(search).update("\n").update(text).digest("base64url");
+  return crypto
+    .createHash("sha256")
+    .update(pathname)
+    .update("\n")
+    .update(search)
+    .update("\n")
+    .update(inputs.dataText)
+    .digest("base64url");
+}
+
+/**
+ * Reads React Router's hydration stream of the loaders' data (already encoded before the render is
+ * asked for) and gives back its whole text when it is complete at once, with a stream of the same
+ * bytes for the render to send. Deferred data keeps the stream open: then the text is null (that
+ * page is rendered as it streams, and not kept).
+ */
+export async function settledText(
+  stream: ReadableStream<Uint8Array>,
+): Promise<{ text: string | null; rest: ReadableStream<Uint8Array> }> {
+  const [mine, rest] = stream.tee();
+  const reader = mine.getReader();
+  const decoder = new TextDecoder();
+  let text = "";
+  let complete = false;
+  const readAll = (async () => {
+    for (;;) {
+      const { done, value } = await reader.read();
+      if (done) return void (complete = true);
+      text += decoder.decode(value, { stream: true });
+    }
+  })();
+  // Data with nothing deferred is encoded in one go: complete within this turn of the event loop.
+  await Promise.race([readAll, new Promise((resolve) => setImmediate(resolve))]);
+  if (!complete) {
+    void reader.cancel().catch(() => {});
+    return { text: null, rest };
+  }
+  return { text: text + decoder.decode(), rest };
 }
 
 /** A kept render for this key, with `nonce` in place of the nonce it was rendered with. */
