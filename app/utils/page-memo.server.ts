@@ -81,19 +81,26 @@ export async function settledText(
   return { text: text + decoder.decode(), rest };
 }
 
-/** A kept render for this key, with `nonce` in place of the nonce it was rendered with. */
-export function keptRender(key: string, nonce: string): Uint8Array<ArrayBuffer> | null {
+/**
+ * A kept render for this key, with `nonce` in place of the nonce it was rendered with: a stream of
+ * the kept pieces themselves (never copied, never changed) and the nonce between them, so a repeat
+ * answer allocates next to nothing.
+ */
+export function keptRender(key: string, nonce: string): ReadableStream<Uint8Array> | null {
   const hit = entries.get(key);
   if (!hit) return null;
   entries.delete(key);
   entries.set(key, hit); // most recently used last
   const nonceBytes = Buffer.from(nonce, "utf8");
-  const pieces: Buffer[] = [];
-  hit.parts.forEach((part, i) => {
-    if (i > 0) pieces.push(nonceBytes);
-    pieces.push(part);
+  return new ReadableStream<Uint8Array>({
+    start(controller) {
+      hit.parts.forEach((part, i) => {
+        if (i > 0) controller.enqueue(nonceBytes);
+        controller.enqueue(part);
+      });
+      controller.close();
+    },
   });
-  return Buffer.concat(pieces) as Uint8Array<ArrayBuffer>;
 }
 
 /** Keeps a finished render; the least recently used go first when the cache is full. */
