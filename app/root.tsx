@@ -17,6 +17,8 @@ import "./app.css";
 import { ErrorView } from "#app/components/error-view.tsx";
 import { getOptionalUser } from "#app/auth/session.server.ts";
 import { readFlash } from "#app/utils/flash.server.ts";
+import { getDb } from "#app/db/client.server.ts";
+import { mayWrite, untilWritable, WriteLockBusy } from "#app/db/write-when-free.server.ts";
 import { navigationFor } from "#app/utils/navigation.ts";
 import { useNonce } from "#app/utils/nonce.ts";
 import { useHydrated } from "#app/utils/use-hydrated.ts";
@@ -24,6 +26,24 @@ import { useHydrated } from "#app/utils/use-hydrated.ts";
 export const meta: Route.MetaFunction = () => [
   { title: "Thawline — a registry of ice-free dates" },
   { name: "description", content: "Radiocarbon and luminescence dates that constrain past ice sheets." },
+];
+
+/**
+ * A write request waits (without holding up the server's thread) until the writer thread has let go
+ * of the write lock, then runs; past 30 s it is refused with a 503 (db/write-when-free.server.ts).
+ */
+export const middleware: Route.MiddlewareFunction[] = [
+  async ({ request }, next) => {
+    if (mayWrite(request)) {
+      try {
+        await untilWritable(getDb());
+      } catch (error) {
+        if (!(error instanceof WriteLockBusy)) throw error;
+        throw new Response(error.message, { status: 503, headers: { "Retry-After": "10", "Content-Type": "text/plain" } });
+      }
+    }
+    return next();
+  },
 ];
 
 export async function loader({ request }: Route.LoaderArgs) {

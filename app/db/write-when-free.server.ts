@@ -59,3 +59,27 @@ export async function writeWhenFree<T>(db: Db, write: () => T, options: { waitMs
     await new Promise((resolve) => setTimeout(resolve, Math.min(pause, waitMs - waited)));
   }
 }
+
+/*
+ * Pages' and the API's write requests (forms, reviews, admin) write on the server's thread through
+ * plain synchronous statements; while the writer thread holds the lock (a 5,000-row commit, a check
+ * run) such a write would stop the whole thread for up to busy_timeout and then fail. So a write
+ * request first waits, asynchronously, until the lock is free (root.tsx's middleware), and only
+ * then runs its action. A writer that takes the lock in the moment between is still waited for
+ * synchronously, as before; the long waits are gone.
+ */
+
+/** Resolves once no other connection holds the write lock (taking it for an empty moment to know). */
+export async function untilWritable(db: Db, options: { waitMs?: number } = {}): Promise<void> {
+  await writeWhenFree(db, () => undefined, options);
+}
+
+/** Requests that never write on the server's thread: calculations answered without storing anything. */
+const NO_WRITES = [/^\/calibrate(\/|$)/, /^\/api\/v1\/calibrate$/];
+
+/** Whether a request may write on the server's thread (anything but GET and HEAD, outside NO_WRITES). */
+export function mayWrite(request: Request): boolean {
+  if (request.method === "GET" || request.method === "HEAD") return false;
+  const { pathname } = new URL(request.url);
+  return !NO_WRITES.some((re) => re.test(pathname));
+}
