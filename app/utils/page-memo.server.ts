@@ -16,6 +16,8 @@ import crypto from "node:crypto";
 
 const MAX_ENTRIES = 256;
 const MAX_BYTES = 48 * 1024 * 1024;
+/** Kept pieces at least this long are sent as they are; shorter ones are joined with their neighbours. */
+const SMALL_PIECE = 16 * 1024;
 
 /** The page cut at each place its nonce stood, as UTF-8 bytes (a Buffer body spares the per-answer string check). */
 type Entry = { parts: Buffer[]; bytes: number };
@@ -92,12 +94,27 @@ export function keptRender(key: string, nonce: string): ReadableStream<Uint8Arra
   entries.delete(key);
   entries.set(key, hit); // most recently used last
   const nonceBytes = Buffer.from(nonce, "utf8");
+  // Small pieces and the nonces between them go out joined (a small copy); large pieces as they are kept.
+  // Fewer, larger chunks: each chunk costs a trip through the streams and the compressor.
+  const chunks: Buffer[] = [];
+  let small: Buffer[] = [];
+  const flush = () => {
+    if (small.length) chunks.push(small.length === 1 ? small[0]! : Buffer.concat(small));
+    small = [];
+  };
+  hit.parts.forEach((part, i) => {
+    if (i > 0) small.push(nonceBytes);
+    if (part.length >= SMALL_PIECE) {
+      flush();
+      chunks.push(part);
+    } else {
+      small.push(part);
+    }
+  });
+  flush();
   return new ReadableStream<Uint8Array>({
     start(controller) {
-      hit.parts.forEach((part, i) => {
-        if (i > 0) controller.enqueue(nonceBytes);
-        controller.enqueue(part);
-      });
+      for (const chunk of chunks) controller.enqueue(chunk);
       controller.close();
     },
   });

@@ -46,6 +46,18 @@ describe("keptRender", () => {
     expect(await new Response(keptRender(key, "bmV3Mg==")!).text()).toBe(again.replaceAll("bmV3MQ==", "bmV3Mg=="));
   });
 
+  test("large and small pieces come out in order, whole, with every nonce replaced", async () => {
+    const key = renderKey({ ...base, url: "http://app.test/mixed" })!;
+    const big = "é".repeat(20_000); // 40 KB: sent as kept
+    const html = `<a nonce="n0">${big}</a><b nonce="n0">x</b><c nonce="n0">${big}y</c><d nonce="n0">`;
+    keepRender(key, html, "n0");
+    const stream = keptRender(key, "NEW")!;
+    const chunks: Uint8Array[] = [];
+    for await (const chunk of stream as unknown as AsyncIterable<Uint8Array>) chunks.push(chunk);
+    expect(Buffer.concat(chunks).toString("utf8")).toBe(html.replaceAll("n0", "NEW"));
+    expect(chunks.length).toBeLessThan(html.split("n0").length * 2 - 1); // small pieces were joined
+  });
+
   test("holds at most its byte budget: the least recently used go first", () => {
     const big = "x".repeat(4 * 1024 * 1024); // 4 MB each; the budget is 48 MB
     const keys = Array.from({ length: 20 }, (_, i) => renderKey({ ...base, url: `http://app.test/big/${i}` })!);
