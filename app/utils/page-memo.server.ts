@@ -1,4 +1,5 @@
 import crypto from "node:crypto";
+import { ByteBoundedCache } from "#app/utils/byte-bounded-cache.ts";
 
 /*
  * Rendering a page is a pure function of its URL and what its loaders returned: the same loader
@@ -20,9 +21,8 @@ const MAX_BYTES = 48 * 1024 * 1024;
 const SMALL_PIECE = 16 * 1024;
 
 /** The page cut at each place its nonce stood, as UTF-8 bytes (a Buffer body spares the per-answer string check). */
-type Entry = { parts: Buffer[]; bytes: number };
-const entries = new Map<string, Entry>();
-let totalBytes = 0;
+type Entry = { parts: Buffer[] };
+const entries = new ByteBoundedCache<Entry>({ maxBytes: MAX_BYTES, maxEntries: MAX_ENTRIES });
 
 export type RenderInputs = {
   url: string;
@@ -91,8 +91,6 @@ export async function settledText(
 export function keptRender(key: string, nonce: string): ReadableStream<Uint8Array> | null {
   const hit = entries.get(key);
   if (!hit) return null;
-  entries.delete(key);
-  entries.set(key, hit); // most recently used last
   const nonceBytes = Buffer.from(nonce, "utf8");
   // Small pieces and the nonces between them go out joined (a small copy); large pieces as they are kept.
   // Fewer, larger chunks: each chunk costs a trip through the streams and the compressor.
@@ -125,19 +123,10 @@ export function keepRender(key: string, html: string, nonce: string): void {
   const parts = html.split(nonce).map((part) => Buffer.from(part, "utf8"));
   const bytes = parts.reduce((n, part) => n + part.length, 0);
   if (bytes > MAX_BYTES / 4) return;
-  const old = entries.get(key);
-  if (old) totalBytes -= old.bytes;
-  entries.delete(key);
-  entries.set(key, { parts, bytes });
-  totalBytes += bytes;
-  for (const [k, e] of entries) {
-    if (entries.size <= MAX_ENTRIES && totalBytes <= MAX_BYTES) break;
-    entries.delete(k);
-    totalBytes -= e.bytes;
-  }
+  entries.set(key, { parts }, bytes);
 }
 
 /** For tests: how many renders are kept and their size. */
 export function pageMemoStats(): { entries: number; bytes: number } {
-  return { entries: entries.size, bytes: totalBytes };
+  return { entries: entries.size, bytes: entries.bytes };
 }

@@ -1,6 +1,7 @@
 import type { Db } from "#app/db/client.server.ts";
 import { encodedAnswerAsync, encodedBody, heldBytes, type EncodedBody } from "#app/models/registry/encoded-body.server.ts";
 import { dataVersion } from "#app/models/registry/read-cache.server.ts";
+import { ByteBoundedCache } from "#app/utils/byte-bounded-cache.ts";
 
 /*
  * Finished downloads (a constraint selection's CSV or JSON, a release's files) kept in memory with
@@ -11,67 +12,38 @@ import { dataVersion } from "#app/models/registry/read-cache.server.ts";
  * and streams as it always did. Callers do their access check before asking.
  */
 
-type Entry = { version: string; body: EncodedBody; headers: [string, string][]; bytes: number };
+type Entry = { version: string; body: EncodedBody; headers: [string, string][] };
 
 const MB = 1024 * 1024;
 const limits = { maxBytes: 64 * MB, maxEntryBytes: 16 * MB };
-const entries = new Map<string, Entry>();
+const entries = new ByteBoundedCache<Entry>({ maxBytes: limits.maxBytes });
 const inflight = new Map<string, Promise<Entry | null>>();
-let held = 0;
 
 /** Sets the bounds (tests use small ones); entries over the new bound go at once. */
 export function setDownloadCacheLimits(next: Partial<typeof limits>) {
   Object.assign(limits, next);
-  evict();
+  entries.setLimits({ maxBytes: limits.maxBytes });
 }
 
 /** Drops every kept download. */
 export function clearDownloadCache() {
   entries.clear();
   oversized.clear();
-  held = 0;
 }
 
 /** What the cache holds now: keys (least recently used first) and total bytes. */
 export function downloadCacheState(): { keys: string[]; bytes: number } {
-  return { keys: [...entries.keys()], bytes: held };
+  return { keys: entries.keys(), bytes: entries.bytes };
 }
 
-function evict() {
-  while (held > limits.maxBytes && entries.size > 0) {
-    const [key, entry] = entries.entries().next().value!;
-    entries.delete(key);
-    held -= entry.bytes;
-  }
-}
-
-function store(key: string, entry: Entry) {
-  const old = entries.get(key);
-  if (old) held -= old.bytes;
-  entries.delete(key);
-  entries.set(key, entry);
-  held += entry.bytes;
-  evict();
-}
-
-/** An encoding was added to an entry's body: count it while the entry is still held. */
-function grew(key: string, entry: Entry, bytes: number) {
-  if (entries.get(key) !== entry) return;
-  entry.bytes += bytes;
-  held += bytes;
-  evict();
-}
-
+/** The entry held for `key` at this version (now the most recently used), if any. */
 function fresh(key: string, version: string): Entry | undefined {
-  const entry = entries.get(key);
-  if (!entry || entry.version !== version) return undefined;
-  entries.delete(key);
-  entries.set(key, entry); // most recently used last
-  return entry;
+  return entries.peek(key)?.version === version ? entries.get(key) : undefined;
 }
 
+/** An encoding added to an entry's body is counted while the entry is still held. */
 const answerFrom = (request: Request, key: string, entry: Entry) =>
-  encodedAnswerAsync(request, entry.body, entry.headers, (bytes) => grew(key, entry, bytes));
+  encodedAnswerAsync(request, entry.body, entry.headers, (bytes) => entries.grow(key, entry, bytes));
 
 type Collected = { whole: Buffer } | { head: Uint8Array[]; rest: ReadableStreamDefaultReader<Uint8Array> };
 
@@ -151,8 +123,8 @@ export async function cachedDownload(
     }
     const body = encodedBody(collected.whole);
     const headers = [...response.headers.entries()].filter(([name]) => name !== "content-length");
-    const entry: Entry = { version, body, bytes: heldBytes(body), headers };
-    store(key, entry);
+    const entry: Entry = { version, body, headers };
+    entries.set(key, entry, heldBytes(body));
     settle(entry);
     return answerFrom(request, key, entry);
   } catch (error) {
