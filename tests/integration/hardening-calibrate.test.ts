@@ -2,9 +2,10 @@ import { afterAll, describe, expect, it } from "vitest";
 import { getDb } from "#app/db/client.server.ts";
 import { calibrateItems } from "#app/models/calibration/calibrate-items.server.ts";
 import { MAX_REQUEST_WORK } from "#app/utils/calibrate-limits.ts";
-import { action, CALIBRATE_WORK_BUDGET } from "#app/routes/api/v1/calibrate.ts";
+import { CALIBRATE_WORK_BUDGET } from "#app/routes/api/v1/calibrate.ts";
 import { spend } from "#app/utils/rate-limit.server.ts";
 import { closeWorkers } from "#app/workers/pool.server.ts";
+import { calibrationDates, postCalibrate } from "#tests/support/calibrate-api.ts";
 
 // Case 10 of the hardening issue: the public calibration API bounds the work of one request
 // (items × the calendar span each calibrates over), writes large answers as a stream, calibrates
@@ -12,18 +13,8 @@ import { closeWorkers } from "#app/workers/pool.server.ts";
 
 afterAll(() => closeWorkers());
 
-let counter = 0;
-function post(body: unknown, address = `198.51.100.${++counter}`) {
-  const request = new Request("http://localhost/api/v1/calibrate", {
-    method: "POST",
-    headers: { "Content-Type": "application/json", "X-Thawline-Client": address },
-    body: JSON.stringify(body),
-  });
-  return action({ request, params: {}, context: {} } as never) as Promise<Response>;
-}
-
-const dates = (n: number, error: number) =>
-  Array.from({ length: n }, (_, i) => ({ id: `d${i}`, c14_age: 3000 + ((i * 37) % 9000), c14_error: error }));
+const post = postCalibrate;
+const dates = calibrationDates;
 
 describe("work of one request", () => {
   it("10,000 dates of error 2,000 (each spanning ~20,000 calendar years) are a 413 that says why, not a 10 s calibration", async () => {

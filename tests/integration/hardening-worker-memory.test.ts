@@ -1,6 +1,6 @@
 import { afterAll, describe, expect, it, vi } from "vitest";
-import { action } from "#app/routes/api/v1/calibrate.ts";
 import { closeWorkers } from "#app/workers/pool.server.ts";
+import { calibrationDates, postCalibrate } from "#tests/support/calibrate-api.ts";
 
 /*
  * Issue 14, items 8 and 10: a task that needs more memory than the intake thread's heap ends that
@@ -16,18 +16,8 @@ vi.hoisted(() => {
 
 afterAll(() => closeWorkers());
 
-let counter = 0;
-function post(body: unknown) {
-  const request = new Request("http://localhost/api/v1/calibrate", {
-    method: "POST",
-    headers: { "Content-Type": "application/json", "X-Thawline-Client": `198.51.100.${++counter}` },
-    body: JSON.stringify(body),
-  });
-  return action({ request, params: {}, context: {} } as never) as Promise<Response>;
-}
-
-const dates = (n: number, error: number) =>
-  Array.from({ length: n }, (_, i) => ({ id: `d${i}`, c14_age: 3000 + ((i * 37) % 9000), c14_error: error }));
+const post = postCalibrate;
+const dates = calibrationDates;
 
 describe("a calculation past its thread's memory", () => {
   it("the calibration API answers 503 saying why; the server and a fresh thread go on", async () => {
