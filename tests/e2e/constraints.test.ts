@@ -160,6 +160,17 @@ describe("constraint sets and releases", () => {
     const map = page.locator(".leaflet-container");
     await map.waitFor();
     const box = (await map.boundingBox())!;
+    // The answer for the first three corners is held back until after the fourth corner's answer:
+    // the page must show the four-corner count, never the older answer arriving last.
+    let held = 0;
+    await page.route("**/constraints/summary**", async (route) => {
+      const polygon = new URL(route.request().url()).searchParams.get("polygon") ?? "";
+      if (polygon.split(";").length === 3) {
+        held++;
+        await new Promise((r) => setTimeout(r, 2_000));
+      }
+      await route.continue().catch(() => undefined); // the page may have cancelled it meanwhile
+    });
     // Four corners around the middle of the map, clockwise on screen.
     const corners = [
       [0.3, 0.3],
@@ -197,6 +208,10 @@ describe("constraint sets and releases", () => {
     expect(expected).toBeLessThan(all);
     await expect.poll(() => countOf(page), { timeout: 15_000 }).toBe(expected);
     expect(new URL(page.url()).searchParams.get("polygon")).toBeTruthy();
+    if (held > 0) {
+      await new Promise((r) => setTimeout(r, 2_500)); // past the held answer
+      expect(await countOf(page)).toBe(expected);
+    }
 
     // Clearing the region gives the whole registry back.
     await page.getByRole("button", { name: "Clear region" }).click();
