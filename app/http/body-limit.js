@@ -36,6 +36,9 @@ export function bodyLimitFor(pathname, { uploadMaxBytes, modelRunMaxBytes = 512 
   return 1 * MiB;
 }
 
+/** Answers already given a 413 by this module (their handler has nothing to add, and must not close them early). */
+export const refusedBodies = new WeakSet();
+
 export class BodyTooLarge extends Error {
   /** @param {number} limit */
   constructor(limit) {
@@ -52,6 +55,7 @@ export class BodyTooLarge extends Error {
  */
 function refuse(req, res, limit) {
   if (res.headersSent) return;
+  refusedBodies.add(res);
   const isApi = (req.url ?? "").startsWith("/api/");
   const message = `The request is too large: at most ${Math.round(limit / KiB)} KB may be sent here.`;
   const body = isApi ? JSON.stringify({ error: message }) : message;
@@ -61,13 +65,31 @@ function refuse(req, res, limit) {
     Connection: "close",
     "Cache-Control": "no-store",
   });
-  res.end(body);
-  // Stop reading; give the client a moment to read the answer, then drop the connection.
-  req.pause();
-  const timer = setTimeout(() => req.socket.destroy(), 2000);
-  timer.unref();
+  // The whole answer goes out now (Content-Length), but the connection is closed only after a
+  // moment of reading and discarding what the client is still sending ("lingering close"): closing
+  // a socket with unread bytes resets it, and a reset can reach the client before it has read the
+  // 413, which it would then never see. At most LINGER_MS or LINGER_BYTES, then the connection ends.
+  res.write(body);
+  let drained = 0;
+  const end = () => {
+    clearTimeout(timer);
+    req.off("data", discard);
+    if (!res.writableEnded) res.end();
+  };
+  /** @param {Buffer} chunk */
+  const discard = (chunk) => {
+    drained += chunk.length;
+    if (drained > LINGER_BYTES) end();
+  };
+  const timer = setTimeout(end, LINGER_MS);
+  req.on("data", discard);
+  req.once("end", end);
   req.socket.once("close", () => clearTimeout(timer));
+  req.resume();
 }
+
+const LINGER_MS = 1000;
+const LINGER_BYTES = 8 * MiB;
 
 /** @param {string | undefined} url */
 const pathnameOf = (url) => (url ?? "/").split("?")[0] ?? "/";
@@ -92,8 +114,8 @@ export function bodyLimit(options) {
       transform(chunk, _encoding, callback) {
         seen += chunk.length;
         if (seen > limit) {
-          refuse(req, res, limit);
           req.unpipe(counter);
+          refuse(req, res, limit);
           return callback(new BodyTooLarge(limit));
         }
         callback(null, chunk);
