@@ -16,6 +16,7 @@ const { bodyLimit } = await import("./app/http/body-limit.js");
 const { requestLog, logError, logLine } = await import("./app/http/request-log.js");
 const { originGuard } = await import("./app/utils/origin-guard.js");
 const { reactRouterHandler } = await import("./app/http/react-router-handler.js");
+const { pageLane } = await import("./app/http/page-lane.js");
 
 const port = Number(process.env.PORT ?? 3000);
 const host = process.env.HOST ?? "127.0.0.1";
@@ -31,6 +32,8 @@ app.disable("x-powered-by");
 if (trustProxy) app.set("trust proxy", 1);
 app.use(requestLog());
 app.use(securityHeaders({ trustProxy }));
+// A kept page seen before goes out from here, already compressed (app/http/page-lane.js).
+app.use(pageLane(build.entry?.module ?? {}));
 app.use(compression());
 app.use("/assets", express.static("build/client/assets", { immutable: true, maxAge: "1y" }));
 // build/client holds nothing but files with an extension (the favicon; assets/ above), so a path

@@ -8,9 +8,13 @@ import { NonceContext } from "#app/utils/nonce.ts";
 import { logError } from "#app/http/request-log.js";
 import { warmWorkers } from "#app/workers/pool.server.ts";
 import { keepRender, keptRender, renderKey, settledText } from "#app/utils/page-memo.server.ts";
+import { rememberLane } from "#app/utils/page-lane.server.ts";
+import { getOptionalUser } from "#app/auth/session.server.ts";
 
 /** Called once by server.js when the production server starts (see models/startup.server.ts). */
 export { resumeBackgroundWork as onServerStart } from "#app/models/startup.server.ts";
+/** Used by server.js (app/http/page-lane.js) to answer a kept page before React Router runs. */
+export { laneKey, laneAnswer } from "#app/utils/page-lane.server.ts";
 
 /*
  * React Router's default Node entry, plus the CSP nonce: server.js makes one per request and
@@ -32,9 +36,9 @@ export default function handleRequest(
   if (request.method.toUpperCase() === "HEAD") {
     return new Response(null, { status: responseStatusCode, headers: responseHeaders });
   }
-  const nonce = (loadContext as { cspNonce?: string } | undefined)?.cspNonce ?? "";
+  const { cspNonce: nonce = "", laneKey } = (loadContext ?? {}) as { cspNonce?: string; laneKey?: string };
   if (!routerContext.isSpaMode && nonce && routerContext.serverHandoffStream) {
-    return keptOrWhole(request, responseStatusCode, responseHeaders, routerContext, nonce).then(
+    return keptOrWhole(request, responseStatusCode, responseHeaders, routerContext, nonce, laneKey).then(
       (answer) => answer ?? streamed(request, responseStatusCode, responseHeaders, routerContext, nonce),
     );
   }
@@ -52,6 +56,7 @@ async function keptOrWhole(
   responseHeaders: Headers,
   routerContext: EntryContext,
   nonce: string,
+  laneKey: string | undefined,
 ): Promise<Response | null> {
   const { text, rest } = await settledText(routerContext.serverHandoffStream!);
   routerContext.serverHandoffStream = rest;
@@ -70,10 +75,12 @@ async function keptOrWhole(
   const kept = keptRender(key, nonce);
   if (kept !== null) {
     void rest.cancel().catch(() => {});
+    if (laneKey) rememberLane(laneKey, key, routerContext, responseHeaders, await getOptionalUser(request));
     return new Response(kept, { headers: responseHeaders, status: responseStatusCode });
   }
   const html = await renderWhole(routerContext, request.url, nonce);
   keepRender(key, html, nonce);
+  if (laneKey) rememberLane(laneKey, key, routerContext, responseHeaders, await getOptionalUser(request));
   return new Response(Buffer.from(html, "utf8") as Uint8Array<ArrayBuffer>, {
     headers: responseHeaders,
     status: responseStatusCode,

@@ -35,7 +35,28 @@ export type LoadRow = {
   loadAvg: number;
 };
 
-type Target = { name: string; path: string; headers: Record<string, string> };
+/** `next`, when given, names the path of each request in turn (a target of many addresses). */
+type Target = { name: string; path: string; headers: Record<string, string>; next?: () => string };
+
+/**
+ * Every Explore page of the demo under every sort and direction, shuffled: 1,332 addresses for
+ * 5,501 determinations, more than the kept pages and cached reads hold, so each answer is made whole.
+ */
+function exploreAddresses(): () => string {
+  const sorts = ["labCode", "site", "age", "cal", "grade", "created"];
+  const paths: string[] = [];
+  for (const sort of sorts)
+    for (const dir of ["asc", "desc"])
+      for (let page = 1; page <= 111; page++) paths.push(`/explore?sort=${sort}&dir=${dir}&page=${page}`);
+  let seed = 20261205;
+  for (let i = paths.length - 1; i > 0; i--) {
+    seed = (seed * 1103515245 + 12345) % 2 ** 31; // a fixed shuffle: the same order every run
+    const j = seed % (i + 1);
+    [paths[i], paths[j]] = [paths[j]!, paths[i]!];
+  }
+  let i = 0;
+  return () => paths[i++ % paths.length]!;
+}
 /** appDir: another checkout's built app to measure instead of this one (a before/after comparison). */
 type Options = { dbFile: string; port?: number; seconds?: number; connections?: number; appDir?: string };
 
@@ -176,6 +197,7 @@ async function hit(base: string, t: Target, seconds: number, connections: number
     connections,
     duration: seconds,
     headers: { "Accept-Encoding": "gzip, br", ...t.headers },
+    ...(t.next ? { requests: [{ setupRequest: (req: object) => ({ ...req, path: t.next!() }) }] } : {}),
   }) as unknown as Promise<autocannon.Result> & { on: (event: "response", fn: (...args: never[]) => void) => void };
   instance.on("response", (_client: unknown, _status: number, _bytes: number, ms: number) => times.push(ms));
   const result = await instance;
@@ -235,6 +257,12 @@ export async function runLoadBench(options: Options): Promise<LoadRow[]> {
   const base = `http://127.0.0.1:${port}`;
   const targets: Target[] = [
     { name: "Explore page (signed in)", path: "/explore", headers: { Cookie: creds.cookie } },
+    {
+      name: "Explore, 1,332 addresses in turn (nothing kept)",
+      path: "/explore",
+      headers: { Cookie: creds.cookie },
+      next: exploreAddresses(),
+    },
     { name: "map data /api/map-sites", path: "/api/map-sites", headers: { Cookie: creds.cookie } },
     {
       name: "GET /api/v1/determinations",

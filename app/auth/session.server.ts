@@ -58,6 +58,12 @@ export function rolesOf(userId: number): Role[] {
   return sessionStatements().roles.all(userId) as Role[];
 }
 
+/** The id of the person whose open session this is, or null when it has ended (signed out, expired, deactivated). */
+export function sessionStillFor(sessionId: string): number | null {
+  const row = sessionStatements().user.get(sessionId, Date.now()) as { id: number } | undefined;
+  return row?.id ?? null;
+}
+
 async function lookUpUser(request: Request): Promise<SessionUser | null> {
   const sessionId = await readSessionId(request);
   if (!sessionId) return null;

@@ -8,6 +8,7 @@
 import { Readable } from "node:stream";
 import { pipeline } from "node:stream/promises";
 import { createRequestHandler, RouterContextProvider } from "react-router";
+import { refusedBodies } from "./body-limit.js";
 
 /**
  * @param {import("express").Request & { limitedBody?: Readable }} req
@@ -35,7 +36,8 @@ function toRequest(req, res) {
 
 /** @param {import("express").Response} res @param {Response} response */
 async function send(res, response) {
-  if (res.destroyed || res.writableEnded) {
+  // Already answered (a body over its limit gets its 413 from body-limit.js while React Router reads).
+  if (res.destroyed || res.writableEnded || refusedBodies.has(res)) {
     await response.body?.cancel().catch(() => {});
     return;
   }
@@ -61,10 +63,15 @@ export function reactRouterHandler({ build, mode }) {
     try {
       // With React Router's middleware (future.v8_middleware) the load context must be a
       // RouterContextProvider; the nonce rides on it as a plain property, read by entry.server.tsx.
-      const context = Object.assign(new RouterContextProvider(), { cspNonce: res.locals.cspNonce });
+      // The lane key (page-lane.js) lets a kept answer leave a lane for the next same request.
+      const context = Object.assign(new RouterContextProvider(), {
+        cspNonce: res.locals.cspNonce,
+        laneKey: res.locals.laneKey,
+      });
       const response = await handle(toRequest(req, res), context);
       await send(res, response);
     } catch (error) {
+      if (refusedBodies.has(res)) return; // answered already: a 413, its connection still lingering
       next(error);
     }
   };

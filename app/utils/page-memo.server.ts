@@ -1,5 +1,6 @@
 import crypto from "node:crypto";
 import { ByteBoundedCache } from "#app/utils/byte-bounded-cache.ts";
+import { deflatePiece, splicedGzip, type DeflatedPiece } from "#app/utils/spliced-gzip.server.ts";
 
 /*
  * Rendering a page is a pure function of its URL and what its loaders returned: the same loader
@@ -20,8 +21,11 @@ const MAX_BYTES = 48 * 1024 * 1024;
 /** Kept pieces at least this long are sent as they are; shorter ones are joined with their neighbours. */
 const SMALL_PIECE = 16 * 1024;
 
-/** The page cut at each place its nonce stood, as UTF-8 bytes (a Buffer body spares the per-answer string check). */
-type Entry = { parts: Buffer[] };
+/**
+ * The page cut at each place its nonce stood, as UTF-8 bytes (a Buffer body spares the per-answer
+ * string check), and the same pieces compressed once, when first asked for (spliced-gzip.server.ts).
+ */
+type Entry = { parts: Buffer[]; gzip?: DeflatedPiece[] };
 const entries = new ByteBoundedCache<Entry>({ maxBytes: MAX_BYTES, maxEntries: MAX_ENTRIES });
 
 export type RenderInputs = {
@@ -116,6 +120,26 @@ export function keptRender(key: string, nonce: string): ReadableStream<Uint8Arra
       controller.close();
     },
   });
+}
+
+/**
+ * The whole answer for a kept render with `nonce` written in, as a few buffers: gzip-encoded
+ * (pieces compressed once, the nonce spliced in) or plain. Null when the render is not kept.
+ */
+export function keptBody(key: string, nonce: string, gzip: boolean): Buffer[] | null {
+  const hit = entries.get(key);
+  if (!hit) return null;
+  const nonceBytes = Buffer.from(nonce, "utf8");
+  if (!gzip) return hit.parts.flatMap((part, i) => (i > 0 ? [nonceBytes, part] : [part]));
+  if (!hit.gzip) {
+    hit.gzip = hit.parts.map(deflatePiece);
+    entries.grow(
+      key,
+      hit,
+      hit.gzip.reduce((n, piece) => n + piece.deflated.length, 0),
+    );
+  }
+  return splicedGzip(hit.gzip, nonceBytes);
 }
 
 /** Keeps a finished render; the least recently used go first when the cache is full. */

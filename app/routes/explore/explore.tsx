@@ -1,6 +1,7 @@
 import { useEffect, useRef } from "react";
 import { Form, Link, useLocation, useNavigation, useSubmit } from "react-router";
 import type { Route } from "./+types/explore";
+import type { LaneHandle } from "#app/utils/page-lane.server.ts";
 import { Pagination } from "#app/components/ui/pagination.tsx";
 import { cachedRead } from "#app/models/registry/read-cache.server.ts";
 import { requireUser } from "#app/auth/session.server.ts";
@@ -18,6 +19,9 @@ import { formatCal, formatCalRange, formatMeasuredAge } from "#app/utils/age-for
 import { defaultDirection, exploreSearch, type ExploreSort } from "#app/utils/explore-filters.ts";
 import { CONSTRAINT_KIND_LABELS, methodWords, SIGNAL_LABELS, STATUS_LABELS } from "#app/utils/labels.ts";
 import { formatDay } from "#app/utils/time-format.ts";
+
+/** The page shows the registry as the signed-in person may see it, and nothing else: it may take the lane (page-lane.server.ts). */
+export const handle = { fastLane: true } satisfies LaneHandle;
 
 export const meta: Route.MetaFunction = () => [{ title: "Explore determinations · Thawline" }];
 
