@@ -81,7 +81,7 @@ async function keptOrWhole(
   const html = await renderWhole(routerContext, request.url, nonce);
   keepRender(key, html, nonce);
   if (laneKey) rememberLane(laneKey, key, routerContext, responseHeaders, await getOptionalUser(request));
-  return new Response(Buffer.from(html, "utf8") as Uint8Array<ArrayBuffer>, {
+  return new Response(html as Uint8Array<ArrayBuffer>, {
     headers: responseHeaders,
     status: responseStatusCode,
   });
@@ -133,15 +133,15 @@ function streamed(
   });
 }
 
-/** The whole page as one string (every Suspense boundary resolved), for a render that will be kept. */
-function renderWhole(routerContext: EntryContext, url: string, nonce: string): Promise<string> {
+/** The whole page as UTF-8 bytes (every Suspense boundary resolved), for a render that will be kept. */
+function renderWhole(routerContext: EntryContext, url: string, nonce: string): Promise<Buffer> {
   return new Promise((resolve, reject) => {
     const chunks: Buffer[] = [];
     const sink = new PassThrough();
     sink.on("data", (chunk: Buffer) => chunks.push(chunk));
     sink.on("end", () => {
       clearTimeout(timeoutId);
-      resolve(Buffer.concat(chunks).toString("utf8"));
+      resolve(Buffer.concat(chunks));
     });
     sink.on("error", reject);
     const timeoutId = setTimeout(() => abort(), streamTimeout + 1000);

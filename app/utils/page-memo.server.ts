@@ -143,11 +143,20 @@ export function keptBody(key: string, nonce: string, gzip: boolean): Buffer[] | 
 }
 
 /** Keeps a finished render; the least recently used go first when the cache is full. */
-export function keepRender(key: string, html: string, nonce: string): void {
-  const parts = html.split(nonce).map((part) => Buffer.from(part, "utf8"));
-  const bytes = parts.reduce((n, part) => n + part.length, 0);
-  if (bytes > MAX_BYTES / 4) return;
-  entries.set(key, { parts }, bytes);
+export function keepRender(key: string, html: Buffer | string, nonce: string): void {
+  const bytes = typeof html === "string" ? Buffer.from(html, "utf8") : html;
+  if (bytes.length > MAX_BYTES / 4) return;
+  // Cut at the nonce's bytes; the pieces are views of the page's own buffer (nothing copied), which
+  // nobody changes: the first answer sends that same buffer.
+  const needle = Buffer.from(nonce, "utf8");
+  const parts: Buffer[] = [];
+  let from = 0;
+  for (let at = bytes.indexOf(needle); at !== -1; at = bytes.indexOf(needle, from)) {
+    parts.push(bytes.subarray(from, at));
+    from = at + needle.length;
+  }
+  parts.push(bytes.subarray(from));
+  entries.set(key, { parts }, bytes.length);
 }
 
 /** For tests: how many renders are kept and their size. */

@@ -1,6 +1,8 @@
 import { z } from "zod";
 import type { Db } from "#app/db/client.server.ts";
 import { Conditions, CURRENT_CALIBRATION_JOIN, NOT_WITHDRAWN_SQL } from "#app/models/registry/conditions.server.ts";
+import { cachedRead } from "#app/models/registry/read-cache.server.ts";
+import { prepared } from "#app/db/prepared.server.ts";
 import { CHECK_SEVERITIES, CONSTRAINT_KINDS, METHODS, STATUSES, type CheckSeverity } from "#app/db/schema.ts";
 import { escapeLike } from "#app/utils/sql-like.ts";
 import {
@@ -247,18 +249,22 @@ export function exploreDeterminations(db: Db, filters: ExploreFilters): ExploreR
   const nullsLast = filters.sort === "labCode" || filters.sort === "created" ? "" : `(${sortExpr}) is null, `;
   const orderBy = `order by ${nullsLast}${sortExpr} ${dir}, d.id ${dir}`;
 
-  const total = (
-    db.$client.prepare(`select count(*) as n ${narrowFrom(filters, false)} ${where.sql}`).get(...where.params) as {
-      n: number;
-    }
-  ).n;
+  // The whole order of the selection, as ids, is worked out once per registry version and kept: every
+  // page of it (and its count) is then a slice, and only those 50 rows are read in full.
+  const order = cachedRead(db, `explore-order:${orderBy}\n${where.sql}\n${JSON.stringify(where.params)}`, () =>
+    db.$client
+      .prepare(`select d.id ${narrowFrom(filters, true)} ${where.sql} ${orderBy}`)
+      .pluck()
+      .all(...where.params),
+  ) as number[];
+  const total = order.length;
   const pageCount = Math.max(1, Math.ceil(total / EXPLORE_PAGE_SIZE));
   const page = Math.min(filters.page, pageCount);
+  const pageIds = order.slice((page - 1) * EXPLORE_PAGE_SIZE, page * EXPLORE_PAGE_SIZE);
 
-  // Sort and cut the page on ids alone, then fetch the full rows for those 50.
-  const raw = db.$client
-    .prepare(
-      `select d.id, d.lab_code as labCode, t.id as siteId, t.name as siteName, s.id as sampleId,
+  const fetched = prepared(
+    db,
+    `select d.id, d.lab_code as labCode, t.id as siteId, t.name as siteName, s.id as sampleId,
          s.field_code as fieldCode, s.material, d.method, d.signal,
          ${LISTED_MEASUREMENT_SQL},
          ${MEASURED_AGE_SQL} as measuredAgeYr,
@@ -266,17 +272,15 @@ export function exploreDeterminations(db: Db, filters: ExploreFilters): ExploreR
          coalesce(json_array_length(c.hpd95), 0) as hpd95Parts, c.curve_label as curveLabel,
          d.constraint_kind as constraintKind, d.grade, ${RANK_TO_SEVERITY_SQL} as worstCheck,
          d.status, l.name as labName, d.created_at as createdAt
-       from (select d.id as pageId ${narrowFrom(filters, true)} ${where.sql} ${orderBy} limit ? offset ?) p
-       join determinations d on d.id = p.pageId
+       from determinations d
        join samples s on s.id = d.sample_id
        join sites t on t.id = s.site_id
        join labs l on l.id = d.lab_id
        left join calibrations c on c.determination_id = d.id and c.is_current = 1
-       ${orderBy}`,
-    )
-    .all(...where.params, EXPLORE_PAGE_SIZE, (page - 1) * EXPLORE_PAGE_SIZE) as (Omit<ExploreRow, "isLimit"> & {
-    isLimit: number;
-  })[];
+       where d.id in (select value from json_each(?))`,
+  ).all(JSON.stringify(pageIds)) as (Omit<ExploreRow, "isLimit"> & { isLimit: number })[];
+  const position = new Map(pageIds.map((id, i) => [id, i]));
+  const raw = fetched.sort((a, b) => position.get(a.id)! - position.get(b.id)!);
 
   return {
     rows: raw.map((r) => ({ ...r, isLimit: r.isLimit === 1 })),

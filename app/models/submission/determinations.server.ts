@@ -3,10 +3,10 @@
 // row (form, spreadsheet, API) to a determination's columns. A determination is always written
 // together with its audit row, in one transaction.
 
-import type Database from "better-sqlite3";
 import { getTableColumns, getTableName, type Column } from "drizzle-orm";
 import type { SQLiteTable } from "drizzle-orm/sqlite-core";
 import type { Db } from "#app/db/client.server.ts";
+import { prepared } from "#app/db/prepared.server.ts";
 import { auditLog, determinations, labs, publications, samples, sites, type Method } from "#app/db/schema.ts";
 import type { MeasurementFields } from "#app/models/calibration/calibrations.server.ts";
 import { doseRateFromFields } from "#app/science/dose-rate-fields.ts";
@@ -214,17 +214,7 @@ export function insertDetermination(db: Db, values: NewDetermination, actorId: n
 
 // Drizzle prepares a fresh statement for every query, which dominates the cost of bulk inserts
 // (the seed writes tens of thousands of rows). These inserts keep one prepared statement per
-// table and column set, and convert values with the schema's own column mappings.
-const statementCache = new WeakMap<Database.Database, Map<string, Database.Statement>>();
-
-function prepared(db: Db, text: string): Database.Statement {
-  let cache = statementCache.get(db.$client);
-  if (!cache) statementCache.set(db.$client, (cache = new Map()));
-  let stmt = cache.get(text);
-  if (!stmt) cache.set(text, (stmt = db.$client.prepare(text)));
-  return stmt;
-}
-
+// table and column set (db/prepared.server.ts), and convert values with the schema's own column mappings.
 function insertStatement(db: Db, table: SQLiteTable, values: Record<string, unknown>, returning: boolean) {
   const columns = getTableColumns(table) as Record<string, Column>;
   const keys = Object.keys(values).filter((k) => values[k] !== undefined && k in columns);
