@@ -4,7 +4,7 @@ import Database from "better-sqlite3";
 import { createCookie } from "react-router";
 import { afterAll, beforeAll, expect, inject, test } from "vitest";
 import { useBrowser } from "./browser.ts";
-import { signInAs } from "./helpers.ts";
+import { signInAs, waitForHydration } from "./helpers.ts";
 
 /*
  * A page that opted in (Explore) is answered, the second time the same person asks for it with the
@@ -155,5 +155,28 @@ test("a page that did not opt in never takes the lane", async () => {
       const answer = await get(path, { Cookie: cookie, "Accept-Encoding": "gzip" });
       expect(fromLane(answer), path).toBe(false);
     }
+  }
+});
+
+test("in the browser a laned page hydrates under the policy and works: sorting by a column", async () => {
+  const context = await e2e.browser.newContext();
+  const page = await context.newPage();
+  try {
+    await signInAs(page, "modeller@example.org");
+    const problems: string[] = [];
+    page.on("console", (m) => {
+      if (m.type() === "error") problems.push(m.text());
+    });
+    page.on("pageerror", (e) => problems.push(e.message));
+    await page.goto(`${baseUrl}/explore?sort=grade`);
+    const second = await page.goto(`${baseUrl}/explore?sort=grade`);
+    expect(second!.headers()["server-timing"]).toContain("lane");
+    await waitForHydration(page);
+    await page.getByRole("link", { name: /^Lab code/ }).click();
+    await page.waitForURL((url) => url.searchParams.get("sort") === "labCode");
+    await expect.poll(() => page.locator("tbody tr").count()).toBeGreaterThan(0);
+    expect(problems).toEqual([]);
+  } finally {
+    await context.close();
   }
 });
