@@ -19,7 +19,10 @@ function takesGzip(accept) {
  */
 export function pageLane(lane) {
   return (req, res, next) => {
-    if (!lane.laneKey || !lane.laneAnswer || req.method !== "GET" || req.path.endsWith(".data")) return next();
+    // Pages only: not files (an extension: assets, the favicon, React Router's .data requests), not the API.
+    if (!lane.laneKey || !lane.laneAnswer || req.method !== "GET" || /\.[^/]*$/.test(req.path) || req.path.startsWith("/api/")) {
+      return next();
+    }
     /** @type {string | null} */
     let key;
     try {
