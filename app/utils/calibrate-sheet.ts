@@ -9,7 +9,14 @@ import { interpretRadiocarbon } from "#app/science/radiocarbon.ts";
 import { MAX_SIGMA_YR } from "#app/utils/calibrate-limits.ts";
 import { formatWithError } from "#app/utils/age-format.ts";
 import type { CalibrationItem } from "#app/utils/calibrate-input.ts";
-import { isBlankCell, readChoice, readIdentifier, readNumber, readYesNo } from "#app/utils/determination-input/cells.ts";
+import {
+  isBlankCell,
+  readChoice,
+  readIdentifier,
+  readNumber,
+  readText,
+  readYesNo,
+} from "#app/utils/determination-input/cells.ts";
 import { COLUMNS, columnSpec, type ColumnSpec } from "#app/utils/determination-input/columns.ts";
 import { inFormWords } from "#app/utils/determination-input/form-words.ts";
 import { columnForHeader } from "#app/utils/determination-input/headers.ts";
@@ -34,6 +41,9 @@ export const SHEET_COLUMNS = [
   "curve",
   "delta_r",
   "delta_r_error",
+  "delta_r_curve",
+  "freshwater_offset",
+  "freshwater_offset_error",
   "method",
 ] as const;
 type SheetColumn = (typeof SHEET_COLUMNS)[number];
@@ -233,6 +243,9 @@ function readRow(n: number, raw: Partial<Record<SheetColumn, SheetCell>>, ctx: R
   const curveText = read("curve", (v, s) => readChoice(v, s, ctx.curveNames));
   const deltaR = read("delta_r", readNumber);
   const deltaRError = read("delta_r_error", readNumber);
+  const deltaRCurve = read("delta_r_curve", (v, s) => readText(v, s, 40));
+  const freshwater = read("freshwater_offset", readNumber);
+  const freshwaterError = read("freshwater_offset_error", readNumber);
 
   const hasAge = !isBlankCell(raw.c14_age);
   const hasF = !isBlankCell(raw.f14c);
@@ -250,9 +263,17 @@ function readRow(n: number, raw: Partial<Record<SheetColumn, SheetCell>>, ctx: R
     problems.push({ column: "f14c_error", message: "f14c_error must be more than 0." });
   if (deltaRError !== undefined && deltaRError < 0)
     problems.push({ column: "delta_r_error", message: "delta_r_error must be 0 or more." });
+  if (freshwaterError !== undefined && freshwaterError < 0)
+    problems.push({ column: "freshwater_offset_error", message: "freshwater_offset_error must be 0 or more." });
+  if (freshwaterError !== undefined && freshwater === undefined)
+    problems.push({
+      column: "freshwater_offset",
+      message: "freshwater_offset is missing: give the offset its error belongs to.",
+    });
   for (const [column, sigma] of [
     ["c14_error", error],
     ["delta_r_error", deltaRError],
+    ["freshwater_offset_error", freshwaterError],
   ] as const) {
     if (sigma !== undefined && sigma > MAX_SIGMA_YR) problems.push({ column, message: tooUncertain(column, sigma) });
   }
@@ -263,6 +284,12 @@ function readRow(n: number, raw: Partial<Record<SheetColumn, SheetCell>>, ctx: R
     problems.push({
       column: "delta_r",
       message: `ΔR applies to marine curves only; this row is calibrated on ${curve}. Give curve marine20 or leave ΔR empty.`,
+    });
+  }
+  if (marine && (freshwater ?? 0) !== 0) {
+    problems.push({
+      column: "freshwater_offset",
+      message: `A freshwater offset applies to atmospheric curves only; this row is calibrated on ${curve}. Give its marine offset as delta_r.`,
     });
   }
   if (problems.length) return { row: n, label, problems };
@@ -286,18 +313,37 @@ function readRow(n: number, raw: Partial<Record<SheetColumn, SheetCell>>, ctx: R
   if (interpreted.error > MAX_SIGMA_YR) {
     return { row: n, label, problems: [{ column: "f14c_error", message: tooUncertain("the age's error", interpreted.error) }] };
   }
-  const item: CalibrationItem = { id: label, c14_age: interpreted.age, c14_error: interpreted.error, curve };
+  // A freshwater (hard-water) offset on an atmospheric curve is applied like ΔR: added to the curve with
+  // the errors in quadrature (science/reservoir.ts), which is the same as taking it off the age.
+  const offset = !marine && freshwater !== undefined && freshwater !== 0 ? { yr: freshwater, error: freshwaterError ?? 0 } : null;
+  const item: CalibrationItem = offset
+    ? {
+        id: label,
+        c14_age: interpreted.age - offset.yr,
+        c14_error: Math.hypot(interpreted.error, offset.error),
+        curve,
+      }
+    : { id: label, c14_age: interpreted.age, c14_error: interpreted.error, curve };
   // The row's own ΔR, else the page's ΔR for rows on the page's curve.
   const ownCurve = curveText === undefined || curve === ctx.curve.toLowerCase();
   const rowDeltaR = deltaR ?? (ownCurve ? ctx.deltaR : undefined);
   const rowDeltaRError = deltaR !== undefined ? deltaRError : ownCurve ? ctx.deltaRError : undefined;
   if (marine && rowDeltaR !== undefined) item.delta_r = rowDeltaR;
   if (marine && rowDeltaRError !== undefined) item.delta_r_error = rowDeltaRError;
-  const note = !hasAge
-    ? `From F¹⁴C ${formatWithError(f14c!, f14cError)}.`
-    : interpreted.normalisedHere
-      ? `Normalised to δ¹³C −25 ‰ (${interpreted.correctionYears >= 0 ? "+" : "−"}${Math.abs(Math.round(interpreted.correctionYears))} ¹⁴C yr).`
-      : undefined;
+  const notes = [
+    !hasAge
+      ? `From F¹⁴C ${formatWithError(f14c!, f14cError)}.`
+      : interpreted.normalisedHere
+        ? `Normalised to δ¹³C −25 ‰ (${interpreted.correctionYears >= 0 ? "+" : "−"}${Math.abs(Math.round(interpreted.correctionYears))} ¹⁴C yr).`
+        : null,
+    offset
+      ? `Freshwater offset ${formatWithError(offset.yr, offset.error, "¹⁴C yr")} taken off: calibrated as ${formatWithError(item.c14_age, item.c14_error, "¹⁴C yr BP")}.`
+      : null,
+    marine && item.delta_r !== undefined && deltaRCurve && deltaRCurve.trim().toLowerCase() !== curve
+      ? `ΔR was derived against ${deltaRCurve.trim()}, not ${curve}: ΔR values do not carry over between curves, so this result uses it as given.`
+      : null,
+  ].filter((x): x is string => x !== null);
+  const note = notes.length ? notes.join(" ") : undefined;
   return { row: n, label, item, problems: [], ...(note ? { note } : {}) };
 }
 

@@ -8,6 +8,10 @@ import {
   type CurveChoice,
 } from "#app/utils/calibrate-sheet.ts";
 import { ageToF14c } from "#app/science/radiocarbon.ts";
+import { calibrate } from "#app/science/calibration.ts";
+import { prepareCurve } from "#app/science/curve.ts";
+import { appliedOffset } from "#app/science/reservoir.ts";
+import { loadCurve } from "../science/curve-files.ts";
 
 const CURVES: CurveChoice[] = [
   { name: "intcal20", kind: "atmospheric" },
@@ -100,6 +104,65 @@ describe("a pasted sheet in the template's columns", () => {
       { id: "B", c14_age: 9500, c14_error: 70, curve: "marine20", delta_r: 10, delta_r_error: 5 },
       { id: "C", c14_age: 9500, c14_error: 70, curve: "intcal20" },
     ]);
+  });
+
+  test("a freshwater offset on an atmospheric curve is taken off the age with the errors in quadrature, and said so", () => {
+    const sheet = read(
+      [
+        "lab_code,c14_age,c14_error,curve,freshwater_offset,freshwater_offset_error",
+        "XMPL-31,9400,40,intcal20,350,30",
+        "XMPL-32,9400,40,intcal20,350,",
+        "XMPL-33,9400,40,intcal20,,",
+      ].join("\n"),
+    );
+    expect(sheet.setAside).toEqual([]);
+    expect(sheet.rows.map((r) => r.item)).toEqual([
+      { id: "XMPL-31", c14_age: 9050, c14_error: 50, curve: "intcal20" }, // √(40² + 30²) = 50
+      { id: "XMPL-32", c14_age: 9050, c14_error: 40, curve: "intcal20" },
+      { id: "XMPL-33", c14_age: 9400, c14_error: 40, curve: "intcal20" },
+    ]);
+    expect(sheet.rows[0]!.note).toBe("Freshwater offset 350 ± 30 ¹⁴C yr taken off: calibrated as 9,050 ± 50 ¹⁴C yr BP.");
+    expect(sheet.rows[2]!.note).toBeUndefined();
+
+    // Independent of the sheet: the registry adds the offset to the curve (science/reservoir.ts); the
+    // sheet's shifted age on the plain curve must give the same calendar ages.
+    const intcal = prepareCurve(loadCurve("intcal20"));
+    const offset = appliedOffset("atmospheric", { freshwaterOffset: 350, freshwaterOffsetError: 30 });
+    const onCurve = calibrate(intcal, { age: 9400, error: 40, deltaR: offset.deltaR, deltaRError: offset.deltaRError });
+    const shifted = calibrate(intcal, { age: 9050, error: 50 });
+    expect(shifted.medianCalBp).toBeCloseTo(onCurve.medianCalBp, 6);
+    expect(shifted.medianCalBp).toBeGreaterThan(9_000);
+    expect(shifted.hpd95).toEqual(onCurve.hpd95);
+  });
+
+  test("a freshwater offset on a marine row, or an offset error without its offset, is named at its cell", () => {
+    const sheet = read(
+      [
+        "lab_code,c14_age,c14_error,curve,delta_r,delta_r_error,freshwater_offset,freshwater_offset_error",
+        "XMPL-41,9400,40,marine20,50,20,300,20",
+        "XMPL-42,9400,40,intcal20,,,,25",
+        "XMPL-43,9400,40,intcal20,,,200,-5",
+      ].join("\n"),
+    );
+    expect(sheet.rows.map((r) => r.problems.map((p) => p.column))).toEqual([
+      ["freshwater_offset"],
+      ["freshwater_offset"],
+      ["freshwater_offset_error"],
+    ]);
+    expect(sheet.rows[0]!.problems[0]!.message).toContain("atmospheric curves only");
+  });
+
+  test("ΔR derived against another curve than the row's is used as given, and the row says so", () => {
+    const sheet = read(
+      [
+        "lab_code,c14_age,c14_error,curve,delta_r,delta_r_error,delta_r_curve",
+        "XMPL-51,9400,40,marine20,50,20,marine13",
+        "XMPL-52,9400,40,marine20,50,20,Marine20",
+      ].join("\n"),
+    );
+    expect(sheet.rows[0]!.item).toMatchObject({ delta_r: 50, delta_r_error: 20 });
+    expect(sheet.rows[0]!.note).toContain("ΔR was derived against marine13, not marine20");
+    expect(sheet.rows[1]!.note).toBeUndefined();
   });
 
   test("measurements are made conventional as the registry does: F¹⁴C to age, δ¹³C normalisation; limits and luminescence are not calibrated", () => {
