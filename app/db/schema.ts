@@ -180,6 +180,8 @@ export const publications = sqliteTable("publications", {
   title: text("title"),
   /** Journal (or book, report series), with volume and pages when given. */
   journal: text("journal"),
+  /** The upload whose commit stored it, if one did: undoing that upload takes it out again when nothing cites it. */
+  createdInBatchId: integer("created_in_batch_id").references((): AnySQLiteColumn => uploadBatches.id),
   createdAt: createdAt(),
 });
 

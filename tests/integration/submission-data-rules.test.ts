@@ -5,7 +5,7 @@
 import { eq } from "drizzle-orm";
 import { describe, expect, it } from "vitest";
 import { getDb } from "#app/db/client.server.ts";
-import { labs, samples, sites, uploadBatches } from "#app/db/schema.ts";
+import { labs, publications, samples, sites, uploadBatches } from "#app/db/schema.ts";
 import { createUpload, listBatches } from "#app/models/submission/uploads/batches.server.ts";
 import { commitUpload, submitJsonRows } from "#app/models/submission/uploads/commit.server.ts";
 import { undoUpload } from "#app/models/submission/uploads/undo.server.ts";
@@ -109,6 +109,42 @@ describe("2. one undo rule", () => {
     const committed = db().select().from(uploadBatches).where(eq(uploadBatches.id, batch.id)).get()!;
     undoUpload(db(), committed, { userId });
     expect({ sites: count("sites"), samples: count("samples") }).toEqual(before);
+  });
+});
+
+describe("2b. undo takes out the publications an upload stored", () => {
+  const paperRows = (p: string, doi: string) =>
+    rowsAt(3, p).map((r) => ({ ...r, doi, pub_title: `Invented ages of the ${p} fjords`, pub_year: 2024 }));
+
+  it("a paper first cited by the upload goes with it; one cited before is untouched", async () => {
+    const p = prefix();
+    const known = db().$client.prepare("select count(*) from publications").pluck().get() as number;
+    const { batch, userId } = await upload(paperRows(p, `10.99999/thawline.undo.${p}`));
+    commitUpload(db(), batch, "all", { userId });
+    const stored = db().select().from(publications).where(eq(publications.createdInBatchId, batch.id)).all();
+    expect(stored.map((s) => s.doi)).toEqual([`10.99999/thawline.undo.${p}`]);
+    // The rows' shared test paper (TEST_CITATION) is not re-created: only the new DOI is this batch's.
+    const committed = db().select().from(uploadBatches).where(eq(uploadBatches.id, batch.id)).get()!;
+    undoUpload(db(), committed, { userId });
+    expect(db().select().from(publications).where(eq(publications.id, stored[0]!.id)).get()).toBeUndefined();
+    expect(db().$client.prepare("select count(*) from publications").pluck().get()).toBe(known);
+    const entry = db()
+      .$client.prepare("select after from audit_log where action = 'upload.undo' and entity_id = ?")
+      .pluck()
+      .get(batch.publicId) as string;
+    expect(JSON.parse(entry).removedPublicationIds).toEqual([stored[0]!.id]);
+  });
+
+  it("a paper the upload stored stays when a determination outside the upload has come to cite it", async () => {
+    const p = prefix();
+    const { batch, userId } = await upload(paperRows(p, `10.99999/thawline.kept.${p}`));
+    commitUpload(db(), batch, "all", { userId });
+    const paper = db().select().from(publications).where(eq(publications.createdInBatchId, batch.id)).get()!;
+    const other = createTestDetermination(db());
+    db().$client.prepare("update determinations set publication_id = ? where id = ?").run(paper.id, other.id);
+    const committed = db().select().from(uploadBatches).where(eq(uploadBatches.id, batch.id)).get()!;
+    undoUpload(db(), committed, { userId });
+    expect(db().select().from(publications).where(eq(publications.id, paper.id)).get()?.doi).toBe(paper.doi);
   });
 });
 

@@ -120,7 +120,7 @@ export class PublicationPlanner {
   }
 
   /** Writes what the target needs and returns the publication's id; call inside the caller's transaction. */
-  place(target: PublicationTarget): number | null {
+  place(target: PublicationTarget, batchId: number | null = null): number | null {
     if (!target) return null;
     if ("publication" in target) {
       const { id } = target.publication;
@@ -137,6 +137,7 @@ export class PublicationPlanner {
         journal: p.journal,
         doi: p.doi,
         citation: formatCitation({ ...p, doi: p.doi }),
+        createdInBatchId: batchId,
       })
       .returning({ id: publications.id })
       .get().id;

@@ -274,7 +274,7 @@ export class Placement {
       }
       sampleId = s.id;
     }
-    const publicationId = this.publications.place(plan.publication);
+    const publicationId = this.publications.place(plan.publication, ctx.batchId ?? null);
     return { labId, siteId, createdSite, sampleId, createdSample, publicationId };
   }
 }

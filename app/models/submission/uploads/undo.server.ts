@@ -3,7 +3,7 @@
 
 import { eq, inArray } from "drizzle-orm";
 import type { Db } from "#app/db/client.server.ts";
-import { calibrations, checkResults, determinations, samples, sites, uploadBatches } from "#app/db/schema.ts";
+import { calibrations, checkResults, determinations, publications, samples, sites, uploadBatches } from "#app/db/schema.ts";
 import { audit } from "#app/models/audit.server.ts";
 import { runChecksFor, type RemovedDetermination } from "#app/models/review/check-run.server.ts";
 import { auditSnapshot } from "#app/models/submission/determinations.server.ts";
@@ -53,8 +53,8 @@ export function undoRefusals(db: Db, batchIds: number[]): Map<number, string> {
 
 /**
  * Takes a committed batch back out of the registry when undoRefusals allows it: its determinations
- * (with their calibrations and checks) and the sites and samples it created that nothing else uses
- * since; the determinations they leave behind nearby are rechecked. Audited, one transaction.
+ * (with their calibrations and checks) and the sites, samples and publications it created that nothing
+ * else uses since; the determinations they leave behind nearby are rechecked. Audited, one transaction.
  */
 export function undoUpload(db: Db, batch: BatchRow, actor: { userId: number; ip?: string | null }): { removed: number } {
   if (batch.userId !== actor.userId) throw new CommitRefused("Not found.", 404);
@@ -120,6 +120,21 @@ export function undoUpload(db: Db, batch: BatchRow, actor: { userId: number; ip?
         removedSites.push(id);
       }
     }
+    // Publications the batch stored, unless another determination has come to cite them since.
+    const createdPublicationIds = tx
+      .select({ id: publications.id })
+      .from(publications)
+      .where(eq(publications.createdInBatchId, batch.id))
+      .all()
+      .map((r) => r.id);
+    const publicationStillCited = db.$client.prepare("select 1 from determinations where publication_id = ? limit 1").pluck();
+    const removedPublications: number[] = [];
+    for (const id of createdPublicationIds) {
+      if (!publicationStillCited.get(id)) {
+        tx.delete(publications).where(eq(publications.id, id)).run();
+        removedPublications.push(id);
+      }
+    }
     runChecksFor(db, [], removedPlaces);
     tx.update(uploadBatches).set({ status: "undone", undoneAt: new Date() }).where(eq(uploadBatches.id, batch.id)).run();
     audit(tx, {
@@ -128,7 +143,12 @@ export function undoUpload(db: Db, batch: BatchRow, actor: { userId: number; ip?
       entity: "upload_batch",
       entityId: batch.publicId,
       before: { committed: ids.length },
-      after: { removedDeterminations: ids.length, removedSampleIds: removedSamples, removedSiteIds: removedSites },
+      after: {
+        removedDeterminations: ids.length,
+        removedSampleIds: removedSamples,
+        removedSiteIds: removedSites,
+        removedPublicationIds: removedPublications,
+      },
       ip: actor.ip,
     });
     return { removed: ids.length };

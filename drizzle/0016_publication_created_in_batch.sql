@@ -1,0 +1,1 @@
+ALTER TABLE `publications` ADD `created_in_batch_id` integer REFERENCES upload_batches(id);
