@@ -36,6 +36,8 @@ export default [
     route("people", "routes/admin/people.tsx"),
     route("curves", "routes/admin/curves.tsx"),
     route("labs", "routes/admin/labs.tsx"),
+    route("publications", "routes/admin/publications.tsx"),
+    route("publications/:id", "routes/admin/publication.tsx"),
     route("checks", "routes/admin/checks.tsx"),
   ]),
 

@@ -21,6 +21,7 @@ export const NAV_ITEMS: NavItem[] = [
   { to: "/runs", label: "Model runs", roles: ["modeller"] },
   { to: "/people", label: "People", roles: ["editor"] },
   { to: "/labs", label: "Labs", roles: ["editor"] },
+  { to: "/publications", label: "Publications", roles: ["editor"] },
   { to: "/api-docs", label: "API", roles: "public" },
 ];
 

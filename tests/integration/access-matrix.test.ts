@@ -14,7 +14,7 @@ import routes from "#app/routes.ts";
 import Database from "better-sqlite3";
 import { drizzle } from "drizzle-orm/better-sqlite3";
 import { getDb, setDb, schema, type Db } from "#app/db/client.server.ts";
-import { determinations, jobs, labs, releases, samples, sites, uploadBatches, type Role } from "#app/db/schema.ts";
+import { determinations, jobs, labs, publications, releases, samples, sites, uploadBatches, type Role } from "#app/db/schema.ts";
 import { createSession } from "#app/auth/session.server.ts";
 import { createToken } from "#app/models/accounts/tokens.server.ts";
 import { args, get, personWithSession, post, run, type Outcome } from "#tests/support/auth.ts";
@@ -104,6 +104,13 @@ export const ACCESS: Record<string, Row> = {
   // Curves, checks and reconstructions, background jobs: editors (reviewers follow check runs: review-admin.test.ts)
   "routes/admin/curves": { url: "/curves", get: only(["editor"], "ok"), post: only(["editor"], "allowed") },
   "routes/admin/labs": { url: "/labs", get: only(["editor"], "ok"), post: only(["editor"], "allowed") },
+  "routes/admin/publications": { url: "/publications", get: only(["editor"], "ok"), post: "none" },
+  "routes/admin/publication": {
+    url: "/publications/:id",
+    params: { id: "publicationId" },
+    get: only(["editor"], "ok"),
+    post: only(["editor"], "allowed"),
+  },
   "routes/admin/checks": { url: "/checks", get: only(["editor"], "ok"), post: only(["editor"], "allowed") },
   "routes/resources/jobs": {
     url: "/api/jobs/:id",
@@ -284,7 +291,14 @@ function flatten(entries: RouteConfigEntry[], parentPath = ""): Entry[] {
 
 const ENTRIES: Entry[] = [{ id: "root", file: "root.tsx", path: "/" }, ...flatten(routes)];
 
-type Fixtures = { siteId: string; determinationId: string; jobId: string; uploadPublicId: string; releaseSlug: string };
+type Fixtures = {
+  siteId: string;
+  determinationId: string;
+  jobId: string;
+  uploadPublicId: string;
+  releaseSlug: string;
+  publicationId: string;
+};
 const fixtures = {} as Fixtures;
 const people = {} as Record<Exclude<Audience, "signed-out">, { id: number; token: string }>;
 let cookies = {} as Record<Exclude<Audience, "signed-out">, string>;
@@ -347,7 +361,13 @@ seedForFile(async () => {
     })
     .returning()
     .get();
+  const publication = db
+    .insert(publications)
+    .values({ citation: "Matrix, A. (2020) An invented paper. Journal of Tests 1, 1–2.", doi: "10.99999/matrix.1" })
+    .returning()
+    .get();
   Object.assign(fixtures, {
+    publicationId: String(publication.id),
     releaseSlug: release.slug,
     siteId: String(site.id),
     determinationId: String(det.id),
