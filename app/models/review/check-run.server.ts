@@ -2,6 +2,8 @@
 // edit, a recalibration) or for the whole registry (a background job, the seed). Each run
 // replaces the results of the determinations it covers in one transaction.
 
+import KDBush from "kdbush";
+import { around as within } from "geokdbush";
 import type { Db } from "#app/db/client.server.ts";
 import { CHECK_SEVERITIES, type CheckSeverity } from "#app/db/schema.ts";
 import { env } from "#app/utils/env.server.ts";
@@ -111,12 +113,16 @@ export function runChecksFor(db: Db, ids: readonly number[], removed: readonly R
   const wantedCodes = new Set(places.map((p) => normaliseLabCode(p.labCode)));
   const twinIds = codes.filter((c) => wantedCodes.has(normaliseLabCode(c.labCode)) && !seen.has(c.id)).map((c) => c.id);
   const twins = loadCheckItemsById(db, twinIds);
+  // Distances to the nearest place, great-circle as the neighbour check measures them: a bounding box
+  // around places spread over a region would take in (and recheck) most of the registry.
+  const placeIndex = new KDBush(places.length);
+  for (const p of places) placeIndex.add(p.longitude, p.latitude);
+  placeIndex.finish();
+  const nearAPlace = (it: CheckItem, km: number) => within(placeIndex, it.longitude, it.latitude, 1, km).length > 0;
   const context = new Map<number, CheckItem>();
-  for (const it of loadCheckItems(db, around(places, 2 * r + 1))) context.set(it.id, it);
-  const near = around(places, r + 0.5);
+  for (const it of loadCheckItems(db, around(places, 2 * r + 1))) if (nearAPlace(it, 2 * r + 1)) context.set(it.id, it);
   const targets = new Set<number>(seeds.map((s) => s.id));
-  const isNear = (it: CheckItem) =>
-    it.latitude >= near.south && it.latitude <= near.north && it.longitude >= near.west && it.longitude <= near.east;
+  const isNear = (it: CheckItem) => nearAPlace(it, r + 0.5);
   for (const it of context.values()) if (isNear(it)) targets.add(it.id);
   for (const twin of twins) {
     targets.add(twin.id);
