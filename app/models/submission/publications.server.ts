@@ -9,14 +9,17 @@ import { escapeLike } from "#app/utils/sql-like.ts";
 
 export type PublicationRow = CitationFields & { id: number; citation: string; cited: number };
 
+/** A publication as the pages show it, with how many determinations cite it. */
+const SELECT_PUBLICATION = `select p.id, p.citation, p.doi, p.year, p.authors, p.title, p.journal,
+    (select count(*) from determinations d where d.publication_id = p.id) as cited
+  from publications p`;
+
 /** Every publication (or those whose citation or DOI holds `q`), newest year first, with how many determinations cite it. */
 export function listPublications(db: Db, q?: string): PublicationRow[] {
   const like = q?.trim() ? `%${escapeLike(q.trim())}%` : null;
   return db.$client
     .prepare(
-      `select p.id, p.citation, p.doi, p.year, p.authors, p.title, p.journal,
-         (select count(*) from determinations d where d.publication_id = p.id) as cited
-       from publications p
+      `${SELECT_PUBLICATION}
        ${like ? "where p.citation like ? escape '\\' or p.doi like ? escape '\\'" : ""}
        order by p.year is null, p.year desc, p.citation`,
     )
@@ -24,13 +27,7 @@ export function listPublications(db: Db, q?: string): PublicationRow[] {
 }
 
 export function getPublication(db: Db, id: number): PublicationRow | undefined {
-  return db.$client
-    .prepare(
-      `select p.id, p.citation, p.doi, p.year, p.authors, p.title, p.journal,
-         (select count(*) from determinations d where d.publication_id = p.id) as cited
-       from publications p where p.id = ?`,
-    )
-    .get(id) as PublicationRow | undefined;
+  return db.$client.prepare(`${SELECT_PUBLICATION} where p.id = ?`).get(id) as PublicationRow | undefined;
 }
 
 /** The id of another publication that already has this DOI (compared without case), if any. */

@@ -3,7 +3,7 @@
 
 import { eq, inArray } from "drizzle-orm";
 import type { Db } from "#app/db/client.server.ts";
-import { calibrations, checkResults, determinations, publications, samples, sites, uploadBatches } from "#app/db/schema.ts";
+import { calibrations, checkResults, determinations, uploadBatches } from "#app/db/schema.ts";
 import { audit } from "#app/models/audit.server.ts";
 import { runChecksFor, type RemovedDetermination } from "#app/models/review/check-run.server.ts";
 import { auditSnapshot } from "#app/models/submission/determinations.server.ts";
@@ -74,18 +74,6 @@ export function undoUpload(db: Db, batch: BatchRow, actor: { userId: number; ip?
       const at = placeOf.get(d.sampleId) as { latitude: number; longitude: number } | undefined;
       if (at) removedPlaces.push({ ...at, labCode: d.labCode });
     }
-    const createdSampleIds = tx
-      .select({ id: samples.id })
-      .from(samples)
-      .where(eq(samples.createdInBatchId, batch.id))
-      .all()
-      .map((r) => r.id);
-    const createdSiteIds = tx
-      .select({ id: sites.id })
-      .from(sites)
-      .where(eq(sites.createdInBatchId, batch.id))
-      .all()
-      .map((r) => r.id);
     for (let i = 0; i < ids.length; i += 500) {
       const chunk = ids.slice(i, i + 500);
       tx.delete(calibrations).where(inArray(calibrations.determinationId, chunk)).run();
@@ -103,38 +91,10 @@ export function undoUpload(db: Db, batch: BatchRow, actor: { userId: number; ip?
         ip: actor.ip,
       });
     }
-    // Samples and sites the batch created, unless something else has come to use them since.
-    const sampleStillUsed = db.$client.prepare("select 1 from determinations where sample_id = ? limit 1").pluck();
-    const removedSamples: number[] = [];
-    for (const id of createdSampleIds) {
-      if (!sampleStillUsed.get(id)) {
-        tx.delete(samples).where(eq(samples.id, id)).run();
-        removedSamples.push(id);
-      }
-    }
-    const siteStillUsed = db.$client.prepare("select 1 from samples where site_id = ? limit 1").pluck();
-    const removedSites: number[] = [];
-    for (const id of createdSiteIds) {
-      if (!siteStillUsed.get(id)) {
-        tx.delete(sites).where(eq(sites.id, id)).run();
-        removedSites.push(id);
-      }
-    }
-    // Publications the batch stored, unless another determination has come to cite them since.
-    const createdPublicationIds = tx
-      .select({ id: publications.id })
-      .from(publications)
-      .where(eq(publications.createdInBatchId, batch.id))
-      .all()
-      .map((r) => r.id);
-    const publicationStillCited = db.$client.prepare("select 1 from determinations where publication_id = ? limit 1").pluck();
-    const removedPublications: number[] = [];
-    for (const id of createdPublicationIds) {
-      if (!publicationStillCited.get(id)) {
-        tx.delete(publications).where(eq(publications.id, id)).run();
-        removedPublications.push(id);
-      }
-    }
+    // What the batch created, unless something else has come to use it since: samples before the sites they stand on.
+    const removedSamples = removeUnusedCreated(db, batch.id, "samples", "determinations", "sample_id");
+    const removedSites = removeUnusedCreated(db, batch.id, "sites", "samples", "site_id");
+    const removedPublications = removeUnusedCreated(db, batch.id, "publications", "determinations", "publication_id");
     runChecksFor(db, [], removedPlaces);
     tx.update(uploadBatches).set({ status: "undone", undoneAt: new Date() }).where(eq(uploadBatches.id, batch.id)).run();
     audit(tx, {
@@ -153,4 +113,22 @@ export function undoUpload(db: Db, batch: BatchRow, actor: { userId: number; ip?
     });
     return { removed: ids.length };
   });
+}
+
+/**
+ * Deletes the rows of `table` the batch created that no row of `usedBy` points at any more (through
+ * `column`), and gives their ids. Table and column names come from this file only. In the caller's transaction.
+ */
+function removeUnusedCreated(
+  db: Db,
+  batchId: number,
+  table: "samples" | "sites" | "publications",
+  usedBy: "determinations" | "samples",
+  column: "sample_id" | "site_id" | "publication_id",
+): number[] {
+  const sqlite = db.$client;
+  const created = sqlite.prepare(`select id from ${table} where created_in_batch_id = ?`).pluck().all(batchId) as number[];
+  const stillUsed = sqlite.prepare(`select 1 from ${usedBy} where ${column} = ? limit 1`).pluck();
+  const remove = sqlite.prepare(`delete from ${table} where id = ?`);
+  return created.filter((id) => !stillUsed.get(id) && remove.run(id).changes > 0);
 }
